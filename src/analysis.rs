@@ -1,0 +1,211 @@
+//! Post-processing of solved fields: point temperatures, frost depth on a vertical line, fits.
+use crate::mesh::{Cell, Mesh};
+use crate::solver::network::{Network, Side};
+
+/// Temperature at point (x, z), °C, from the cell temperatures `t` of the unknowns.
+///
+/// - Strictly inside a cell: bilinear interpolation between the four surrounding cell centres when
+///   they are all solids of the cell's own material, else the cell's own value.
+/// - On a face or vertex shared by solid cells: the flux-consistent weighted mean
+///   T = Σ (k_c/d_c) T_c / Σ (k_c/d_c) over the adjacent solids, with d_c the distance from the
+///   point to the centre of cell c. On a face between two cells this is exactly the interface
+///   temperature that makes the two half-cell fluxes equal; at a multi-material vertex it lets a
+///   highly conducting material dominate, as it physically does.
+/// - On a surface exposed to a zone: the surface temperature of each adjacent cell,
+///   T_s = T_c − (T_c − T_zone)(d/k)/(d/k + R_s), averaged. Returns `None` outside all solids.
+pub fn point_temperature(
+    mesh: &Mesh,
+    net: &Network,
+    t: &[f64],
+    zone_t: &[f64],
+    x: f64,
+    z: f64,
+) -> Option<f64> {
+    let g = &mesh.grid;
+    let eps = 1e-9;
+    let on = |v: f64, edges: &[f64]| edges.iter().position(|&e| (e - v).abs() < eps);
+    let i0 = g.find_x(x);
+    let j0 = g.find_z(z);
+    // Candidate cells whose closed rectangle holds the point.
+    let mut is = vec![i0];
+    if let Some(k) = on(x, &g.xe) {
+        is = Vec::new();
+        if k > 0 {
+            is.push(k - 1);
+        }
+        if k < g.nx() {
+            is.push(k);
+        }
+    }
+    let mut js = vec![j0];
+    if let Some(k) = on(z, &g.ze) {
+        js = Vec::new();
+        if k > 0 {
+            js.push(k - 1);
+        }
+        if k < g.nz() {
+            js.push(k);
+        }
+    }
+    let k_of = |p: usize| net.materials[net.mat[p]].conductivity(t[p]);
+    // Surfaces: faces of adjacent solids towards zones through which the point lies.
+    let mut surf = Vec::new();
+    for bf in &net.bfaces {
+        let id = net.cell_of[bf.p];
+        let (i, j) = (id % g.nx(), id / g.nx());
+        let (fx0, fx1, fz0, fz1) = match bf.side {
+            Side::Left => (g.xe[i], g.xe[i], g.ze[j], g.ze[j + 1]),
+            Side::Right => (g.xe[i + 1], g.xe[i + 1], g.ze[j], g.ze[j + 1]),
+            Side::Top => (g.xe[i], g.xe[i + 1], g.ze[j], g.ze[j]),
+            Side::Bottom => (g.xe[i], g.xe[i + 1], g.ze[j + 1], g.ze[j + 1]),
+        };
+        if x >= fx0 - eps && x <= fx1 + eps && z >= fz0 - eps && z <= fz1 + eps {
+            let rc = bf.d / k_of(bf.p);
+            let tz = zone_t[bf.zone];
+            surf.push(t[bf.p] - (t[bf.p] - tz) * rc / (rc + bf.r));
+        }
+    }
+    if !surf.is_empty() {
+        return Some(surf.iter().sum::<f64>() / surf.len() as f64);
+    }
+    let mut cells = Vec::new();
+    for &j in &js {
+        for &i in &is {
+            let p = net.unk_of[g.id(i, j)];
+            if p != usize::MAX {
+                cells.push((i, j, p));
+            }
+        }
+    }
+    if cells.is_empty() {
+        return None;
+    }
+    if cells.len() == 1 && is.len() == 1 && js.len() == 1 {
+        let (i, j, p) = cells[0];
+        return Some(bilinear(mesh, net, t, i, j, p, x, z).unwrap_or(t[p]));
+    }
+    let (mut sw, mut st) = (0.0, 0.0);
+    for &(i, j, p) in &cells {
+        let d = ((g.xc(i) - x).powi(2) + (g.zc(j) - z).powi(2)).sqrt().max(1e-12);
+        let w = k_of(p) / d;
+        sw += w;
+        st += w * t[p];
+    }
+    Some(st / sw)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn bilinear(
+    mesh: &Mesh,
+    net: &Network,
+    t: &[f64],
+    i: usize,
+    j: usize,
+    p: usize,
+    x: f64,
+    z: f64,
+) -> Option<f64> {
+    let g = &mesh.grid;
+    let ia = if x < g.xc(i) { i.checked_sub(1)? } else { i };
+    let ja = if z < g.zc(j) { j.checked_sub(1)? } else { j };
+    if ia + 1 >= g.nx() || ja + 1 >= g.nz() {
+        return None;
+    }
+    let m = net.mat[p];
+    let mut v = [[0.0; 2]; 2];
+    for (a, row) in v.iter_mut().enumerate() {
+        for (b, val) in row.iter_mut().enumerate() {
+            let id = g.id(ia + b, ja + a);
+            match mesh.cells[id] {
+                Cell::Solid(mm) if mm == m => *val = t[net.unk_of[id]],
+                _ => return None,
+            }
+        }
+    }
+    let fx = (x - g.xc(ia)) / (g.xc(ia + 1) - g.xc(ia));
+    let fz = (z - g.zc(ja)) / (g.zc(ja + 1) - g.zc(ja));
+    Some(
+        (1.0 - fz) * ((1.0 - fx) * v[0][0] + fx * v[0][1])
+            + fz * ((1.0 - fx) * v[1][0] + fx * v[1][1]),
+    )
+}
+
+/// Deepest point of column `i` at or below `z_from` (m) where the temperature is below `t_line`
+/// (°C), found by linear interpolation between cell centres; `None` if no solid cell of the column
+/// below `z_from` is colder than `t_line`.
+///
+/// The frost line is the isotherm `t_line` (the midpoint of the soil's freezing interval). A cell
+/// colder than `t_line` counts as frozen; the front lies between its centre and the centre of the
+/// next cell down.
+pub fn frost_depth_column(mesh: &Mesh, net: &Network, t: &[f64], i: usize, z_from: f64, t_line: f64) -> Option<f64> {
+    let g = &mesh.grid;
+    let temp = |j: usize| {
+        let p = net.unk_of[g.id(i, j)];
+        (p != usize::MAX).then(|| t[p])
+    };
+    let jdeep = (0..g.nz()).rev().find(|&j| g.ze[j + 1] > z_from && temp(j).is_some_and(|v| v < t_line))?;
+    let z = match (jdeep + 1 < g.nz()).then(|| temp(jdeep + 1)).flatten() {
+        Some(tb) => {
+            let ta = temp(jdeep).unwrap_or(t_line);
+            let f = ((t_line - ta) / (tb - ta)).clamp(0.0, 1.0);
+            g.zc(jdeep) + f * (g.zc(jdeep + 1) - g.zc(jdeep))
+        }
+        None => g.ze[jdeep + 1],
+    };
+    Some(z.max(z_from))
+}
+
+/// Least-squares fit of v(t) = m + a cos(ωt) + b sin(ωt); returns (mean, amplitude, phase φ) with
+/// v = m + A cos(ωt − φ).
+pub fn fit_sinusoid(times: &[f64], values: &[f64], omega: f64) -> (f64, f64, f64) {
+    // Normal equations for the 3 basis functions.
+    let mut ata = [[0.0; 3]; 3];
+    let mut atb = [0.0; 3];
+    for (&t, &v) in times.iter().zip(values) {
+        let row = [1.0, (omega * t).cos(), (omega * t).sin()];
+        for r in 0..3 {
+            atb[r] += row[r] * v;
+            for c in 0..3 {
+                ata[r][c] += row[r] * row[c];
+            }
+        }
+    }
+    let x = solve3(ata, atb);
+    let amp = (x[1] * x[1] + x[2] * x[2]).sqrt();
+    (x[0], amp, x[2].atan2(x[1]))
+}
+
+fn solve3(mut a: [[f64; 3]; 3], mut b: [f64; 3]) -> [f64; 3] {
+    for c in 0..3 {
+        let piv = (c..3).max_by(|&r, &s| a[r][c].abs().total_cmp(&a[s][c].abs())).unwrap_or(c);
+        a.swap(c, piv);
+        b.swap(c, piv);
+        for r in c + 1..3 {
+            let f = a[r][c] / a[c][c];
+            for k in c..3 {
+                a[r][k] -= f * a[c][k];
+            }
+            b[r] -= f * b[c];
+        }
+    }
+    let mut x = [0.0; 3];
+    for r in (0..3).rev() {
+        let s: f64 = (r + 1..3).map(|k| a[r][k] * x[k]).sum();
+        x[r] = (b[r] - s) / a[r][r];
+    }
+    x
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sinusoid_fit_recovers_parameters() {
+        let w = 2.0 * std::f64::consts::PI / 365.0;
+        let ts: Vec<f64> = (0..365).map(|d| d as f64).collect();
+        let vs: Vec<f64> = ts.iter().map(|&t| 4.0 + 12.0 * (w * t - 0.7).cos()).collect();
+        let (m, a, p) = fit_sinusoid(&ts, &vs, w);
+        assert!((m - 4.0).abs() < 1e-9 && (a - 12.0).abs() < 1e-9 && (p - 0.7).abs() < 1e-9);
+    }
+}

@@ -1,0 +1,2 @@
+//! Physical properties: materials and their enthalpy curves. Knows nothing of meshes.
+pub mod material;

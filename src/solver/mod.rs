@@ -1,0 +1,319 @@
+//! Steady and transient solvers on a [`Network`].
+//!
+//! # Transient scheme (backward Euler, Newton in the enthalpy state)
+//! For every unknown p with volume V_p (m³/m), the residual of step n → n+1 is
+//!
+//! ```text
+//! R_p(H) = V_p (H_p − H_pⁿ)/Δt + Σ_faces G_f (T_p − T_q) + Σ_bfaces G_b (T_p − T_zone)     (W/m)
+//! ```
+//!
+//! with T = β(H) from the material's enthalpy curve and the conductances G from the conductivities
+//! at the start of the step (lagged one step; the same G on both sides of a face keeps the scheme
+//! conservative). Each Newton iteration evaluates T_k = β(H_k) and the segment capacity
+//! C_k = 1/β′(H_k) from the enthalpy state, solves the symmetric positive-definite system
+//!
+//! ```text
+//! (diag(V C_k / Δt) + K) δT = −R(H_k)
+//! ```
+//!
+//! and updates H_{k+1} = H_k + C_k ∘ δT (never T directly). Writing δT = β′ δH makes this exactly
+//! Newton's method in H, so latent heat is neither lost nor created: the energy error of a step is
+//! Σ R_p Δt at the converged state. Stopping test: max_p |R_p| Δt /(V_p C_p) < `tol_k` (a
+//! temperature-equivalent residual, K). A step that fails to converge is halved (recursively).
+//! References: Swaminathan & Voller (1992); Nedjar (2002); see DEVELOPERS.md.
+//!
+//! # Steady state
+//! K(T) T = b with conductivities updated by Picard iteration until max |ΔT| < `tol_k`.
+pub mod linsys;
+pub mod network;
+
+use crate::error::{Error, Result};
+use linsys::SpdSolver;
+pub use network::Network;
+
+/// Solver parameters.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SolverParams {
+    /// Convergence tolerance on the temperature-equivalent residual, K. Default 1e-6 K.
+    pub tol_k: f64,
+    /// Newton iterations per step before the step is halved. Default 20.
+    pub max_newton: usize,
+    /// Maximum recursive halvings of one step. Default 8.
+    pub max_halvings: usize,
+    /// Picard iterations for the steady state. Default 100.
+    pub max_picard: usize,
+}
+
+impl Default for SolverParams {
+    fn default() -> Self {
+        SolverParams { tol_k: 1e-6, max_newton: 20, max_halvings: 8, max_picard: 100 }
+    }
+}
+
+/// Counters of the work done.
+#[derive(Debug, Clone, Copy, Default, PartialEq, serde::Serialize)]
+pub struct SolverStats {
+    /// Time steps taken (as requested by the caller).
+    pub steps: usize,
+    /// Sub-steps after halvings.
+    pub substeps: usize,
+    /// Newton iterations (linear solves in the transient).
+    pub newton_iterations: usize,
+    /// Numeric Cholesky factorisations.
+    pub factorizations: usize,
+    /// Triangular solves.
+    pub solves: usize,
+    /// Step halvings.
+    pub halvings: usize,
+    /// Largest temperature-equivalent residual accepted, K.
+    pub max_residual_k: f64,
+}
+
+/// Heat exchanged during one step, J per metre of section.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StepEnergy {
+    /// Heat into the solid from each zone, J/m.
+    pub from_zone: Vec<f64>,
+    /// Increase of stored heat Σ V ΔH, J/m.
+    pub stored: f64,
+    /// Step length, s.
+    pub dt: f64,
+}
+
+/// Result of a steady solve.
+#[derive(Debug, Clone)]
+pub struct Steady {
+    /// Temperatures of the unknowns, °C.
+    pub t: Vec<f64>,
+    /// Heat flow into the solid from each zone, W/m.
+    pub from_zone: Vec<f64>,
+    /// Picard iterations used.
+    pub iterations: usize,
+    /// Relative imbalance Σ flows / Σ |flows|.
+    pub balance_error: f64,
+}
+
+/// Solver working storage for one network.
+pub struct Solver<'a> {
+    /// The network.
+    pub net: &'a Network,
+    /// Parameters.
+    pub params: SolverParams,
+    lin: SpdSolver,
+    k: Vec<f64>,
+    gf: Vec<f64>,
+    gb: Vec<f64>,
+    t: Vec<f64>,
+    cap: Vec<f64>,
+    vals: Vec<f64>,
+    r: Vec<f64>,
+    h_old: Vec<f64>,
+    stats: SolverStats,
+}
+
+impl<'a> Solver<'a> {
+    /// Set up (symbolic factorisation) for `net`.
+    pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
+        let lin = SpdSolver::new(net.n, net.col_ptr.clone(), net.row_idx.clone())?;
+        Ok(Solver {
+            lin,
+            k: vec![0.0; net.n],
+            gf: vec![0.0; net.faces.len()],
+            gb: vec![0.0; net.bfaces.len()],
+            t: vec![0.0; net.n],
+            cap: vec![0.0; net.n],
+            vals: vec![0.0; net.row_idx.len()],
+            r: vec![0.0; net.n],
+            h_old: vec![0.0; net.n],
+            stats: SolverStats::default(),
+            net,
+            params,
+        })
+    }
+
+    /// Work counters so far.
+    pub fn stats(&self) -> SolverStats {
+        let mut s = self.stats;
+        s.factorizations = self.lin.factorizations;
+        s.solves = self.lin.solves;
+        s
+    }
+
+    fn update_conductances(&mut self, t: &[f64]) {
+        self.net.conductivities(t, &mut self.k);
+        self.net.face_conductances(&self.k, &mut self.gf);
+        self.net.boundary_conductances(&self.k, &mut self.gb);
+    }
+
+    /// Fill `vals` with diag(extra) + K.
+    fn assemble(&mut self, extra_diag: impl Fn(usize) -> f64) {
+        let net = self.net;
+        for p in 0..net.n {
+            self.vals[net.diag_slot[p]] = extra_diag(p);
+        }
+        for (f, face) in net.faces.iter().enumerate() {
+            let g = self.gf[f];
+            self.vals[net.diag_slot[face.p]] += g;
+            self.vals[net.diag_slot[face.q]] += g;
+            self.vals[net.face_slot[f]] = -g;
+        }
+        for (b, bf) in net.bfaces.iter().enumerate() {
+            self.vals[net.diag_slot[bf.p]] += self.gb[b];
+        }
+    }
+
+    /// Steady state for constant zone temperatures `zone_t` (°C), starting from `t0` (or a uniform
+    /// field at the mean zone temperature).
+    pub fn steady(&mut self, zone_t: &[f64], t0: Option<&[f64]>) -> Result<Steady> {
+        let net = self.net;
+        let mut t = match t0 {
+            Some(t0) => t0.to_vec(),
+            None => vec![zone_t.iter().sum::<f64>() / zone_t.len().max(1) as f64; net.n],
+        };
+        let mut iterations = 0;
+        loop {
+            iterations += 1;
+            self.update_conductances(&t);
+            self.assemble(|_| 0.0);
+            let mut rhs = vec![0.0; net.n];
+            for (b, bf) in net.bfaces.iter().enumerate() {
+                rhs[bf.p] += self.gb[b] * zone_t[bf.zone];
+            }
+            self.lin.solve(&self.vals, &mut rhs)?;
+            let change = rhs.iter().zip(&t).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
+            t = rhs;
+            if change < self.params.tol_k || !net.materials.iter().any(|m| m.k_frozen != m.k_unfrozen) {
+                break;
+            }
+            if iterations >= self.params.max_picard {
+                return Err(Error::NoConvergence {
+                    step: 0,
+                    time_s: 0.0,
+                    iterations,
+                    residual_k: change,
+                    halvings: 0,
+                });
+            }
+        }
+        let mut from_zone = vec![0.0; net.n_zones];
+        for (b, bf) in net.bfaces.iter().enumerate() {
+            from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - t[bf.p]);
+        }
+        let sum: f64 = from_zone.iter().sum();
+        let abs: f64 = from_zone.iter().map(|v| v.abs()).sum();
+        Ok(Steady {
+            t,
+            from_zone,
+            iterations,
+            balance_error: if abs > 0.0 { sum / abs } else { 0.0 },
+        })
+    }
+
+    /// Advance enthalpies `h` (J/m³) by `dt` seconds with zone temperatures `zone_t` (°C) held over
+    /// the step. `time_s` is only used in error reports.
+    pub fn step(&mut self, h: &mut [f64], zone_t: &[f64], dt: f64, time_s: f64) -> Result<StepEnergy> {
+        self.stats.steps += 1;
+        let mut e = StepEnergy { from_zone: vec![0.0; self.net.n_zones], stored: 0.0, dt };
+        self.step_rec(h, zone_t, dt, time_s, 0, &mut e)?;
+        Ok(e)
+    }
+
+    fn step_rec(
+        &mut self,
+        h: &mut [f64],
+        zone_t: &[f64],
+        dt: f64,
+        time_s: f64,
+        depth: usize,
+        e: &mut StepEnergy,
+    ) -> Result<()> {
+        match self.try_step(h, zone_t, dt, e) {
+            Ok(()) => Ok(()),
+            Err((iters, res)) => {
+                if depth >= self.params.max_halvings {
+                    return Err(Error::NoConvergence {
+                        step: self.stats.steps,
+                        time_s,
+                        iterations: iters,
+                        residual_k: res,
+                        halvings: depth,
+                    });
+                }
+                self.stats.halvings += 1;
+                self.step_rec(h, zone_t, 0.5 * dt, time_s, depth + 1, e)?;
+                self.step_rec(h, zone_t, 0.5 * dt, time_s + 0.5 * dt, depth + 1, e)
+            }
+        }
+    }
+
+    /// One backward-Euler step; on failure `h` is restored and (iterations, residual) returned.
+    fn try_step(
+        &mut self,
+        h: &mut [f64],
+        zone_t: &[f64],
+        dt: f64,
+        e: &mut StepEnergy,
+    ) -> std::result::Result<(), (usize, f64)> {
+        let net = self.net;
+        self.stats.substeps += 1;
+        self.h_old.copy_from_slice(h);
+        // Conductivities lagged: from the state at the start of the step.
+        net.temperatures(h, &mut self.t);
+        let t_start = std::mem::take(&mut self.t);
+        self.update_conductances(&t_start);
+        self.t = t_start;
+        let mut last_res = f64::INFINITY;
+        for iter in 0..=self.params.max_newton {
+            // T, C from the enthalpy state; residual.
+            for p in 0..net.n {
+                let (t, c) = net.materials[net.mat[p]].temperature(h[p]);
+                self.t[p] = t;
+                self.cap[p] = c;
+                self.r[p] = net.volume[p] * (h[p] - self.h_old[p]) / dt;
+            }
+            for (f, face) in net.faces.iter().enumerate() {
+                let q = self.gf[f] * (self.t[face.p] - self.t[face.q]);
+                self.r[face.p] += q;
+                self.r[face.q] -= q;
+            }
+            for (b, bf) in net.bfaces.iter().enumerate() {
+                self.r[bf.p] += self.gb[b] * (self.t[bf.p] - zone_t[bf.zone]);
+            }
+            let res = (0..net.n)
+                .map(|p| (self.r[p] * dt / (net.volume[p] * self.cap[p])).abs())
+                .fold(0.0, f64::max);
+            last_res = res;
+            if res < self.params.tol_k {
+                self.stats.max_residual_k = self.stats.max_residual_k.max(res);
+                break;
+            }
+            if iter == self.params.max_newton {
+                h.copy_from_slice(&self.h_old);
+                return Err((iter, res));
+            }
+            // Newton step in H written in δT: (diag(V C/Δt) + K) δT = −R.
+            let (vol, cap) = (&net.volume, std::mem::take(&mut self.cap));
+            self.assemble(|p| vol[p] * cap[p] / dt);
+            let mut rhs: Vec<f64> = self.r.iter().map(|v| -v).collect();
+            if self.lin.solve(&self.vals, &mut rhs).is_err() {
+                h.copy_from_slice(&self.h_old);
+                self.cap = cap;
+                return Err((iter, f64::NAN));
+            }
+            for p in 0..net.n {
+                h[p] += cap[p] * rhs[p];
+            }
+            self.cap = cap;
+            self.stats.newton_iterations += 1;
+        }
+        if !last_res.is_finite() {
+            h.copy_from_slice(&self.h_old);
+            return Err((0, last_res));
+        }
+        for (b, bf) in net.bfaces.iter().enumerate() {
+            e.from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
+        }
+        e.stored += (0..net.n).map(|p| net.volume[p] * (h[p] - self.h_old[p])).sum::<f64>();
+        Ok(())
+    }
+}
