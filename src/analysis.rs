@@ -130,27 +130,39 @@ fn bilinear(
     )
 }
 
-/// Deepest point of column `i` at or below `z_from` (m) where the temperature is below `t_line`
-/// (°C), found by linear interpolation between cell centres; `None` if no solid cell of the column
-/// below `z_from` is colder than `t_line`.
+/// Deepest frozen point of column `i` at or below `z_from` (m); `None` if nothing there is frozen.
 ///
-/// The frost line is the isotherm `t_line` (the midpoint of the soil's freezing interval). A cell
-/// colder than `t_line` counts as frozen; the front lies between its centre and the centre of the
-/// next cell down.
+/// The frost line is the isotherm `t_line` (°C; the midpoint of the soil's freezing interval). The
+/// deepest cell that holds any ice (T below its material's freezing temperature; for a material
+/// without water, T below `t_line`) carries the front:
+/// - if that cell is only partly frozen, the front lies inside it at its frozen fraction φ,
+///   z = z_top + φ Δz (the enthalpy method's own front position, first-order exact for a sharp
+///   front moving down through the cell);
+/// - if it is fully frozen, the front lies between its centre and the next centre down, where
+///   linear interpolation of the temperature crosses `t_line`.
 pub fn frost_depth_column(mesh: &Mesh, net: &Network, t: &[f64], i: usize, z_from: f64, t_line: f64) -> Option<f64> {
     let g = &mesh.grid;
-    let temp = |j: usize| {
+    let unk = |j: usize| {
         let p = net.unk_of[g.id(i, j)];
-        (p != usize::MAX).then(|| t[p])
+        (p != usize::MAX).then_some(p)
     };
-    let jdeep = (0..g.nz()).rev().find(|&j| g.ze[j + 1] > z_from && temp(j).is_some_and(|v| v < t_line))?;
-    let z = match (jdeep + 1 < g.nz()).then(|| temp(jdeep + 1)).flatten() {
-        Some(tb) => {
-            let ta = temp(jdeep).unwrap_or(t_line);
-            let f = ((t_line - ta) / (tb - ta)).clamp(0.0, 1.0);
-            g.zc(jdeep) + f * (g.zc(jdeep + 1) - g.zc(jdeep))
+    let holds_ice = |p: usize| {
+        let m = &net.materials[net.mat[p]];
+        if m.freezes() { t[p] < m.t_freeze } else { t[p] < t_line }
+    };
+    let jdeep = (0..g.nz()).rev().find(|&j| g.ze[j + 1] > z_from && unk(j).is_some_and(holds_ice))?;
+    let p = unk(jdeep)?;
+    let m = &net.materials[net.mat[p]];
+    let z = if m.freezes() && t[p] > m.t_solidus() {
+        g.ze[jdeep] + (1.0 - m.unfrozen_fraction(t[p])) * g.dz(jdeep)
+    } else {
+        match (jdeep + 1 < g.nz()).then(|| unk(jdeep + 1)).flatten() {
+            Some(q) => {
+                let f = ((t_line - t[p]) / (t[q] - t[p])).clamp(0.0, 1.0);
+                g.zc(jdeep) + f * (g.zc(jdeep + 1) - g.zc(jdeep))
+            }
+            None => g.ze[jdeep + 1],
         }
-        None => g.ze[jdeep + 1],
     };
     Some(z.max(z_from))
 }

@@ -1,0 +1,4 @@
+//! The integration-test binary: verification against published references, the CLI, the bundled
+//! examples and regression checks.
+mod common;
+mod verification;
