@@ -1,5 +1,161 @@
-//! Command-line interface.
-/// Run the CLI and return the process exit code.
+//! Command-line interface: the only module that knows argv, stdout, stderr and progress bars.
+use crate::case::{load_case, Case, Fineness};
+use crate::error::Error;
+use crate::geometry::Section;
+use crate::report;
+use crate::simulate::{self, Progress};
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use std::path::PathBuf;
+
+/// Ground heat loss and frost depth under slab-on-ground foundations, from a 2D freezing-soil model.
+#[derive(Parser, Debug)]
+#[command(name = "frostline", version, about, propagate_version = true)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// Subcommands.
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Simulate a case: steady start, spin-up to a periodic year, results and files.
+    #[command(after_help = "Examples:\n  frostline run examples/kettle-hollow-house.toml --out out/kettle\n  \
+        frostline run case.toml --out out/quick --mesh coarse --max-spin-up-years 3 --quiet\n\n\
+        Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out.")]
+    Run(RunArgs),
+    /// Validate a case and print the mesh size and derived quantities, without solving.
+    #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
+    Check {
+        /// The case file (TOML).
+        case: PathBuf,
+    },
+}
+
+/// Mesh fineness on the command line.
+#[derive(ValueEnum, Clone, Copy, Debug)]
+pub enum MeshArg {
+    /// 5 cm cells at edges.
+    Coarse,
+    /// 2 cm cells at edges.
+    Normal,
+    /// 1 cm cells at edges.
+    Fine,
+}
+
+/// Arguments of `run`.
+#[derive(Args, Debug)]
+pub struct RunArgs {
+    /// The case file (TOML).
+    pub case: PathBuf,
+    /// Output directory (created if missing).
+    #[arg(long, short)]
+    pub out: PathBuf,
+    /// Override the case's mesh fineness.
+    #[arg(long, value_enum)]
+    pub mesh: Option<MeshArg>,
+    /// Override the case's maximum number of spin-up years.
+    #[arg(long)]
+    pub max_spin_up_years: Option<usize>,
+    /// No progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+/// Run the CLI and return the process exit code (0 ok, 2 bad input or usage, 1 failure).
 pub fn main_exit_code() -> i32 {
-    0
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return e.exit_code();
+        }
+    };
+    match execute(cli) {
+        Ok(()) => 0,
+        Err(e) => {
+            eprintln!("error: {e}");
+            if e.is_input() {
+                2
+            } else {
+                1
+            }
+        }
+    }
+}
+
+fn execute(cli: Cli) -> Result<(), Error> {
+    match cli.command {
+        Command::Check { case } => {
+            let case = load_case(&case)?;
+            print!("{}", check_text(&case)?);
+            Ok(())
+        }
+        Command::Run(a) => {
+            let mut case = load_case(&a.case)?;
+            if let Some(m) = a.mesh {
+                case.simulation.mesh = match m {
+                    MeshArg::Coarse => Fineness::Coarse,
+                    MeshArg::Normal => Fineness::Normal,
+                    MeshArg::Fine => Fineness::Fine,
+                };
+            }
+            if let Some(y) = a.max_spin_up_years {
+                if !(1..=100).contains(&y) {
+                    return Err(Error::Input {
+                        location: crate::error::Location::file_only("command line"),
+                        key: "--max-spin-up-years".into(),
+                        message: format!("{y} is out of range; allowed: 1 to 100"),
+                    });
+                }
+                case.simulation.max_spin_up_years = y;
+            }
+            let bar = if a.quiet {
+                indicatif::ProgressBar::hidden()
+            } else {
+                let b = indicatif::ProgressBar::new(((case.simulation.max_spin_up_years + 1) * 365) as u64);
+                if let Ok(style) = indicatif::ProgressStyle::with_template("{spinner} year {msg} [{bar:30}] {elapsed}")
+                {
+                    b.set_style(style.progress_chars("=> "));
+                }
+                b
+            };
+            let mut cb = |p: Progress| {
+                if p.day == 1 {
+                    bar.set_message(format!("{}", p.year + 1));
+                }
+                bar.set_position((p.year * 365 + p.day) as u64);
+            };
+            let result = simulate::run(&case, &mut cb);
+            bar.finish_and_clear();
+            let result = result?;
+            let files = report::write_outputs(&case, &result, &a.out)?;
+            print!("{}", report::result_table(&case, &result));
+            println!("\n  Files in {}:", a.out.display());
+            for f in files {
+                println!("    {}", f.file_name().map(|s| s.to_string_lossy()).unwrap_or_default());
+            }
+            Ok(())
+        }
+    }
+}
+
+/// The text `check` prints: geometry, mesh, and the closed-form estimates.
+pub fn check_text(case: &Case) -> Result<String, Error> {
+    let section = Section::from_case(case)?;
+    let mesh = section.mesh(case);
+    let c = simulate::cross_check(case);
+    let mut s = format!("{}: case is valid\n", case.name);
+    s += &format!("  B' = {:.3} m (A {:.1} m², P {:.1} m)\n", case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m);
+    s += &format!("  section: x {:.2} … {:.2} m, z {:.2} … {:.2} m\n", section.x_min, section.x_max, section.z_top, section.z_bottom);
+    s += &format!("  mesh ({:?}): {} × {} grid, {} solid cells\n", case.simulation.mesh, mesh.grid.nx(), mesh.grid.nz(), mesh.solid_cells());
+    s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
+        case.strata[0].material.k_unfrozen, case.strata[0].material.k_frozen,
+        case.strata[0].material.c_unfrozen / 1e6, case.strata[0].material.c_frozen / 1e6, case.strata[0].material.latent / 1e6);
+    s += &format!("  design air freezing index {:.0} °C·d over {:.0} d\n", c.freezing_index_c_days, c.freezing_season_days);
+    s += &format!("  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
+        c.iso13370_dt_m, c.iso13370_u0_w_per_m2k, c.iso13370_edge_psi_w_per_mk, c.iso13370_u_value_w_per_m2k);
+    s += &format!("  open-ground frost depth: Stefan {:.2} m, modified Berggren {:.2} m; footing base {:.2} m\n",
+        c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m, case.footing.base_depth_m);
+    Ok(s)
 }

@@ -6,12 +6,16 @@
 //! methods used as cross-checks. The library never prints; only [`cli`] does.
 #![deny(missing_docs)]
 
+pub mod case;
 pub mod error;
+pub mod geometry;
 pub mod mesh;
 pub mod physics;
 pub mod solver;
 pub mod analysis;
 pub mod methods;
+pub mod report;
+pub mod simulate;
 pub mod cli;
 
 pub use error::{Error, Result};

@@ -6,8 +6,9 @@
 use crate::error::{Error, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::sparse::linalg::cholesky::{
-    factorize_symbolic_cholesky, LltRef, SymbolicCholesky, SymmetricOrdering,
+    factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky, SymmetricOrdering,
 };
+use faer::sparse::linalg::SupernodalThreshold;
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMat};
 use faer::{Conj, MatMut, Par, Side};
 
@@ -27,18 +28,85 @@ pub struct SpdSolver {
     pub solves: usize,
 }
 
+/// Geometric nested-dissection order of the unknowns of an nx × nz grid (`unk_of[j·nx + i]` =
+/// unknown or `usize::MAX`): bisect the longer side of a box, order both halves, then the separator
+/// line last; boxes of at most 32 cells are ordered row by row.
+pub fn nested_dissection(nx: usize, nz: usize, unk_of: &[usize]) -> Vec<usize> {
+    fn rec(b: (usize, usize, usize, usize), nx: usize, unk_of: &[usize], out: &mut Vec<usize>) {
+        let (i0, i1, j0, j1) = b;
+        if i1 <= i0 || j1 <= j0 {
+            return;
+        }
+        let push = |i: usize, j: usize, out: &mut Vec<usize>| {
+            let p = unk_of[j * nx + i];
+            if p != usize::MAX {
+                out.push(p);
+            }
+        };
+        if (i1 - i0) * (j1 - j0) <= 32 {
+            for j in j0..j1 {
+                for i in i0..i1 {
+                    push(i, j, out);
+                }
+            }
+        } else if i1 - i0 >= j1 - j0 {
+            let m = (i0 + i1) / 2;
+            rec((i0, m, j0, j1), nx, unk_of, out);
+            rec((m + 1, i1, j0, j1), nx, unk_of, out);
+            for j in j0..j1 {
+                push(m, j, out);
+            }
+        } else {
+            let m = (j0 + j1) / 2;
+            rec((i0, i1, j0, m), nx, unk_of, out);
+            rec((i0, i1, m + 1, j1), nx, unk_of, out);
+            for i in i0..i1 {
+                push(i, m, out);
+            }
+        }
+    }
+    let mut out = Vec::new();
+    rec((0, nx, 0, nz), nx, unk_of, &mut out);
+    out
+}
+
 impl SpdSolver {
     /// Analyse the pattern: `col_ptr` (n + 1) and `row_idx` of the lower triangle, rows sorted.
-    pub fn new(n: usize, col_ptr: Vec<usize>, row_idx: Vec<usize>) -> Result<Self> {
+    /// `order`, if given, is a fill-reducing elimination order (`order[k]` = the unknown eliminated
+    /// k-th), used with the supernodal factorisation; otherwise faer's AMD ordering is used.
+    pub fn new(n: usize, col_ptr: Vec<usize>, row_idx: Vec<usize>, order: Option<&[usize]>) -> Result<Self> {
         let nnz = row_idx.len();
         let pattern = SymbolicSparseColMat::new_checked(n, n, col_ptr, None, row_idx);
-        let chol = factorize_symbolic_cholesky(
-            pattern.as_ref(),
-            Side::Lower,
-            SymmetricOrdering::Amd,
-            Default::default(),
-        )
-        .map_err(|e| Error::NotPositiveDefinite(format!("symbolic analysis: {e:?}")))?;
+        let sym_err = |e| Error::NotPositiveDefinite(format!("symbolic analysis: {e:?}"));
+        let chol = match order {
+            Some(fwd) => {
+                let mut inv = vec![0usize; n];
+                for (k, &p) in fwd.iter().enumerate() {
+                    inv[p] = k;
+                }
+                let perm = faer::perm::PermRef::new_checked(fwd, &inv, n);
+                factorize_symbolic_cholesky(
+                    pattern.as_ref(),
+                    Side::Lower,
+                    SymmetricOrdering::Custom(perm),
+                    CholeskySymbolicParams {
+                        supernodal_flop_ratio_threshold: SupernodalThreshold::FORCE_SUPERNODAL,
+                        ..Default::default()
+                    },
+                )
+                .map_err(sym_err)?
+            }
+            None => factorize_symbolic_cholesky(
+                pattern.as_ref(),
+                Side::Lower,
+                SymmetricOrdering::Amd,
+                CholeskySymbolicParams {
+                    supernodal_flop_ratio_threshold: SupernodalThreshold::AUTO,
+                    ..Default::default()
+                },
+            )
+            .map_err(sym_err)?,
+        };
         let fbuf = MemBuffer::new(chol.factorize_numeric_llt_scratch::<f64>(Par::Seq, Default::default()));
         let sbuf = MemBuffer::new(chol.solve_in_place_scratch::<f64>(1, Par::Seq));
         Ok(SpdSolver {
@@ -53,6 +121,11 @@ impl SpdSolver {
             factorizations: 0,
             solves: 0,
         })
+    }
+
+    /// Number of stored values of the Cholesky factor (fill).
+    pub fn factor_len(&self) -> usize {
+        self.chol.len_val()
     }
 
     /// Solve A x = rhs in place; `vals` are A's lower-triangle values in pattern order.
@@ -97,7 +170,7 @@ mod tests {
         let col_ptr = vec![0, 2, 4, 5];
         let row_idx = vec![0, 1, 1, 2, 2];
         let vals = vec![4.0, -1.0, 4.0, -1.0, 4.0];
-        let mut s = SpdSolver::new(3, col_ptr, row_idx).unwrap();
+        let mut s = SpdSolver::new(3, col_ptr, row_idx, None).unwrap();
         let mut b = vec![3.0, 2.0, 3.0];
         s.solve(&vals, &mut b).unwrap();
         for v in &b {

@@ -108,13 +108,17 @@ pub struct Solver<'a> {
     vals: Vec<f64>,
     r: Vec<f64>,
     h_old: Vec<f64>,
+    /// Enthalpy change of the last accepted step and its length (predictor).
+    dh_prev: Vec<f64>,
+    dt_prev: f64,
     stats: SolverStats,
 }
 
 impl<'a> Solver<'a> {
     /// Set up (symbolic factorisation) for `net`.
     pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
-        let lin = SpdSolver::new(net.n, net.col_ptr.clone(), net.row_idx.clone())?;
+        let order = linsys::nested_dissection(net.nx, net.nz, &net.unk_of);
+        let lin = SpdSolver::new(net.n, net.col_ptr.clone(), net.row_idx.clone(), Some(&order))?;
         Ok(Solver {
             lin,
             k: vec![0.0; net.n],
@@ -125,6 +129,8 @@ impl<'a> Solver<'a> {
             vals: vec![0.0; net.row_idx.len()],
             r: vec![0.0; net.n],
             h_old: vec![0.0; net.n],
+            dh_prev: vec![0.0; net.n],
+            dt_prev: 0.0,
             stats: SolverStats::default(),
             net,
             params,
@@ -262,6 +268,14 @@ impl<'a> Solver<'a> {
         let t_start = std::mem::take(&mut self.t);
         self.update_conductances(&t_start);
         self.t = t_start;
+        // Predictor: start Newton from the linear extrapolation of the last step's change, which
+        // usually puts every cell in its final segment of the enthalpy curve, so one
+        // factorisation suffices. It changes only the starting point, not the converged state.
+        if self.dt_prev == dt {
+            for p in 0..net.n {
+                h[p] += self.dh_prev[p];
+            }
+        }
         let mut last_res = f64::INFINITY;
         for iter in 0..=self.params.max_newton {
             // T, C from the enthalpy state; residual.
@@ -289,6 +303,7 @@ impl<'a> Solver<'a> {
             }
             if iter == self.params.max_newton {
                 h.copy_from_slice(&self.h_old);
+                self.dt_prev = 0.0;
                 return Err((iter, res));
             }
             // Newton step in H written in δT: (diag(V C/Δt) + K) δT = −R.
@@ -314,6 +329,10 @@ impl<'a> Solver<'a> {
             e.from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
         }
         e.stored += (0..net.n).map(|p| net.volume[p] * (h[p] - self.h_old[p])).sum::<f64>();
+        for p in 0..net.n {
+            self.dh_prev[p] = h[p] - self.h_old[p];
+        }
+        self.dt_prev = dt;
         Ok(())
     }
 }

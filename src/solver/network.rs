@@ -60,6 +60,10 @@ pub struct Network {
     pub n: usize,
     /// Number of zones.
     pub n_zones: usize,
+    /// Grid columns.
+    pub nx: usize,
+    /// Grid rows.
+    pub nz: usize,
     /// Grid cell id of each unknown.
     pub cell_of: Vec<usize>,
     /// Unknown of each grid cell (`usize::MAX` for zone cells).
@@ -197,6 +201,8 @@ impl Network {
         Network {
             n,
             n_zones: mesh.zones.len(),
+            nx,
+            nz,
             cell_of,
             unk_of,
             volume,

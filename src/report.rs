@@ -1,0 +1,236 @@
+//! Output files of a run (summary.json, daily.csv, monthly.csv, probes.csv, field_<day>.csv) and
+//! the short result table. Every file is written to a temporary name and renamed, so a failed run
+//! never leaves a half-written file.
+use crate::case::Case;
+use crate::error::{Error, Result};
+use crate::simulate::{month_of, RunResult};
+use serde_json::json;
+use std::path::{Path, PathBuf};
+
+/// The caution carried by every report.
+pub const CAUTION: &str = "Results are engineering estimates from a 2D model with idealised soil and climate. \
+They do not replace the judgement of a licensed engineer; local codes and standards govern the design of \
+foundations and frost protection.";
+
+/// The coordinate convention, stated in file headers.
+pub const COORDINATES: &str =
+    "x horizontal, 0 at the exterior face of the foundation wall, positive outward; z depth below finished ground level, positive down";
+
+/// Headline numbers of a run.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Headline {
+    /// Annual ground heat loss, kWh (whole building).
+    pub annual_heat_loss_kwh: f64,
+    /// Mean heat loss, W.
+    pub mean_heat_loss_w: f64,
+    /// Largest daily-mean heat loss, W.
+    pub peak_heat_loss_w: f64,
+    /// Mean heat loss per metre of exposed perimeter, W/m.
+    pub heat_loss_per_perimeter_w_per_m: f64,
+    /// Annual mean loss / (A (mean indoor − mean outdoor)), W/(m²·K).
+    pub floor_u_value_w_per_m2k: f64,
+    /// Deepest frost in open ground, m.
+    pub frost_depth_open_ground_m: f64,
+    /// Deepest frost under the footing, m.
+    pub frost_depth_under_footing_m: f64,
+    /// Footing base depth minus frost depth under the footing, m.
+    pub frost_margin_m: f64,
+    /// Day of year of the deepest frost under the footing (open ground when none).
+    pub date_of_max_frost_depth: usize,
+}
+
+/// Compute the headline numbers.
+pub fn headline(case: &Case, r: &RunResult) -> Headline {
+    let y = r.final_year();
+    let mean_w = y.heat_loss_kwh * 1000.0 / 8760.0;
+    let peak = r.days.iter().map(|d| d.heat_loss_w).fold(f64::NEG_INFINITY, f64::max);
+    let dtemp = case.indoor_mean_c() - case.climate.mean_c;
+    let day_max = if y.max_frost_footing_m > 0.0 {
+        r.days.iter().max_by(|a, b| a.frost_footing_m.total_cmp(&b.frost_footing_m))
+    } else {
+        r.days.iter().max_by(|a, b| a.frost_open_m.total_cmp(&b.frost_open_m))
+    };
+    Headline {
+        annual_heat_loss_kwh: y.heat_loss_kwh,
+        mean_heat_loss_w: mean_w,
+        peak_heat_loss_w: peak,
+        heat_loss_per_perimeter_w_per_m: mean_w / case.building.exposed_perimeter_m,
+        floor_u_value_w_per_m2k: mean_w / (case.building.floor_area_m2 * dtemp),
+        frost_depth_open_ground_m: y.max_frost_open_m,
+        frost_depth_under_footing_m: y.max_frost_footing_m,
+        frost_margin_m: case.footing.base_depth_m - y.max_frost_footing_m,
+        date_of_max_frost_depth: day_max.map_or(0, |d| d.day_of_year),
+    }
+}
+
+/// The summary.json document.
+pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
+    let h = headline(case, r);
+    let y = r.final_year();
+    let st = r.stats;
+    json!({
+        "case_name": case.name,
+        "caution": CAUTION,
+        "coordinates": COORDINATES,
+        "note": "Whole-building figures are the 2D half-section's per-metre results times the exposed perimeter (ISO 13370 equivalent strip of width B').",
+        "floor_area_m2": case.building.floor_area_m2,
+        "exposed_perimeter_m": case.building.exposed_perimeter_m,
+        "characteristic_dimension_m": case.building.b_prime_m,
+        "mean_indoor_temperature_c": case.indoor_mean_c(),
+        "mean_outdoor_temperature_c": case.climate.mean_c,
+        "annual_heat_loss_kwh": h.annual_heat_loss_kwh,
+        "mean_heat_loss_w": h.mean_heat_loss_w,
+        "peak_heat_loss_w": h.peak_heat_loss_w,
+        "heat_loss_per_perimeter_w_per_m": h.heat_loss_per_perimeter_w_per_m,
+        "floor_u_value_w_per_m2k": h.floor_u_value_w_per_m2k,
+        "steady_state_heat_loss_w": r.steady_heat_loss_w,
+        "frost_depth_open_ground_m": h.frost_depth_open_ground_m,
+        "frost_depth_under_footing_m": h.frost_depth_under_footing_m,
+        "footing_base_depth_m": case.footing.base_depth_m,
+        "frost_margin_m": h.frost_margin_m,
+        "date_of_max_frost_depth": h.date_of_max_frost_depth,
+        "field_day_of_year": r.field.day_of_year,
+        "frost_line_temperature_c": crate::simulate::frost_line_c(case),
+        "energy_balance_error": y.energy_balance_error,
+        "spin_up_years": r.spin_up_years(),
+        "spin_up_converged": r.spin_up_converged,
+        "cells": r.mesh.solid_cells(),
+        "grid": { "nx": r.mesh.grid.nx(), "nz": r.mesh.grid.nz() },
+        "time_steps": r.time_steps,
+        "time_step_s": case.simulation.dt_s,
+        "newton_iterations": st.newton_iterations,
+        "newton_iterations_per_step": st.newton_iterations as f64 / r.time_steps.max(1) as f64,
+        "factorizations": st.factorizations,
+        "step_halvings": st.halvings,
+        "max_residual_k": st.max_residual_k,
+        "wall_time_s": r.wall_time_s,
+        "years": r.years,
+        "cross_check": r.cross_check,
+    })
+}
+
+/// Write `bytes` to `dir/name` through a temporary file and a rename.
+pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
+    let path = dir.join(name);
+    let tmp = dir.join(format!(".{name}.tmp"));
+    let io = |e| Error::Io { path: path.clone(), source: e };
+    std::fs::write(&tmp, bytes).map_err(io)?;
+    std::fs::rename(&tmp, &path).map_err(io)?;
+    Ok(path)
+}
+
+fn csv_bytes(header_comment: &str, header: &[String], rows: impl Iterator<Item = Vec<String>>) -> Result<Vec<u8>> {
+    let mut out = Vec::new();
+    for line in header_comment.lines() {
+        out.extend_from_slice(format!("# {line}\n").as_bytes());
+    }
+    let mut w = csv::Writer::from_writer(out);
+    let enc = |e: csv::Error| Error::Output(e.to_string());
+    w.write_record(header).map_err(enc)?;
+    for r in rows {
+        w.write_record(&r).map_err(enc)?;
+    }
+    w.into_inner().map_err(|e| Error::Output(e.to_string()))
+}
+
+fn f(v: f64, digits: usize) -> String {
+    if v.is_finite() { format!("{v:.digits$}") } else { String::new() }
+}
+
+/// Write every output file of a run into `dir` (created if missing); returns the paths.
+pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathBuf>> {
+    std::fs::create_dir_all(dir).map_err(|e| Error::Io { path: dir.to_path_buf(), source: e })?;
+    let mut files = Vec::new();
+    let head = format!("{}\n{CAUTION}\nCoordinates: {COORDINATES}.", case.name);
+    let summary = serde_json::to_vec_pretty(&summary_json(case, r)).map_err(|e| Error::Output(e.to_string()))?;
+    files.push(write_atomic(dir, "summary.json", &summary)?);
+
+    let hdr = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+    let daily = csv_bytes(
+        &format!("{head}\nReported (final) year, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
+        &hdr(&["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_under_footing_m"]),
+        r.days.iter().map(|d| {
+            vec![d.day_of_year.to_string(), f(d.outdoor_c, 3), f(d.indoor_c, 2), f(d.heat_loss_w, 2), f(d.frost_open_m, 4), f(d.frost_footing_m, 4)]
+        }),
+    )?;
+    files.push(write_atomic(dir, "daily.csv", &daily)?);
+
+    let mut kwh = [0.0; 12];
+    let mut tout = [0.0; 12];
+    let mut n = [0usize; 12];
+    let mut fo = [0.0f64; 12];
+    let mut ff = [0.0f64; 12];
+    for d in &r.days {
+        let m = month_of(d.day_of_year as f64 - 0.5);
+        kwh[m] += d.heat_loss_w * 24.0 / 1000.0;
+        tout[m] += d.outdoor_c;
+        n[m] += 1;
+        fo[m] = fo[m].max(d.frost_open_m);
+        ff[m] = ff[m].max(d.frost_footing_m);
+    }
+    let monthly = csv_bytes(
+        &format!("{head}\nCalendar months of the reported year (365-day calendar)."),
+        &hdr(&["month", "ground_heat_loss_kwh", "mean_outdoor_temperature_c", "max_frost_depth_open_ground_m", "max_frost_depth_under_footing_m"]),
+        (0..12).map(|m| vec![(m + 1).to_string(), f(kwh[m], 2), f(tout[m] / n[m].max(1) as f64, 3), f(fo[m], 4), f(ff[m], 4)]),
+    )?;
+    files.push(write_atomic(dir, "monthly.csv", &monthly)?);
+
+    let mut ph = vec!["day_of_year".to_string()];
+    for p in &case.probes {
+        ph.push(format!("{} (x={} m z={} m) temperature_c", p.name, p.x_m, p.z_m));
+    }
+    let probes = csv_bytes(
+        &format!("{head}\nProbe temperatures at the end of each day of the reported year."),
+        &ph,
+        r.days.iter().enumerate().map(|(k, d)| {
+            let mut row = vec![d.day_of_year.to_string()];
+            row.extend(r.probes.iter().map(|s| f(s[k], 3)));
+            row
+        }),
+    )?;
+    files.push(write_atomic(dir, "probes.csv", &probes)?);
+
+    let g = &r.mesh.grid;
+    let field = csv_bytes(
+        &format!("{head}\nCell-centre temperatures on day {} of the year (deepest frost), solid cells only.", r.field.day_of_year),
+        &hdr(&["x_m", "z_m", "temperature_c"]),
+        (0..g.nz()).flat_map(|j| (0..g.nx()).map(move |i| (i, j))).filter_map(|(i, j)| {
+            let v = r.field.t[g.id(i, j)];
+            v.is_finite().then(|| vec![f(g.xc(i), 4), f(g.zc(j), 4), f(v, 3)])
+        }),
+    )?;
+    files.push(write_atomic(dir, &format!("field_{:03}.csv", r.field.day_of_year), &field)?);
+    Ok(files)
+}
+
+/// The short result table printed after a run.
+pub fn result_table(case: &Case, r: &RunResult) -> String {
+    let h = headline(case, r);
+    let c = &r.cross_check;
+    let y = r.final_year();
+    let mut s = String::new();
+    s += &format!("{}\n", case.name);
+    s += &format!("  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
+        case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m);
+    s += "\n  Heat loss to the ground                     model      ISO 13370\n";
+    s += &format!("    annual                          kWh  {:>10.0}\n", h.annual_heat_loss_kwh);
+    s += &format!("    mean                              W  {:>10.1}  {:>10.1}\n", h.mean_heat_loss_w, c.iso13370_mean_heat_loss_w);
+    s += &format!("    peak (daily mean)                 W  {:>10.1}\n", h.peak_heat_loss_w);
+    s += &format!("    per metre of exposed perimeter  W/m  {:>10.2}\n", h.heat_loss_per_perimeter_w_per_m);
+    s += &format!("    floor U-value               W/(m²K)  {:>10.3}  {:>10.3}\n", h.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k);
+    s += "\n  Frost depth (below ground level)            model      Stefan  mod. Berggren\n";
+    s += &format!("    open ground                       m  {:>10.2}  {:>10.2}  {:>10.2}\n",
+        h.frost_depth_open_ground_m, c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m);
+    s += &format!("    under the footing                 m  {:>10.2}\n", h.frost_depth_under_footing_m);
+    s += &format!("    footing base                      m  {:>10.2}\n", case.footing.base_depth_m);
+    s += &format!("    margin (base − frost)             m  {:>10.2}  {}\n", h.frost_margin_m,
+        if h.frost_margin_m < 0.0 { "FROST BELOW FOOTING BASE" } else { "" });
+    s += &format!("    deepest on day of year               {:>10}\n", h.date_of_max_frost_depth);
+    s += &format!("    design air freezing index      °C·d  {:>10.0}\n", c.freezing_index_c_days);
+    s += &format!("\n  Numerics: {} cells, {} steps, {} spin-up years ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
+        r.mesh.solid_cells(), r.time_steps, r.spin_up_years(),
+        if r.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
+        r.stats.newton_iterations as f64 / r.time_steps.max(1) as f64, y.energy_balance_error, r.wall_time_s);
+    s += &format!("\n  Caution: {CAUTION}\n");
+    s
+}

@@ -1,0 +1,359 @@
+//! A whole run of the foundation model: steady initialisation at the annual means, spin-up over
+//! repeated design years until the year is periodic, and the records of the reported (final) year.
+use crate::analysis::{frost_depth_column, point_temperature};
+use crate::case::{Case, InsulationKind};
+use crate::error::Result;
+use crate::geometry::{Section, DEEP, INDOOR, OUTDOOR};
+use crate::mesh::Mesh;
+use crate::methods;
+use crate::solver::{Network, Solver, SolverParams, SolverStats};
+
+/// Spin-up stops when the annual heat loss changes less than this fraction between years.
+pub const SPIN_UP_HEAT_TOL: f64 = 0.005;
+/// … and the maximum frost depths change less than this, m.
+pub const SPIN_UP_FROST_TOL_M: f64 = 0.01;
+
+/// Month (0–11) of calendar day `d` (days since 1 January, 365-day year).
+pub fn month_of(d: f64) -> usize {
+    const ENDS: [f64; 12] = [31., 59., 90., 120., 151., 181., 212., 243., 273., 304., 334., 365.];
+    let d = d.rem_euclid(365.0);
+    ENDS.iter().position(|&e| d < e).unwrap_or(11)
+}
+
+/// One day of the reported year.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Day {
+    /// Day of year, 1–365.
+    pub day_of_year: usize,
+    /// Daily mean outdoor air temperature, °C.
+    pub outdoor_c: f64,
+    /// Indoor air temperature, °C.
+    pub indoor_c: f64,
+    /// Daily mean ground heat loss of the whole building, W.
+    pub heat_loss_w: f64,
+    /// Frost depth in open ground at the far edge, end of day, m.
+    pub frost_open_m: f64,
+    /// Frost depth under the footing, end of day, m.
+    pub frost_footing_m: f64,
+}
+
+/// One simulated year.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Year {
+    /// Ground heat loss of the whole building over the year, kWh.
+    pub heat_loss_kwh: f64,
+    /// Deepest frost in open ground, m.
+    pub max_frost_open_m: f64,
+    /// Deepest frost under the footing, m.
+    pub max_frost_footing_m: f64,
+    /// Relative energy-balance error of the year.
+    pub energy_balance_error: f64,
+}
+
+/// The temperature field on one day.
+#[derive(Debug, Clone)]
+pub struct Field {
+    /// Day of year.
+    pub day_of_year: usize,
+    /// Cell-centre temperature per grid cell (NaN for air), °C, indexed by `Grid::id`.
+    pub t: Vec<f64>,
+}
+
+/// Closed-form cross-checks for the same inputs.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct CrossCheck {
+    /// ISO 13370 slab-on-ground U-value with edge insulation, W/(m²·K).
+    pub iso13370_u_value_w_per_m2k: f64,
+    /// ISO 13370 U-value without edge insulation, W/(m²·K).
+    pub iso13370_u0_w_per_m2k: f64,
+    /// ISO 13370 edge-insulation Ψ used (most effective piece), W/(m·K).
+    pub iso13370_edge_psi_w_per_mk: f64,
+    /// ISO 13370 total equivalent thickness d_t, m.
+    pub iso13370_dt_m: f64,
+    /// Soil conductivity used for ISO 13370 (top stratum, unfrozen), W/(m·K).
+    pub iso13370_lambda_w_per_mk: f64,
+    /// Annual mean heat loss by ISO 13370 steady U, W.
+    pub iso13370_mean_heat_loss_w: f64,
+    /// Air freezing index of the design sinusoid, °C·d.
+    pub freezing_index_c_days: f64,
+    /// Freezing season length, d.
+    pub freezing_season_days: f64,
+    /// Stefan open-ground frost depth (n = 1, top stratum), m.
+    pub stefan_frost_depth_m: f64,
+    /// Modified Berggren open-ground frost depth (n = 1, top stratum), m.
+    pub modified_berggren_frost_depth_m: f64,
+}
+
+/// Everything a run produces.
+#[derive(Debug, Clone)]
+pub struct RunResult {
+    /// Mesh used.
+    pub mesh: Mesh,
+    /// Days of the reported year, from the warmest day on.
+    pub days: Vec<Day>,
+    /// Probe temperatures per day of the reported year (probe-major), °C.
+    pub probes: Vec<Vec<f64>>,
+    /// Every simulated year, spin-up first.
+    pub years: Vec<Year>,
+    /// Whether the spin-up criterion was met.
+    pub spin_up_converged: bool,
+    /// Field on the day of maximum frost depth under the footing (or in open ground if none).
+    pub field: Field,
+    /// Steady-state heat loss at the annual means, W (whole building).
+    pub steady_heat_loss_w: f64,
+    /// Solver work.
+    pub stats: SolverStats,
+    /// Time steps of the whole run.
+    pub time_steps: usize,
+    /// Cross-checks.
+    pub cross_check: CrossCheck,
+    /// Wall-clock time, s.
+    pub wall_time_s: f64,
+}
+
+impl RunResult {
+    /// The reported year.
+    pub fn final_year(&self) -> &Year {
+        self.years.last().expect("at least one year")
+    }
+    /// Spin-up years before the reported one.
+    pub fn spin_up_years(&self) -> usize {
+        self.years.len() - 1
+    }
+}
+
+/// Progress of a run, for a progress bar.
+#[derive(Debug, Clone, Copy)]
+pub struct Progress {
+    /// Year index (0-based).
+    pub year: usize,
+    /// Day within the year (1–365).
+    pub day: usize,
+    /// Most years the run can take.
+    pub max_years: usize,
+}
+
+/// Cell columns whose centres lie under the footing.
+pub fn footing_columns(mesh: &Mesh, case: &Case) -> Vec<usize> {
+    let (x0, x1) = case.footing_x();
+    (0..mesh.grid.nx()).filter(|&i| (x0..=x1).contains(&mesh.grid.xc(i))).collect()
+}
+
+/// Frost-line temperature: the midpoint of the top stratum's freezing interval, °C.
+pub fn frost_line_c(case: &Case) -> f64 {
+    case.strata[0].material.t_frost_line()
+}
+
+/// The closed-form cross-checks for `case`.
+pub fn cross_check(case: &Case) -> CrossCheck {
+    let soil = &case.strata[0].material;
+    let lambda = soil.k_unfrozen;
+    let b = &case.building;
+    let mut r_f = case.slab.thickness_m / case.slab.material.k_unfrozen + case.slab.finish_r;
+    let mut edges = Vec::new();
+    for ins in &case.insulation {
+        let r_n = ins.thickness_m / ins.material.k_unfrozen;
+        match ins.kind {
+            InsulationKind::UnderSlab { band_width_m: None } => r_f += r_n,
+            InsulationKind::UnderSlab { band_width_m: Some(d) } => {
+                edges.push((methods::EdgeInsulation::Horizontal { width_m: d }, r_n, ins.thickness_m))
+            }
+            InsulationKind::VerticalOutside { bottom_m, .. } | InsulationKind::VerticalInside { bottom_m, .. } => {
+                edges.push((methods::EdgeInsulation::Vertical { depth_m: bottom_m.max(0.0) }, r_n, ins.thickness_m))
+            }
+            InsulationKind::Wing { x_start_m, width_m, .. } => {
+                edges.push((methods::EdgeInsulation::Horizontal { width_m: width_m - x_start_m }, r_n, ins.thickness_m))
+            }
+        }
+    }
+    let d_t = methods::equivalent_thickness(case.wall.thickness_m, lambda, b.r_si_floor, r_f, case.climate.r_se);
+    let u0 = methods::iso13370_slab_u(lambda, b.b_prime_m, d_t);
+    let psi = edges
+        .iter()
+        .map(|&(e, r_n, d_n)| methods::iso13370_edge_psi(lambda, d_t, r_n, d_n, e))
+        .fold(0.0, f64::min);
+    let u = u0 + 2.0 * psi / b.b_prime_m;
+    let (fi, season) = methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
+    let stefan = if fi > 0.0 { methods::stefan_depth(soil.k_frozen, fi, soil.latent.max(1.0)) } else { 0.0 };
+    let berggren = methods::modified_berggren_depth(
+        fi,
+        season,
+        case.climate.mean_c,
+        0.5 * (soil.k_frozen + soil.k_unfrozen),
+        0.5 * (soil.c_frozen + soil.c_unfrozen),
+        soil.latent.max(1.0),
+    );
+    CrossCheck {
+        iso13370_u_value_w_per_m2k: u,
+        iso13370_u0_w_per_m2k: u0,
+        iso13370_edge_psi_w_per_mk: psi,
+        iso13370_dt_m: d_t,
+        iso13370_lambda_w_per_mk: lambda,
+        iso13370_mean_heat_loss_w: u * b.floor_area_m2 * (case.indoor_mean_c() - case.climate.mean_c),
+        freezing_index_c_days: fi,
+        freezing_season_days: season,
+        stefan_frost_depth_m: stefan,
+        modified_berggren_frost_depth_m: berggren,
+    }
+}
+
+/// Run `case`: steady state, spin-up, reported year.
+pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult> {
+    let start = std::time::Instant::now();
+    let section = Section::from_case(case)?;
+    let mesh = section.mesh(case);
+    let net = Network::new(&mesh);
+    let mut solver = Solver::new(&net, SolverParams::default())?;
+    let perimeter = case.building.exposed_perimeter_m;
+    let n_zones = net.n_zones;
+    let zone_temps = |indoor: f64, outdoor: f64| -> Vec<f64> {
+        let mut z = vec![indoor, outdoor];
+        if let Some(tb) = case.simulation.bottom_temperature_c {
+            z.push(tb);
+        }
+        debug_assert_eq!(z.len(), n_zones);
+        let _ = DEEP;
+        z
+    };
+    // Steady state at the annual means.
+    let steady = solver.steady(&zone_temps(case.indoor_mean_c(), case.climate.mean_c), None)?;
+    let steady_heat_loss_w = steady.from_zone[INDOOR] * perimeter;
+    let mut h = net.enthalpies(&steady.t);
+    let mut t = steady.t.clone();
+
+    let cols = footing_columns(&mesh, case);
+    let open_col = mesh.grid.nx() - 1;
+    let t_line = frost_line_c(case);
+    let frost = |t: &[f64]| {
+        let open = frost_depth_column(&mesh, &net, t, open_col, 0.0, t_line).unwrap_or(0.0);
+        let foot = cols
+            .iter()
+            .filter_map(|&i| frost_depth_column(&mesh, &net, t, i, 0.0, t_line))
+            .fold(0.0, f64::max);
+        (open, foot)
+    };
+
+    let dt = case.simulation.dt_s;
+    let steps_per_day = (86400.0 / dt).round() as usize;
+    // Start at the beginning of the day holding the warmest time of the year.
+    let day0 = (case.climate.coldest_day - 0.5 + 182.5).rem_euclid(365.0).floor();
+    let max_years = case.simulation.max_spin_up_years + 1;
+    let mut years: Vec<Year> = Vec::new();
+    let mut converged = false;
+    let mut time_steps = 0;
+    let (mut days, mut probes, mut field);
+    let mut sim_time = 0.0;
+    loop {
+        let y = years.len();
+        days = Vec::with_capacity(365);
+        probes = vec![Vec::with_capacity(365); case.probes.len()];
+        field = Field { day_of_year: 0, t: Vec::new() };
+        let (mut best_foot, mut best_open) = (-1.0f64, -1.0f64);
+        let mut open_field = Field { day_of_year: 0, t: Vec::new() };
+        let (mut sum_in, mut sum_abs, mut sum_stored) = (0.0, 0.0, 0.0);
+        let mut loss_j = 0.0;
+        for d in 0..365 {
+            let cal = day0 + d as f64;
+            let mut day_in = 0.0;
+            let mut out_mean = 0.0;
+            let indoor = case.building.indoor_monthly_c[month_of(cal + 0.5)];
+            for s in 0..steps_per_day {
+                let t0 = cal + s as f64 * dt / 86400.0;
+                let t1 = t0 + dt / 86400.0;
+                let outdoor = case.climate.mean_over(t0, t1);
+                out_mean += outdoor / steps_per_day as f64;
+                let e = solver.step(&mut h, &zone_temps(indoor, outdoor), dt, sim_time)?;
+                sim_time += dt;
+                time_steps += 1;
+                day_in += e.from_zone[INDOOR];
+                sum_in += e.from_zone.iter().sum::<f64>();
+                sum_abs += e.from_zone.iter().map(|v| v.abs()).sum::<f64>();
+                sum_stored += e.stored;
+                let _ = OUTDOOR;
+            }
+            loss_j += day_in;
+            net.temperatures(&h, &mut t);
+            let (fo, ff) = frost(&t);
+            let doy = (cal as usize % 365) + 1;
+            days.push(Day {
+                day_of_year: doy,
+                outdoor_c: out_mean,
+                indoor_c: indoor,
+                heat_loss_w: day_in / 86400.0 * perimeter,
+                frost_open_m: fo,
+                frost_footing_m: ff,
+            });
+            let zt = zone_temps(indoor, out_mean);
+            for (k, p) in case.probes.iter().enumerate() {
+                probes[k].push(point_temperature(&mesh, &net, &t, &zt, p.x_m, p.z_m).unwrap_or(f64::NAN));
+            }
+            if ff > best_foot {
+                best_foot = ff;
+                if ff > 0.0 {
+                    field = Field { day_of_year: doy, t: grid_field(&mesh, &net, &t) };
+                }
+            }
+            if fo > best_open {
+                best_open = fo;
+                open_field = Field { day_of_year: doy, t: grid_field(&mesh, &net, &t) };
+            }
+            progress(Progress { year: y, day: d + 1, max_years });
+        }
+        if field.t.is_empty() {
+            field = open_field;
+        }
+        let year = Year {
+            heat_loss_kwh: loss_j * perimeter / 3.6e6,
+            max_frost_open_m: best_open.max(0.0),
+            max_frost_footing_m: best_foot.max(0.0),
+            energy_balance_error: if sum_abs > 0.0 { (sum_in - sum_stored) / sum_abs } else { 0.0 },
+        };
+        if let Some(prev) = years.last() {
+            let dq = (year.heat_loss_kwh - prev.heat_loss_kwh).abs() / prev.heat_loss_kwh.abs().max(1e-9);
+            let df = (year.max_frost_footing_m - prev.max_frost_footing_m)
+                .abs()
+                .max((year.max_frost_open_m - prev.max_frost_open_m).abs());
+            converged = dq < SPIN_UP_HEAT_TOL && df < SPIN_UP_FROST_TOL_M;
+        }
+        years.push(year);
+        if converged || years.len() >= max_years {
+            break;
+        }
+    }
+    Ok(RunResult {
+        days,
+        probes,
+        years,
+        spin_up_converged: converged,
+        field,
+        steady_heat_loss_w,
+        stats: solver.stats(),
+        time_steps,
+        cross_check: cross_check(case),
+        wall_time_s: start.elapsed().as_secs_f64(),
+        mesh,
+    })
+}
+
+/// Temperatures of the unknowns spread onto the grid (NaN for air cells).
+pub fn grid_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
+    let mut f = vec![f64::NAN; mesh.grid.len()];
+    for (p, &id) in net.cell_of.iter().enumerate() {
+        f[id] = t[p];
+    }
+    f
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn months() {
+        assert_eq!(month_of(0.0), 0);
+        assert_eq!(month_of(30.9), 0);
+        assert_eq!(month_of(31.0), 1);
+        assert_eq!(month_of(364.5), 11);
+        assert_eq!(month_of(365.2), 0);
+    }
+}
