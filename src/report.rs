@@ -101,6 +101,8 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
         "newton_iterations": st.newton_iterations,
         "newton_iterations_per_step": st.newton_iterations as f64 / r.time_steps.max(1) as f64,
         "factorizations": st.factorizations,
+        "near_factor_solves": st.near_factor_solves,
+        "cg_iterations": st.cg_iterations,
         "step_halvings": st.halvings,
         "max_residual_k": st.max_residual_k,
         "wall_time_s": r.wall_time_s,

@@ -335,6 +335,20 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     })
 }
 
+/// Steady heat flow from the indoor air into the ground per metre of section (W/m) with constant
+/// indoor and outdoor temperatures (°C): the ISO 13370 steady-state quantity Q' = U B'/2 ΔT.
+pub fn steady_heat_flow(case: &Case, indoor_c: f64, outdoor_c: f64) -> Result<f64> {
+    let section = Section::from_case(case)?;
+    let mesh = section.mesh(case);
+    let net = Network::new(&mesh);
+    let mut solver = Solver::new(&net, SolverParams::default())?;
+    let mut zt = vec![indoor_c, outdoor_c];
+    if let Some(tb) = case.simulation.bottom_temperature_c {
+        zt.push(tb);
+    }
+    Ok(solver.steady(&zt, None)?.from_zone[INDOOR])
+}
+
 /// Temperatures of the unknowns spread onto the grid (NaN for air cells).
 pub fn grid_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
     let mut f = vec![f64::NAN; mesh.grid.len()];

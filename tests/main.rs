@@ -1,4 +1,5 @@
 //! The integration-test binary: verification against published references, the CLI, the bundled
 //! examples and regression checks.
 mod common;
+mod iso13370;
 mod verification;

@@ -14,8 +14,11 @@
 //! 1/C_k in segment k; C_k (J/(m³·K)) is the "segment capacity" the Newton iteration uses. A material
 //! without water (concrete, insulation) has L = 0, C_f = C_u, k_f = k_u, and one straight line.
 //!
-//! The liquid (unfrozen) fraction is f = (T − T_s)/ε clamped to [0, 1], and the conductivity is
-//! k = k_f + f (k_u − k_f) (linear in f; common practice for a sharp-front soil model).
+//! The liquid (unfrozen) fraction is f = (T − T_s)/ε clamped to [0, 1]. The conductivity is k_f
+//! in the frozen segment, k_u in the unfrozen one and their mean inside the freezing interval: it
+//! changes only when a cell changes segment, so the solver's matrix stays the same (and its factor
+//! reusable) while no cell crosses a segment boundary. For a narrow interval this differs from a
+//! conductivity linear in f only inside the few cells at the front.
 
 /// Thermal properties of one material (SI units).
 #[derive(Debug, Clone, PartialEq)]
@@ -105,10 +108,15 @@ impl Material {
         ((t - self.t_solidus()) / self.freezing_interval).clamp(0.0, 1.0)
     }
 
-    /// Conductivity k(T), W/(m·K), linear in the unfrozen fraction.
+    /// Conductivity k(T), W/(m·K): k_f frozen, k_u unfrozen, the mean inside the interval.
     pub fn conductivity(&self, t: f64) -> f64 {
-        let f = self.unfrozen_fraction(t);
-        self.k_frozen + f * (self.k_unfrozen - self.k_frozen)
+        if t <= self.t_solidus() {
+            self.k_frozen
+        } else if t >= self.t_freeze {
+            self.k_unfrozen
+        } else {
+            0.5 * (self.k_frozen + self.k_unfrozen)
+        }
     }
 
     /// Thermal diffusivity of the unfrozen material, m²/s.

@@ -26,6 +26,12 @@ pub struct SpdSolver {
     pub factorizations: usize,
     /// Triangular solves done.
     pub solves: usize,
+    /// Solves done by conjugate gradients preconditioned with a nearby factor.
+    pub near_solves: usize,
+    /// Conjugate-gradient iterations in those solves.
+    pub cg_iterations: usize,
+    touched: Vec<bool>,
+    work: [Vec<f64>; 4],
 }
 
 /// Geometric nested-dissection order of the unknowns of an nx × nz grid (`unk_of[j·nx + i]` =
@@ -120,6 +126,10 @@ impl SpdSolver {
             valid: false,
             factorizations: 0,
             solves: 0,
+            near_solves: 0,
+            cg_iterations: 0,
+            touched: vec![false; n],
+            work: [vec![0.0; n], vec![0.0; n], vec![0.0; n], vec![0.0; n]],
         })
     }
 
@@ -129,7 +139,121 @@ impl SpdSolver {
     }
 
     /// Solve A x = rhs in place; `vals` are A's lower-triangle values in pattern order.
-    /// Refactors only when `vals` changed since the last factorisation.
+    ///
+    /// Refactors only when `vals` changed since the last factorisation. When they changed in the
+    /// rows and columns of at most `max_touched` unknowns, A differs from the factored matrix A₀ by
+    /// a matrix of low rank, and conjugate gradients preconditioned with A₀'s factor converge in
+    /// about that many iterations (in exact arithmetic at most rank + 1); this is tried first, to a
+    /// relative residual of 1e-10, and the factorisation is redone if it does not converge.
+    pub fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
+        if self.valid && max_touched > 0 && self.factored != vals {
+            let mut count = 0;
+            let mut small = true;
+            'cols: for c in 0..self.n {
+                let (a, b) = (self.pattern.col_ptr()[c], self.pattern.col_ptr()[c + 1]);
+                for k in a..b {
+                    if vals[k] != self.factored[k] {
+                        for u in [c, self.pattern.row_idx()[k]] {
+                            if !self.touched[u] {
+                                self.touched[u] = true;
+                                count += 1;
+                            }
+                        }
+                        if count > max_touched {
+                            small = false;
+                            break 'cols;
+                        }
+                    }
+                }
+            }
+            self.touched.iter_mut().for_each(|t| *t = false);
+            if small && self.pcg(vals, rhs, 2 * max_touched + 4) {
+                self.near_solves += 1;
+                return Ok(());
+            }
+        }
+        self.solve(vals, rhs)
+    }
+
+    /// y = A x for the symmetric matrix stored as its lower triangle.
+    fn matvec(&self, vals: &[f64], x: &[f64], y: &mut [f64]) {
+        y.iter_mut().for_each(|v| *v = 0.0);
+        let (cp, ri) = (self.pattern.col_ptr(), self.pattern.row_idx());
+        for c in 0..self.n {
+            for k in cp[c]..cp[c + 1] {
+                let r = ri[k];
+                y[r] += vals[k] * x[c];
+                if r != c {
+                    y[c] += vals[k] * x[r];
+                }
+            }
+        }
+    }
+
+    fn precondition(&mut self, v: &mut [f64]) {
+        let llt = LltRef::new(&self.chol, &self.l_val);
+        llt.solve_in_place_with_conj(
+            Conj::No,
+            MatMut::from_column_major_slice_mut(v, self.n, 1),
+            Par::Seq,
+            MemStack::new(&mut self.sbuf),
+        );
+        self.solves += 1;
+    }
+
+    /// Preconditioned conjugate gradients with the current factor; `rhs` becomes x on success.
+    fn pcg(&mut self, vals: &[f64], rhs: &mut [f64], max_iter: usize) -> bool {
+        let [mut x, mut r, mut z, mut q] = std::mem::take(&mut self.work);
+        let bnorm = rhs.iter().map(|v| v * v).sum::<f64>().sqrt();
+        x.copy_from_slice(rhs);
+        self.precondition(&mut x);
+        self.matvec(vals, &x, &mut q);
+        for i in 0..self.n {
+            r[i] = rhs[i] - q[i];
+        }
+        z.copy_from_slice(&r);
+        self.precondition(&mut z);
+        let mut p = z.clone();
+        let mut rz: f64 = r.iter().zip(&z).map(|(a, b)| a * b).sum();
+        let mut ok = bnorm == 0.0;
+        for _ in 0..max_iter {
+            let rn = r.iter().map(|v| v * v).sum::<f64>().sqrt();
+            if rn <= 1e-10 * bnorm {
+                ok = true;
+                break;
+            }
+            self.cg_iterations += 1;
+            self.matvec(vals, &p, &mut q);
+            let pq: f64 = p.iter().zip(&q).map(|(a, b)| a * b).sum();
+            if pq <= 0.0 {
+                break;
+            }
+            let alpha = rz / pq;
+            for i in 0..self.n {
+                x[i] += alpha * p[i];
+                r[i] -= alpha * q[i];
+            }
+            z.copy_from_slice(&r);
+            self.precondition(&mut z);
+            let rz_new: f64 = r.iter().zip(&z).map(|(a, b)| a * b).sum();
+            let beta = rz_new / rz;
+            rz = rz_new;
+            for i in 0..self.n {
+                p[i] = z[i] + beta * p[i];
+            }
+        }
+        if !ok {
+            let rn = r.iter().map(|v| v * v).sum::<f64>().sqrt();
+            ok = rn <= 1e-10 * bnorm;
+        }
+        if ok {
+            rhs.copy_from_slice(&x);
+        }
+        self.work = [x, r, z, q];
+        ok
+    }
+
+    /// Solve A x = rhs in place, refactoring whenever `vals` changed.
     pub fn solve(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
         if !self.valid || self.factored != vals {
             let a = SparseColMatRef::new(self.pattern.as_ref(), vals);

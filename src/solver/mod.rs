@@ -42,11 +42,16 @@ pub struct SolverParams {
     pub max_halvings: usize,
     /// Picard iterations for the steady state. Default 100.
     pub max_picard: usize,
+    /// Reuse a nearby factor as a conjugate-gradient preconditioner when the matrix changed in at
+    /// most this many unknowns (0 = always refactor). Default 0: on the 5.5k-cell demo mesh a
+    /// triangular solve costs about a quarter of a factorisation and CG needed ~5 iterations, so
+    /// refactoring was as fast (measured with `cargo bench`, see DEVELOPERS.md).
+    pub near_factor_cells: usize,
 }
 
 impl Default for SolverParams {
     fn default() -> Self {
-        SolverParams { tol_k: 1e-6, max_newton: 20, max_halvings: 8, max_picard: 100 }
+        SolverParams { tol_k: 1e-6, max_newton: 20, max_halvings: 8, max_picard: 100, near_factor_cells: 0 }
     }
 }
 
@@ -63,6 +68,10 @@ pub struct SolverStats {
     pub factorizations: usize,
     /// Triangular solves.
     pub solves: usize,
+    /// Linear solves done by conjugate gradients preconditioned with a nearby factor.
+    pub near_factor_solves: usize,
+    /// Conjugate-gradient iterations in those.
+    pub cg_iterations: usize,
     /// Step halvings.
     pub halvings: usize,
     /// Largest temperature-equivalent residual accepted, K.
@@ -142,6 +151,8 @@ impl<'a> Solver<'a> {
         let mut s = self.stats;
         s.factorizations = self.lin.factorizations;
         s.solves = self.lin.solves;
+        s.near_factor_solves = self.lin.near_solves;
+        s.cg_iterations = self.lin.cg_iterations;
         s
     }
 
@@ -310,7 +321,7 @@ impl<'a> Solver<'a> {
             let (vol, cap) = (&net.volume, std::mem::take(&mut self.cap));
             self.assemble(|p| vol[p] * cap[p] / dt);
             let mut rhs: Vec<f64> = self.r.iter().map(|v| -v).collect();
-            if self.lin.solve(&self.vals, &mut rhs).is_err() {
+            if self.lin.solve_near(&self.vals, &mut rhs, self.params.near_factor_cells).is_err() {
                 h.copy_from_slice(&self.h_old);
                 self.cap = cap;
                 return Err((iter, f64::NAN));
