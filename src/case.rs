@@ -522,14 +522,45 @@ pub fn parse_case(file: &str, src: &str) -> Result<Case> {
     let ctx = Ctx { file, src };
     let raw: RawCase = toml::from_str(src).map_err(|e| {
         let msg = e.message().to_string();
-        let key = msg.split('`').nth(1).unwrap_or("").to_string();
-        let location = match e.span() {
-            Some(sp) => Location::from_offset(file, src, sp.start),
-            None => Location::file_only(file),
+        let (location, table, line_key) = match e.span() {
+            Some(sp) => (Location::from_offset(file, src, sp.start), table_at(src, sp.start), key_on_line(src, sp.start)),
+            None => (Location::file_only(file), String::new(), None),
         };
-        Error::Input { location, key: if key.is_empty() { "(syntax)".into() } else { key }, message: msg }
+        // The key: the first `quoted` name in the message, else the key on the error's line, under
+        // the table the error sits in.
+        let named = msg.split('`').nth(1).map(str::to_string).or(line_key);
+        let key = match (named.as_deref(), table.is_empty()) {
+            (Some(k), false) => format!("{table}.{k}"),
+            (Some(k), true) => k.to_string(),
+            (None, false) => table,
+            (None, true) => "(syntax)".into(),
+        };
+        Error::Input { location, key, message: msg }
     })?;
     validate(&ctx, raw)
+}
+
+/// The `key` of a `key = value` line holding byte `offset`.
+fn key_on_line(src: &str, offset: usize) -> Option<String> {
+    let off = offset.min(src.len());
+    let start = src[..off].rfind('\n').map_or(0, |k| k + 1);
+    let line = src[start..].lines().next()?;
+    let (k, _) = line.split_once('=')?;
+    let k = k.trim();
+    (!k.is_empty() && !k.starts_with('[')).then(|| k.to_string())
+}
+
+/// Name of the TOML table whose header precedes byte `offset` (e.g. `slab`, `insulation`).
+fn table_at(src: &str, offset: usize) -> String {
+    let end = src[offset.min(src.len())..].find('\n').map_or(src.len(), |k| offset + k);
+    let upto = &src[..end];
+    upto.lines()
+        .filter_map(|l| {
+            let l = l.trim();
+            l.starts_with('[').then(|| l.trim_matches(|c| c == '[' || c == ']').trim().to_string())
+        })
+        .last()
+        .unwrap_or_default()
 }
 
 /// Read, parse and validate a case file.

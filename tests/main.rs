@@ -1,5 +1,7 @@
 //! The integration-test binary: verification against published references, the CLI, the bundled
 //! examples and regression checks.
+mod cli;
 mod common;
+mod examples;
 mod iso13370;
 mod verification;

@@ -1,0 +1,116 @@
+//! Every bundled example runs (the large one shortened) with range assertions on its results.
+use crate::cli::{bin, scratch};
+use serde_json::Value;
+use std::path::Path;
+
+const KEYS: &[&str] = &[
+    "floor_area_m2",
+    "exposed_perimeter_m",
+    "characteristic_dimension_m",
+    "annual_heat_loss_kwh",
+    "mean_heat_loss_w",
+    "peak_heat_loss_w",
+    "heat_loss_per_perimeter_w_per_m",
+    "floor_u_value_w_per_m2k",
+    "frost_depth_open_ground_m",
+    "frost_depth_under_footing_m",
+    "footing_base_depth_m",
+    "frost_margin_m",
+    "date_of_max_frost_depth",
+    "energy_balance_error",
+    "spin_up_years",
+    "cells",
+    "time_steps",
+    "wall_time_s",
+];
+
+fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String) {
+    let out = scratch(name);
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples").join(format!("{name}.toml"));
+    let res = bin().arg("run").arg(&case).arg("--out").arg(&out).args(extra).output().unwrap();
+    let stdout = String::from_utf8_lossy(&res.stdout).to_string();
+    assert_eq!(res.status.code(), Some(0), "{}", String::from_utf8_lossy(&res.stderr));
+    let s: Value = serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    for k in KEYS {
+        assert!(s[k].is_number(), "{name}: summary.json key {k} missing or not a number");
+    }
+    for k in ["iso13370_u_value_w_per_m2k", "stefan_frost_depth_m", "modified_berggren_frost_depth_m"] {
+        assert!(s["cross_check"][k].is_number(), "{name}: cross_check.{k}");
+    }
+    for f in ["daily.csv", "monthly.csv", "probes.csv"] {
+        let text = std::fs::read_to_string(out.join(f)).unwrap();
+        assert!(text.contains("Results are engineering estimates"), "{f} lacks the caution");
+        let header = text.lines().find(|l| !l.starts_with('#')).unwrap();
+        assert!(header.contains("_c") || header.contains("temperature"), "{f} header without units: {header}");
+    }
+    let day = s["field_day_of_year"].as_u64().unwrap();
+    let field = std::fs::read_to_string(out.join(format!("field_{day:03}.csv"))).unwrap();
+    assert!(field.lines().any(|l| l == "x_m,z_m,temperature_c"));
+    assert_eq!(field.lines().filter(|l| !l.starts_with('#')).count() as u64 - 1, s["cells"].as_u64().unwrap());
+    assert!(!std::fs::read_dir(&out).unwrap().any(|e| e.unwrap().file_name().to_string_lossy().ends_with(".tmp")));
+    assert!(stdout.contains("Caution"), "result table lacks the caution");
+    (s, out, stdout)
+}
+
+fn num(s: &Value, k: &str) -> f64 {
+    s[k].as_f64().unwrap()
+}
+
+/// The small house on a frost-protected shallow footing (normal mesh, full spin-up).
+/// Ranges: U between the ISO 13370 slab value without the wall/floor junction (0.196) and an
+/// uninsulated slab (0.76); open-ground frost within ±15 % of modified Berggren (a sanity band:
+/// ModBerg assumes a step change of surface temperature); no frost below the footing (the design
+/// intent of the demo); energy balance within 0.1 % of the throughput.
+#[test]
+fn kettle_hollow_house() {
+    let (s, out, stdout) = run_example("kettle-hollow-house", &["--quiet"]);
+    let u = num(&s, "floor_u_value_w_per_m2k");
+    assert!((0.196..0.76).contains(&u), "U {u}");
+    let open = num(&s, "frost_depth_open_ground_m");
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"].as_f64().unwrap();
+    assert!((open / mb - 1.0).abs() < 0.15, "open-ground frost {open} vs ModBerg {mb}");
+    assert!(num(&s, "frost_margin_m") > 0.0);
+    assert!(num(&s, "energy_balance_error").abs() < 1e-3);
+    assert!(s["spin_up_converged"].as_bool().unwrap());
+    assert!(num(&s, "peak_heat_loss_w") > num(&s, "mean_heat_loss_w"));
+    let kwh = num(&s, "annual_heat_loss_kwh");
+    assert!((kwh - num(&s, "mean_heat_loss_w") * 8.76).abs() < 1e-6 * kwh);
+    assert!((1..=365).contains(&(num(&s, "date_of_max_frost_depth") as i64)));
+    // The monthly file sums to the annual loss.
+    let monthly = std::fs::read_to_string(out.join("monthly.csv")).unwrap();
+    let sum: f64 = monthly
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with("month"))
+        .map(|l| l.split(',').nth(1).unwrap().parse::<f64>().unwrap())
+        .sum();
+    assert!((sum - kwh).abs() < 0.01 * kwh, "monthly {sum} vs annual {kwh}");
+    // Probes: two columns of plausible ground temperatures.
+    let probes = std::fs::read_to_string(out.join("probes.csv")).unwrap();
+    let rows: Vec<&str> = probes.lines().filter(|l| !l.starts_with('#')).collect();
+    assert_eq!(rows.len(), 366);
+    assert!(rows[0].contains("below footing") && rows[0].contains("wing edge"));
+    for r in &rows[1..] {
+        for v in r.split(',').skip(1) {
+            let t: f64 = v.parse().unwrap();
+            assert!((-15.0..25.0).contains(&t), "probe {t}");
+        }
+    }
+    assert!(stdout.contains("kWh") && stdout.contains("W/(m²K)"));
+}
+
+/// The large depot (whole-floor insulation, no wing, footing at 1.2 m), shortened to at most two
+/// spin-up years. Ranges: U between 0.1 and 0.3 W/(m²·K) (ISO 13370 without junction 0.129);
+/// open-ground frost within ±25 % of modified Berggren (wider: the shortened spin-up); frost stays
+/// above the 1.2 m footing base; energy balance within 0.1 %.
+#[test]
+fn marrow_flats_depot_shortened() {
+    let (s, _, _) = run_example("marrow-flats-depot", &["--quiet", "--max-spin-up-years", "2"]);
+    let u = num(&s, "floor_u_value_w_per_m2k");
+    assert!((0.1..0.3).contains(&u), "U {u}");
+    let open = num(&s, "frost_depth_open_ground_m");
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"].as_f64().unwrap();
+    assert!((open / mb - 1.0).abs() < 0.25, "open-ground frost {open} vs ModBerg {mb}");
+    assert!(num(&s, "frost_margin_m") > 0.0);
+    assert!(num(&s, "energy_balance_error").abs() < 1e-3);
+    assert!(num(&s, "spin_up_years") <= 2.0);
+}
