@@ -1,1 +1,72 @@
-fn main(){}
+//! Engine benchmark: the demo case end to end, the steady solve, and the cost per time step.
+//! Run with `cargo bench --bench engine` (release profile). Prints medians over repeated runs; the
+//! machine is shared and noisy, so compare medians and ratios, not single runs.
+use frostline::case::load_case;
+use frostline::geometry::Section;
+use frostline::simulate;
+use frostline::solver::{Network, Solver, SolverParams};
+use std::time::Instant;
+
+fn median(mut v: Vec<f64>) -> f64 {
+    v.sort_by(|a, b| a.total_cmp(b));
+    v[v.len() / 2]
+}
+
+fn main() {
+    let path =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let case = load_case(&path).expect("demo case");
+    let runs: usize = std::env::var("BENCH_RUNS")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(5);
+
+    // Steady solve: mesh and symbolic analysis outside the timer, then assembly + factor + solve.
+    let mesh = Section::from_case(&case).unwrap().mesh(&case);
+    let net = Network::new(&mesh);
+    let mut steady = Vec::new();
+    let mut setup = Vec::new();
+    for _ in 0..20 {
+        let t0 = Instant::now();
+        let mut s = Solver::new(&net, SolverParams::default()).unwrap();
+        let t1 = Instant::now();
+        s.steady(&[20.0, 3.0], None).unwrap();
+        steady.push(t1.elapsed().as_secs_f64());
+        setup.push((t1 - t0).as_secs_f64());
+    }
+    println!(
+        "steady solve ({} cells): median {:.1} ms (symbolic set-up {:.1} ms)",
+        net.n,
+        1e3 * median(steady),
+        1e3 * median(setup)
+    );
+
+    let mut total = Vec::new();
+    let mut per_step = Vec::new();
+    let mut last = None;
+    for _ in 0..runs {
+        let t0 = Instant::now();
+        let r = simulate::run(&case, &mut |_| {}).unwrap();
+        let dt = t0.elapsed().as_secs_f64();
+        total.push(dt);
+        per_step.push(dt / r.time_steps as f64);
+        last = Some(r);
+    }
+    let r = last.unwrap();
+    println!(
+        "demo end to end: median {:.2} s over {runs} runs (min {:.2}, max {:.2})",
+        median(total.clone()),
+        total.iter().cloned().fold(f64::INFINITY, f64::min),
+        total.iter().cloned().fold(0.0, f64::max)
+    );
+    println!(
+        "  cells {}, steps {}, spin-up years {}, Newton iterations/step {:.2}, factorisations {}, solves {}",
+        r.mesh.solid_cells(),
+        r.time_steps,
+        r.spin_up_years(),
+        r.stats.newton_iterations as f64 / r.time_steps as f64,
+        r.stats.factorizations,
+        r.stats.solves
+    );
+    println!("  per time step: median {:.2} ms", 1e3 * median(per_step));
+}

@@ -86,7 +86,9 @@ pub fn point_temperature(
     }
     let (mut sw, mut st) = (0.0, 0.0);
     for &(i, j, p) in &cells {
-        let d = ((g.xc(i) - x).powi(2) + (g.zc(j) - z).powi(2)).sqrt().max(1e-12);
+        let d = ((g.xc(i) - x).powi(2) + (g.zc(j) - z).powi(2))
+            .sqrt()
+            .max(1e-12);
         let w = k_of(p) / d;
         sw += w;
         st += w * t[p];
@@ -140,7 +142,14 @@ fn bilinear(
 ///   front moving down through the cell);
 /// - if it is fully frozen, the front lies between its centre and the next centre down, where
 ///   linear interpolation of the temperature crosses `t_line`.
-pub fn frost_depth_column(mesh: &Mesh, net: &Network, t: &[f64], i: usize, z_from: f64, t_line: f64) -> Option<f64> {
+pub fn frost_depth_column(
+    mesh: &Mesh,
+    net: &Network,
+    t: &[f64],
+    i: usize,
+    z_from: f64,
+    t_line: f64,
+) -> Option<f64> {
     let g = &mesh.grid;
     let unk = |j: usize| {
         let p = net.unk_of[g.id(i, j)];
@@ -148,9 +157,15 @@ pub fn frost_depth_column(mesh: &Mesh, net: &Network, t: &[f64], i: usize, z_fro
     };
     let holds_ice = |p: usize| {
         let m = &net.materials[net.mat[p]];
-        if m.freezes() { t[p] < m.t_freeze } else { t[p] < t_line }
+        if m.freezes() {
+            t[p] < m.t_freeze
+        } else {
+            t[p] < t_line
+        }
     };
-    let jdeep = (0..g.nz()).rev().find(|&j| g.ze[j + 1] > z_from && unk(j).is_some_and(holds_ice))?;
+    let jdeep = (0..g.nz())
+        .rev()
+        .find(|&j| g.ze[j + 1] > z_from && unk(j).is_some_and(holds_ice))?;
     let p = unk(jdeep)?;
     let m = &net.materials[net.mat[p]];
     let z = if m.freezes() && t[p] > m.t_solidus() {
@@ -189,7 +204,9 @@ pub fn fit_sinusoid(times: &[f64], values: &[f64], omega: f64) -> (f64, f64, f64
 
 fn solve3(mut a: [[f64; 3]; 3], mut b: [f64; 3]) -> [f64; 3] {
     for c in 0..3 {
-        let piv = (c..3).max_by(|&r, &s| a[r][c].abs().total_cmp(&a[s][c].abs())).unwrap_or(c);
+        let piv = (c..3)
+            .max_by(|&r, &s| a[r][c].abs().total_cmp(&a[s][c].abs()))
+            .unwrap_or(c);
         a.swap(c, piv);
         b.swap(c, piv);
         for r in c + 1..3 {
@@ -216,7 +233,10 @@ mod tests {
     fn sinusoid_fit_recovers_parameters() {
         let w = 2.0 * std::f64::consts::PI / 365.0;
         let ts: Vec<f64> = (0..365).map(|d| d as f64).collect();
-        let vs: Vec<f64> = ts.iter().map(|&t| 4.0 + 12.0 * (w * t - 0.7).cos()).collect();
+        let vs: Vec<f64> = ts
+            .iter()
+            .map(|&t| 4.0 + 12.0 * (w * t - 0.7).cos())
+            .collect();
         let (m, a, p) = fit_sinusoid(&ts, &vs, w);
         assert!((m - 4.0).abs() < 1e-9 && (a - 12.0).abs() < 1e-9 && (p - 0.7).abs() < 1e-9);
     }

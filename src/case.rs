@@ -359,7 +359,8 @@ impl Climate {
         if d1 - d0 < 1e-12 {
             return self.mean_c - self.amplitude_k * (w * (d0 - c)).cos();
         }
-        self.mean_c - self.amplitude_k * ((w * (d1 - c)).sin() - (w * (d0 - c)).sin()) / (w * (d1 - d0))
+        self.mean_c
+            - self.amplitude_k * ((w * (d1 - c)).sin() - (w * (d0 - c)).sin()) / (w * (d1 - d0))
     }
 }
 
@@ -444,7 +445,12 @@ impl Case {
     }
     /// Soil material at depth z (m).
     pub fn soil_at(&self, z: f64) -> &Material {
-        &self.strata.iter().find(|s| z < s.bottom_m).unwrap_or(self.strata.last().expect("≥1 stratum")).material
+        &self
+            .strata
+            .iter()
+            .find(|s| z < s.bottom_m)
+            .unwrap_or(self.strata.last().expect("≥1 stratum"))
+            .material
     }
 }
 
@@ -464,7 +470,11 @@ impl Ctx<'_> {
         }
     }
     fn err_file(&self, key: &str, msg: impl Into<String>) -> Error {
-        Error::Input { location: Location::file_only(self.file), key: key.to_string(), message: msg.into() }
+        Error::Input {
+            location: Location::file_only(self.file),
+            key: key.to_string(),
+            message: msg.into(),
+        }
     }
     /// A value in (lo, hi] style checks: `lo < v <= hi` with units in the message.
     fn range(&self, v: &S<f64>, key: &str, lo: f64, hi: f64, unit: &str) -> Result<f64> {
@@ -481,12 +491,25 @@ impl Ctx<'_> {
     fn range_incl(&self, v: &S<f64>, key: &str, lo: f64, hi: f64, unit: &str) -> Result<f64> {
         let x = *v.get_ref();
         if !x.is_finite() || x < lo || x > hi {
-            return Err(self.err(v.span(), key, format!("{x} {unit} is out of range; allowed: {lo} to {hi} {unit}")));
+            return Err(self.err(
+                v.span(),
+                key,
+                format!("{x} {unit} is out of range; allowed: {lo} to {hi} {unit}"),
+            ));
         }
         Ok(x)
     }
-    fn opt(&self, v: &Option<S<f64>>, key: &str, lo: f64, hi: f64, unit: &str, default: f64) -> Result<f64> {
-        v.as_ref().map_or(Ok(default), |v| self.range_incl(v, key, lo, hi, unit))
+    fn opt(
+        &self,
+        v: &Option<S<f64>>,
+        key: &str,
+        lo: f64,
+        hi: f64,
+        unit: &str,
+        default: f64,
+    ) -> Result<f64> {
+        v.as_ref()
+            .map_or(Ok(default), |v| self.range_incl(v, key, lo, hi, unit))
     }
     fn material(&self, m: &Option<S<RawMaterial>>, key: &str, default: &str) -> Result<Material> {
         let Some(m) = m else {
@@ -494,24 +517,41 @@ impl Ctx<'_> {
         };
         match m.get_ref() {
             RawMaterial::Named(n) => named_material(n).ok_or_else(|| {
-                self.err(m.span(), key, format!("unknown material \"{n}\"; known: {}", MATERIAL_NAMES.join(", ")))
+                self.err(
+                    m.span(),
+                    key,
+                    format!(
+                        "unknown material \"{n}\"; known: {}",
+                        MATERIAL_NAMES.join(", ")
+                    ),
+                )
             }),
             RawMaterial::Explicit(e) => {
                 if !(e.conductivity_w_per_mk > 0.0 && e.conductivity_w_per_mk <= 500.0) {
                     return Err(self.err(
                         m.span(),
                         &format!("{key}.conductivity_w_per_mk"),
-                        format!("{} W/(m·K) is out of range; allowed: greater than 0 and at most 500", e.conductivity_w_per_mk),
+                        format!(
+                            "{} W/(m·K) is out of range; allowed: greater than 0 and at most 500",
+                            e.conductivity_w_per_mk
+                        ),
                     ));
                 }
                 if !(e.heat_capacity_j_per_m3k > 0.0 && e.heat_capacity_j_per_m3k <= 1e7) {
                     return Err(self.err(
                         m.span(),
                         &format!("{key}.heat_capacity_j_per_m3k"),
-                        format!("{} J/(m³·K) is out of range; allowed: greater than 0 and at most 1e7", e.heat_capacity_j_per_m3k),
+                        format!(
+                            "{} J/(m³·K) is out of range; allowed: greater than 0 and at most 1e7",
+                            e.heat_capacity_j_per_m3k
+                        ),
                     ));
                 }
-                Ok(Material::inert(key, e.conductivity_w_per_mk, e.heat_capacity_j_per_m3k))
+                Ok(Material::inert(
+                    key,
+                    e.conductivity_w_per_mk,
+                    e.heat_capacity_j_per_m3k,
+                ))
             }
         }
     }
@@ -523,7 +563,11 @@ pub fn parse_case(file: &str, src: &str) -> Result<Case> {
     let raw: RawCase = toml::from_str(src).map_err(|e| {
         let msg = e.message().to_string();
         let (location, table, line_key) = match e.span() {
-            Some(sp) => (Location::from_offset(file, src, sp.start), table_at(src, sp.start), key_on_line(src, sp.start)),
+            Some(sp) => (
+                Location::from_offset(file, src, sp.start),
+                table_at(src, sp.start),
+                key_on_line(src, sp.start),
+            ),
             None => (Location::file_only(file), String::new(), None),
         };
         // The key: the first `quoted` name in the message, else the key on the error's line, under
@@ -535,7 +579,11 @@ pub fn parse_case(file: &str, src: &str) -> Result<Case> {
             (None, false) => table,
             (None, true) => "(syntax)".into(),
         };
-        Error::Input { location, key, message: msg }
+        Error::Input {
+            location,
+            key,
+            message: msg,
+        }
     })?;
     validate(&ctx, raw)
 }
@@ -552,20 +600,26 @@ fn key_on_line(src: &str, offset: usize) -> Option<String> {
 
 /// Name of the TOML table whose header precedes byte `offset` (e.g. `slab`, `insulation`).
 fn table_at(src: &str, offset: usize) -> String {
-    let end = src[offset.min(src.len())..].find('\n').map_or(src.len(), |k| offset + k);
+    let end = src[offset.min(src.len())..]
+        .find('\n')
+        .map_or(src.len(), |k| offset + k);
     let upto = &src[..end];
     upto.lines()
         .filter_map(|l| {
             let l = l.trim();
-            l.starts_with('[').then(|| l.trim_matches(|c| c == '[' || c == ']').trim().to_string())
+            l.starts_with('[')
+                .then(|| l.trim_matches(|c| c == '[' || c == ']').trim().to_string())
         })
-        .last()
+        .next_back()
         .unwrap_or_default()
 }
 
 /// Read, parse and validate a case file.
 pub fn load_case(path: &std::path::Path) -> Result<Case> {
-    let src = std::fs::read_to_string(path).map_err(|e| Error::Io { path: path.to_path_buf(), source: e })?;
+    let src = std::fs::read_to_string(path).map_err(|e| Error::Io {
+        path: path.to_path_buf(),
+        source: e,
+    })?;
     parse_case(&path.display().to_string(), &src)
 }
 
@@ -609,7 +663,10 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             return Err(c.err(
                 b.indoor_temperature_c.span(),
                 "building.indoor_temperature_c",
-                format!("{} values given; allowed: one temperature or 12 monthly values (°C)", v.len()),
+                format!(
+                    "{} values given; allowed: one temperature or 12 monthly values (°C)",
+                    v.len()
+                ),
             ))
         }
     };
@@ -625,21 +682,56 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         exposed_perimeter_m: perim,
         b_prime_m: bp,
         indoor_monthly_c: indoor,
-        r_si_floor: c.opt(&b.floor_surface_resistance_m2k_per_w, "building.floor_surface_resistance_m2k_per_w", 0.0, 1.0, "m²·K/W", 0.17)?,
-        r_si_wall: c.opt(&b.wall_surface_resistance_m2k_per_w, "building.wall_surface_resistance_m2k_per_w", 0.0, 1.0, "m²·K/W", 0.13)?,
+        r_si_floor: c.opt(
+            &b.floor_surface_resistance_m2k_per_w,
+            "building.floor_surface_resistance_m2k_per_w",
+            0.0,
+            1.0,
+            "m²·K/W",
+            0.17,
+        )?,
+        r_si_wall: c.opt(
+            &b.wall_surface_resistance_m2k_per_w,
+            "building.wall_surface_resistance_m2k_per_w",
+            0.0,
+            1.0,
+            "m²·K/W",
+            0.13,
+        )?,
     };
 
     // Concrete parts.
     let slab = Slab {
         thickness_m: c.range(&raw.slab.thickness_m, "slab.thickness_m", 0.0, 1.0, "m")?,
         material: c.material(&raw.slab.material, "slab.material", "concrete")?,
-        top_above_ground_m: c.opt(&raw.slab.top_above_ground_m, "slab.top_above_ground_m", -0.5, 1.5, "m", 0.0)?,
-        finish_r: c.opt(&raw.slab.finish_resistance_m2k_per_w, "slab.finish_resistance_m2k_per_w", 0.0, 10.0, "m²·K/W", 0.0)?,
+        top_above_ground_m: c.opt(
+            &raw.slab.top_above_ground_m,
+            "slab.top_above_ground_m",
+            -0.5,
+            1.5,
+            "m",
+            0.0,
+        )?,
+        finish_r: c.opt(
+            &raw.slab.finish_resistance_m2k_per_w,
+            "slab.finish_resistance_m2k_per_w",
+            0.0,
+            10.0,
+            "m²·K/W",
+            0.0,
+        )?,
     };
     let wall = Wall {
         thickness_m: c.range(&raw.wall.thickness_m, "wall.thickness_m", 0.0, 2.0, "m")?,
         material: c.material(&raw.wall.material, "wall.material", "concrete")?,
-        height_above_ground_m: c.opt(&raw.wall.height_above_ground_m, "wall.height_above_ground_m", 0.0, 3.0, "m", 0.3)?,
+        height_above_ground_m: c.opt(
+            &raw.wall.height_above_ground_m,
+            "wall.height_above_ground_m",
+            0.0,
+            3.0,
+            "m",
+            0.3,
+        )?,
     };
     if wall.height_above_ground_m < slab.top_above_ground_m {
         return Err(c.err(
@@ -662,15 +754,30 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             "m (at most width_m − wall.thickness_m, so the footing carries the whole wall)",
             0.5 * (fw - wall.thickness_m).max(0.0),
         )?,
-        thickness_m: c.range(&raw.footing.thickness_m, "footing.thickness_m", 0.0, 3.0, "m")?,
-        base_depth_m: c.range(&raw.footing.base_depth_m, "footing.base_depth_m", 0.0, 6.0, "m")?,
+        thickness_m: c.range(
+            &raw.footing.thickness_m,
+            "footing.thickness_m",
+            0.0,
+            3.0,
+            "m",
+        )?,
+        base_depth_m: c.range(
+            &raw.footing.base_depth_m,
+            "footing.base_depth_m",
+            0.0,
+            6.0,
+            "m",
+        )?,
         material: c.material(&raw.footing.material, "footing.material", "concrete")?,
     };
     if footing.width_m < wall.thickness_m {
         return Err(c.err(
             raw.footing.width_m.span(),
             "footing.width_m",
-            format!("{} m is narrower than the wall ({} m); allowed: at least wall.thickness_m", footing.width_m, wall.thickness_m),
+            format!(
+                "{} m is narrower than the wall ({} m); allowed: at least wall.thickness_m",
+                footing.width_m, wall.thickness_m
+            ),
         ));
     }
     let slab_bottom = -slab.top_above_ground_m + slab.thickness_m;
@@ -705,7 +812,14 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
 
     // Simulation.
     let s = &raw.simulation;
-    let dt_h = c.opt(&s.time_step_h, "simulation.time_step_h", 0.25, 24.0, "h", 24.0)?;
+    let dt_h = c.opt(
+        &s.time_step_h,
+        "simulation.time_step_h",
+        0.25,
+        24.0,
+        "h",
+        24.0,
+    )?;
     if let Some(v) = &s.time_step_h {
         if (24.0 / dt_h - (24.0 / dt_h).round()).abs() > 1e-9 {
             return Err(c.err(v.span(), "simulation.time_step_h", format!("{dt_h} h does not divide a day; allowed: 24, 12, 8, 6, 4, 3, 2, 1, 0.5 or 0.25 h")));
@@ -716,7 +830,11 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         Some(v) => {
             let y = *v.get_ref();
             if !(1..=100).contains(&y) {
-                return Err(c.err(v.span(), "simulation.max_spin_up_years", format!("{y} is out of range; allowed: 1 to 100 years")));
+                return Err(c.err(
+                    v.span(),
+                    "simulation.max_spin_up_years",
+                    format!("{y} is out of range; allowed: 1 to 100 years"),
+                ));
             }
             y as usize
         }
@@ -724,7 +842,14 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let mesh = match &s.mesh {
         None => Fineness::Normal,
         Some(v) => Fineness::parse(v.get_ref()).ok_or_else(|| {
-            c.err(v.span(), "simulation.mesh", format!("\"{}\" is not a mesh fineness; allowed: coarse, normal, fine", v.get_ref()))
+            c.err(
+                v.span(),
+                "simulation.mesh",
+                format!(
+                    "\"{}\" is not a mesh fineness; allowed: coarse, normal, fine",
+                    v.get_ref()
+                ),
+            )
         })?,
     };
     let dom_default = (2.5 * bp).max(20.0);
@@ -732,14 +857,36 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         dt_s: dt_h * 3600.0,
         max_spin_up_years: max_years,
         mesh,
-        domain_width_m: c.opt(&s.domain_width_m, "simulation.domain_width_m", 2.0, 500.0, "m", dom_default)?,
-        domain_depth_m: c.opt(&s.domain_depth_m, "simulation.domain_depth_m", 2.0, 500.0, "m", dom_default)?,
-        bottom_temperature_c: s.bottom_temperature_c.as_ref().map(|v| c.range_incl(v, "simulation.bottom_temperature_c", -10.0, 40.0, "°C")).transpose()?,
+        domain_width_m: c.opt(
+            &s.domain_width_m,
+            "simulation.domain_width_m",
+            2.0,
+            500.0,
+            "m",
+            dom_default,
+        )?,
+        domain_depth_m: c.opt(
+            &s.domain_depth_m,
+            "simulation.domain_depth_m",
+            2.0,
+            500.0,
+            "m",
+            dom_default,
+        )?,
+        bottom_temperature_c: s
+            .bottom_temperature_c
+            .as_ref()
+            .map(|v| c.range_incl(v, "simulation.bottom_temperature_c", -10.0, 40.0, "°C"))
+            .transpose()?,
     };
 
     // Soil strata.
     if raw.soil.get_ref().is_empty() {
-        return Err(c.err(raw.soil.span(), "soil", "no strata; allowed: one or more [[soil]] tables, top to bottom"));
+        return Err(c.err(
+            raw.soil.span(),
+            "soil",
+            "no strata; allowed: one or more [[soil]] tables, top to bottom",
+        ));
     }
     let mut strata = Vec::new();
     let n_strata = raw.soil.get_ref().len();
@@ -761,7 +908,10 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             }
             None => f64::INFINITY,
         };
-        strata.push(Stratum { bottom_m: bottom, material: m });
+        strata.push(Stratum {
+            bottom_m: bottom,
+            material: m,
+        });
     }
 
     // Fill.
@@ -787,25 +937,59 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         let t = c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
         let mut material = match (&r.material, &r.conductivity_w_per_mk) {
             (Some(n), None) => named_material(n.get_ref()).ok_or_else(|| {
-                c.err(n.span(), &format!("{key}.material"), format!("unknown material \"{}\"; known: {}", n.get_ref(), MATERIAL_NAMES.join(", ")))
+                c.err(
+                    n.span(),
+                    &format!("{key}.material"),
+                    format!(
+                        "unknown material \"{}\"; known: {}",
+                        n.get_ref(),
+                        MATERIAL_NAMES.join(", ")
+                    ),
+                )
             })?,
             (None, Some(k_v)) => {
-                let kv = c.range(k_v, &format!("{key}.conductivity_w_per_mk"), 0.0, 1.0, "W/(m·K)")?;
+                let kv = c.range(
+                    k_v,
+                    &format!("{key}.conductivity_w_per_mk"),
+                    0.0,
+                    1.0,
+                    "W/(m·K)",
+                )?;
                 Material::inert("insulation", kv, 0.05e6)
             }
-            _ => return Err(c.err(ins.span(), &key, "give either material (a name) or conductivity_w_per_mk, not both and not neither")),
+            _ => return Err(c.err(
+                ins.span(),
+                &key,
+                "give either material (a name) or conductivity_w_per_mk, not both and not neither",
+            )),
         };
         if let Some(cap) = &r.heat_capacity_j_per_m3k {
-            let v = c.range(cap, &format!("{key}.heat_capacity_j_per_m3k"), 0.0, 1e7, "J/(m³·K)")?;
+            let v = c.range(
+                cap,
+                &format!("{key}.heat_capacity_j_per_m3k"),
+                0.0,
+                1e7,
+                "J/(m³·K)",
+            )?;
             material.c_frozen = v;
             material.c_unfrozen = v;
         }
         let need = |v: &Option<S<f64>>, name: &str| -> Result<S<f64>> {
-            v.clone().ok_or_else(|| c.err(ins.span(), &format!("{key}.{name}"), format!("missing; {} insulation needs {name}", r.kind.get_ref())))
+            v.clone().ok_or_else(|| {
+                c.err(
+                    ins.span(),
+                    &format!("{key}.{name}"),
+                    format!("missing; {} insulation needs {name}", r.kind.get_ref()),
+                )
+            })
         };
         let forbid = |v: &Option<S<f64>>, name: &str| -> Result<()> {
             match v {
-                Some(v) => Err(c.err(v.span(), &format!("{key}.{name}"), format!("not used by {} insulation; remove it", r.kind.get_ref()))),
+                Some(v) => Err(c.err(
+                    v.span(),
+                    &format!("{key}.{name}"),
+                    format!("not used by {} insulation; remove it", r.kind.get_ref()),
+                )),
                 None => Ok(()),
             }
         };
@@ -865,7 +1049,11 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
                     "\"{other}\" is not an insulation kind; allowed: under_slab, vertical_outside, vertical_inside, wing")))
             }
         };
-        insulation.push(Insulation { kind, thickness_m: t, material });
+        insulation.push(Insulation {
+            kind,
+            thickness_m: t,
+            material,
+        });
     }
     // Pieces of the same kind must not overlap each other; depth pieces stay inside the domain.
     for (k, a) in insulation.iter().enumerate() {
@@ -874,14 +1062,23 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             if same && !matches!(a.kind, InsulationKind::Wing { .. }) {
                 return Err(c.err(raw.insulation[k].span(), &format!("insulation[{k}].kind"), "two pieces of this kind would overlap; allowed: one piece per kind except wing"));
             }
-            if let (InsulationKind::Wing { depth_m: da, .. }, InsulationKind::Wing { depth_m: db, .. }) = (a.kind, b.kind) {
+            if let (
+                InsulationKind::Wing { depth_m: da, .. },
+                InsulationKind::Wing { depth_m: db, .. },
+            ) = (a.kind, b.kind)
+            {
                 if da < db + b.thickness_m && db < da + a.thickness_m {
-                    return Err(c.err(raw.insulation[k].span(), &format!("insulation[{k}].depth_m"), "two wing pieces overlap in depth; allowed: separate depths"));
+                    return Err(c.err(
+                        raw.insulation[k].span(),
+                        &format!("insulation[{k}].depth_m"),
+                        "two wing pieces overlap in depth; allowed: separate depths",
+                    ));
                 }
             }
         }
         let deepest = match a.kind {
-            InsulationKind::VerticalOutside { bottom_m, .. } | InsulationKind::VerticalInside { bottom_m, .. } => bottom_m,
+            InsulationKind::VerticalOutside { bottom_m, .. }
+            | InsulationKind::VerticalInside { bottom_m, .. } => bottom_m,
             InsulationKind::Wing { depth_m, .. } => depth_m + a.thickness_m,
             InsulationKind::UnderSlab { .. } => slab_bottom + a.thickness_m,
         };
@@ -891,7 +1088,11 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         }
     }
     if footing.base_depth_m > simulation.domain_depth_m - 1.0 {
-        return Err(c.err(raw.footing.base_depth_m.span(), "footing.base_depth_m", "outside the domain; increase simulation.domain_depth_m"));
+        return Err(c.err(
+            raw.footing.base_depth_m.span(),
+            "footing.base_depth_m",
+            "outside the domain; increase simulation.domain_depth_m",
+        ));
     }
 
     // Probes.
@@ -899,13 +1100,33 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let x_min = -(wall.thickness_m + 0.5 * bp);
     for (k, p) in raw.probe.iter().enumerate() {
         let r = p.get_ref();
-        let x = c.range_incl(&r.x_m, &format!("probe[{k}].x_m"), x_min, simulation.domain_width_m, "m")?;
-        let z = c.range_incl(&r.z_m, &format!("probe[{k}].z_m"), -wall.height_above_ground_m, simulation.domain_depth_m, "m")?;
+        let x = c.range_incl(
+            &r.x_m,
+            &format!("probe[{k}].x_m"),
+            x_min,
+            simulation.domain_width_m,
+            "m",
+        )?;
+        let z = c.range_incl(
+            &r.z_m,
+            &format!("probe[{k}].z_m"),
+            -wall.height_above_ground_m,
+            simulation.domain_depth_m,
+            "m",
+        )?;
         let name = r.name.get_ref().trim().to_string();
         if name.is_empty() || name.contains(',') || probes.iter().any(|q: &Probe| q.name == name) {
-            return Err(c.err(r.name.span(), &format!("probe[{k}].name"), "empty, duplicate or containing a comma; allowed: a unique name without commas"));
+            return Err(c.err(
+                r.name.span(),
+                &format!("probe[{k}].name"),
+                "empty, duplicate or containing a comma; allowed: a unique name without commas",
+            ));
         }
-        probes.push(Probe { name, x_m: x, z_m: z });
+        probes.push(Probe {
+            name,
+            x_m: x,
+            z_m: z,
+        });
     }
 
     Ok(Case {
@@ -929,20 +1150,44 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
     let lib = match &r.library {
         Some(n) => Some(bundled_soil(n.get_ref()).ok_or_else(|| {
             let names: Vec<&str> = SOILS.iter().map(|(n, _)| *n).collect();
-            c.err(n.span(), &format!("{key}.library"), format!("no soil \"{}\" in the library; known: {}", n.get_ref(), names.join(", ")))
+            c.err(
+                n.span(),
+                &format!("{key}.library"),
+                format!(
+                    "no soil \"{}\" in the library; known: {}",
+                    n.get_ref(),
+                    names.join(", ")
+                ),
+            )
         })?),
         None => None,
     };
     let f = |v: &Option<S<f64>>, name: &str, lo: f64, hi: f64, unit: &str| -> Result<Option<f64>> {
-        v.as_ref().map(|v| c.range(v, &format!("{key}.{name}"), lo, hi, unit)).transpose()
+        v.as_ref()
+            .map(|v| c.range(v, &format!("{key}.{name}"), lo, hi, unit))
+            .transpose()
     };
-    let rd = f(&r.dry_density_kg_per_m3, "dry_density_kg_per_m3", 100.0, 2700.0, "kg/m³")?;
+    let rd = f(
+        &r.dry_density_kg_per_m3,
+        "dry_density_kg_per_m3",
+        100.0,
+        2700.0,
+        "kg/m³",
+    )?;
     let w = match &r.water_content {
-        Some(v) => Some(c.range_incl(v, &format!("{key}.water_content"), 0.0, 5.0, "(fraction of dry mass)")?),
+        Some(v) => Some(c.range_incl(
+            v,
+            &format!("{key}.water_content"),
+            0.0,
+            5.0,
+            "(fraction of dry mass)",
+        )?),
         None => None,
     };
     let q = match &r.quartz_fraction {
-        Some(v) => Some(c.range_incl(v, &format!("{key}.quartz_fraction"), 0.0, 1.0, "(fraction)")?),
+        Some(v) => {
+            Some(c.range_incl(v, &format!("{key}.quartz_fraction"), 0.0, 1.0, "(fraction)")?)
+        }
         None => None,
     };
     let base = lib.as_ref().map(|l| l.index());
@@ -953,14 +1198,25 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
             quartz: q.unwrap_or(b.quartz),
             texture: r.texture.unwrap_or(b.texture),
         }),
-        (None, Some(rd), Some(w)) => Some(SoilIndex { dry_density: rd, water_content: w, quartz: q.unwrap_or(0.5), texture: r.texture.unwrap_or(Texture::Coarse) }),
+        (None, Some(rd), Some(w)) => Some(SoilIndex {
+            dry_density: rd,
+            water_content: w,
+            quartz: q.unwrap_or(0.5),
+            texture: r.texture.unwrap_or(Texture::Coarse),
+        }),
         _ => None,
     };
     let (ku0, kf0, cu0, cf0, l0) = match &index {
         Some(ix) => {
             let (ku, kf) = ix.johansen();
             let (cu, cf) = ix.heat_capacities();
-            (Some(ku), Some(kf), Some(cu), Some(cf), Some(ix.latent_heat()))
+            (
+                Some(ku),
+                Some(kf),
+                Some(cu),
+                Some(cf),
+                Some(ix.latent_heat()),
+            )
         }
         None => (None, None, None, None, None),
     };
@@ -968,15 +1224,57 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
         c.err(st.span(), &format!("{key}.{name}"), format!(
             "missing; give library = \"<soil>\", or dry_density_kg_per_m3 and water_content, or explicit {name}"))
     };
-    let ku = f(&r.k_unfrozen_w_per_mk, "k_unfrozen_w_per_mk", 0.0, 10.0, "W/(m·K)")?.or(ku0).ok_or_else(|| missing("k_unfrozen_w_per_mk"))?;
-    let kf = f(&r.k_frozen_w_per_mk, "k_frozen_w_per_mk", 0.0, 10.0, "W/(m·K)")?.or(kf0).unwrap_or(ku);
-    let cu = f(&r.c_unfrozen_j_per_m3k, "c_unfrozen_j_per_m3k", 1e5, 6e6, "J/(m³·K)")?.or(cu0).ok_or_else(|| missing("c_unfrozen_j_per_m3k"))?;
-    let cf = f(&r.c_frozen_j_per_m3k, "c_frozen_j_per_m3k", 1e5, 6e6, "J/(m³·K)")?.or(cf0).unwrap_or(cu);
+    let ku = f(
+        &r.k_unfrozen_w_per_mk,
+        "k_unfrozen_w_per_mk",
+        0.0,
+        10.0,
+        "W/(m·K)",
+    )?
+    .or(ku0)
+    .ok_or_else(|| missing("k_unfrozen_w_per_mk"))?;
+    let kf = f(
+        &r.k_frozen_w_per_mk,
+        "k_frozen_w_per_mk",
+        0.0,
+        10.0,
+        "W/(m·K)",
+    )?
+    .or(kf0)
+    .unwrap_or(ku);
+    let cu = f(
+        &r.c_unfrozen_j_per_m3k,
+        "c_unfrozen_j_per_m3k",
+        1e5,
+        6e6,
+        "J/(m³·K)",
+    )?
+    .or(cu0)
+    .ok_or_else(|| missing("c_unfrozen_j_per_m3k"))?;
+    let cf = f(
+        &r.c_frozen_j_per_m3k,
+        "c_frozen_j_per_m3k",
+        1e5,
+        6e6,
+        "J/(m³·K)",
+    )?
+    .or(cf0)
+    .unwrap_or(cu);
     let latent = match &r.latent_heat_j_per_m3 {
-        Some(v) => c.range_incl(v, &format!("{key}.latent_heat_j_per_m3"), 0.0, 400e6, "J/m³")?,
+        Some(v) => c.range_incl(
+            v,
+            &format!("{key}.latent_heat_j_per_m3"),
+            0.0,
+            400e6,
+            "J/m³",
+        )?,
         None => l0.ok_or_else(|| missing("latent_heat_j_per_m3"))?,
     };
-    let name = r.name.clone().or(lib.map(|l| l.name)).unwrap_or_else(|| format!("soil {key}"));
+    let name = r
+        .name
+        .clone()
+        .or(lib.map(|l| l.name))
+        .unwrap_or_else(|| format!("soil {key}"));
     Ok(Material {
         name,
         k_unfrozen: ku,
@@ -988,6 +1286,13 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
             Some(v) => c.range_incl(v, &format!("{key}.freezing_point_c"), -5.0, 0.0, "°C")?,
             None => 0.0,
         },
-        freezing_interval: f(&r.freezing_interval_k, "freezing_interval_k", 0.01, 5.0, "K")?.unwrap_or(0.5),
+        freezing_interval: f(
+            &r.freezing_interval_k,
+            "freezing_interval_k",
+            0.01,
+            5.0,
+            "K",
+        )?
+        .unwrap_or(0.5),
     })
 }

@@ -20,9 +20,11 @@ pub struct Cli {
 #[derive(Subcommand, Debug)]
 pub enum Command {
     /// Simulate a case: steady start, spin-up to a periodic year, results and files.
-    #[command(after_help = "Examples:\n  frostline run examples/kettle-hollow-house.toml --out out/kettle\n  \
+    #[command(
+        after_help = "Examples:\n  frostline run examples/kettle-hollow-house.toml --out out/kettle\n  \
         frostline run case.toml --out out/quick --mesh coarse --max-spin-up-years 3 --quiet\n\n\
-        Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out.")]
+        Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out."
+    )]
     Run(RunArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
@@ -113,9 +115,12 @@ fn execute(cli: Cli) -> Result<(), Error> {
             let bar = if a.quiet {
                 indicatif::ProgressBar::hidden()
             } else {
-                let b = indicatif::ProgressBar::new(((case.simulation.max_spin_up_years + 1) * 365) as u64);
-                if let Ok(style) = indicatif::ProgressStyle::with_template("{spinner} year {msg} [{bar:30}] {elapsed}")
-                {
+                let b = indicatif::ProgressBar::new(
+                    ((case.simulation.max_spin_up_years + 1) * 365) as u64,
+                );
+                if let Ok(style) = indicatif::ProgressStyle::with_template(
+                    "{spinner} year {msg} [{bar:30}] {elapsed}",
+                ) {
                     b.set_style(style.progress_chars("=> "));
                 }
                 b
@@ -133,7 +138,12 @@ fn execute(cli: Cli) -> Result<(), Error> {
             print!("{}", report::result_table(&case, &result));
             println!("\n  Files in {}:", a.out.display());
             for f in files {
-                println!("    {}", f.file_name().map(|s| s.to_string_lossy()).unwrap_or_default());
+                println!(
+                    "    {}",
+                    f.file_name()
+                        .map(|s| s.to_string_lossy())
+                        .unwrap_or_default()
+                );
             }
             Ok(())
         }
@@ -146,15 +156,35 @@ pub fn check_text(case: &Case) -> Result<String, Error> {
     let mesh = section.mesh(case);
     let c = simulate::cross_check(case);
     let mut s = format!("{}: case is valid\n", case.name);
-    s += &format!("  B' = {:.3} m (A {:.1} m², P {:.1} m)\n", case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m);
-    s += &format!("  section: x {:.2} … {:.2} m, z {:.2} … {:.2} m\n", section.x_min, section.x_max, section.z_top, section.z_bottom);
-    s += &format!("  mesh ({:?}): {} × {} grid, {} solid cells\n", case.simulation.mesh, mesh.grid.nx(), mesh.grid.nz(), mesh.solid_cells());
+    s += &format!(
+        "  B' = {:.3} m (A {:.1} m², P {:.1} m)\n",
+        case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m
+    );
+    s += &format!(
+        "  section: x {:.2} … {:.2} m, z {:.2} … {:.2} m\n",
+        section.x_min, section.x_max, section.z_top, section.z_bottom
+    );
+    s += &format!(
+        "  mesh ({:?}): {} × {} grid, {} solid cells\n",
+        case.simulation.mesh,
+        mesh.grid.nx(),
+        mesh.grid.nz(),
+        mesh.solid_cells()
+    );
     s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
         case.strata[0].material.k_unfrozen, case.strata[0].material.k_frozen,
         case.strata[0].material.c_unfrozen / 1e6, case.strata[0].material.c_frozen / 1e6, case.strata[0].material.latent / 1e6);
-    s += &format!("  design air freezing index {:.0} °C·d over {:.0} d\n", c.freezing_index_c_days, c.freezing_season_days);
-    s += &format!("  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
-        c.iso13370_dt_m, c.iso13370_u0_w_per_m2k, c.iso13370_edge_psi_w_per_mk, c.iso13370_u_value_w_per_m2k);
+    s += &format!(
+        "  design air freezing index {:.0} °C·d over {:.0} d\n",
+        c.freezing_index_c_days, c.freezing_season_days
+    );
+    s += &format!(
+        "  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
+        c.iso13370_dt_m,
+        c.iso13370_u0_w_per_m2k,
+        c.iso13370_edge_psi_w_per_mk,
+        c.iso13370_u_value_w_per_m2k
+    );
     s += &format!("  open-ground frost depth: Stefan {:.2} m, modified Berggren {:.2} m; footing base {:.2} m\n",
         c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m, case.footing.base_depth_m);
     Ok(s)

@@ -18,13 +18,26 @@ impl Location {
     pub fn from_offset(file: &str, src: &str, offset: usize) -> Self {
         let upto = &src[..offset.min(src.len())];
         let line = upto.matches('\n').count() + 1;
-        let column = upto.rsplit('\n').next().map(|s| s.chars().count()).unwrap_or(0) + 1;
-        Location { file: file.to_string(), line, column }
+        let column = upto
+            .rsplit('\n')
+            .next()
+            .map(|s| s.chars().count())
+            .unwrap_or(0)
+            + 1;
+        Location {
+            file: file.to_string(),
+            line,
+            column,
+        }
     }
 
     /// A location naming only the file.
     pub fn file_only(file: &str) -> Self {
-        Location { file: file.to_string(), line: 0, column: 0 }
+        Location {
+            file: file.to_string(),
+            line: 0,
+            column: 0,
+        }
     }
 }
 

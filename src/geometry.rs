@@ -92,17 +92,39 @@ impl Section {
                         under = slab_bot + t;
                     }
                     let x0 = band_width_m.map_or(x_min, |b| -w - b);
-                    Rect { x0, x1: -w, z0: slab_bot, z1: slab_bot + t, part: Part::Insulation(k) }
+                    Rect {
+                        x0,
+                        x1: -w,
+                        z0: slab_bot,
+                        z1: slab_bot + t,
+                        part: Part::Insulation(k),
+                    }
                 }
-                InsulationKind::VerticalOutside { top_m, bottom_m } => {
-                    Rect { x0: 0.0, x1: t, z0: top_m, z1: bottom_m, part: Part::Insulation(k) }
-                }
-                InsulationKind::VerticalInside { top_m, bottom_m } => {
-                    Rect { x0: -w - t, x1: -w, z0: top_m, z1: bottom_m, part: Part::Insulation(k) }
-                }
-                InsulationKind::Wing { depth_m, x_start_m, width_m } => {
-                    Rect { x0: x_start_m, x1: width_m, z0: depth_m, z1: depth_m + t, part: Part::Insulation(k) }
-                }
+                InsulationKind::VerticalOutside { top_m, bottom_m } => Rect {
+                    x0: 0.0,
+                    x1: t,
+                    z0: top_m,
+                    z1: bottom_m,
+                    part: Part::Insulation(k),
+                },
+                InsulationKind::VerticalInside { top_m, bottom_m } => Rect {
+                    x0: -w - t,
+                    x1: -w,
+                    z0: top_m,
+                    z1: bottom_m,
+                    part: Part::Insulation(k),
+                },
+                InsulationKind::Wing {
+                    depth_m,
+                    x_start_m,
+                    width_m,
+                } => Rect {
+                    x0: x_start_m,
+                    x1: width_m,
+                    z0: depth_m,
+                    z1: depth_m + t,
+                    part: Part::Insulation(k),
+                },
             };
             ins_rects.push(r);
         }
@@ -110,20 +132,52 @@ impl Section {
         // floor is above ground.
         let fill_bot = under + case.fill.as_ref().map_or(0.0, |f| f.0);
         if slab_bot < 0.0 {
-            rects.push(Rect { x0: x_min, x1: -w, z0: slab_bot, z1: 0.0, part: Part::Fill });
+            rects.push(Rect {
+                x0: x_min,
+                x1: -w,
+                z0: slab_bot,
+                z1: 0.0,
+                part: Part::Fill,
+            });
         }
         if fill_bot > under {
-            rects.push(Rect { x0: x_min, x1: -w, z0: under, z1: fill_bot, part: Part::Fill });
+            rects.push(Rect {
+                x0: x_min,
+                x1: -w,
+                z0: under,
+                z1: fill_bot,
+                part: Part::Fill,
+            });
         }
-        let footing = Rect { x0: fx0, x1: fx1, z0: ftop, z1: case.footing.base_depth_m, part: Part::Footing };
-        let wall = Rect { x0: -w, x1: 0.0, z0: z_top, z1: ftop, part: Part::Wall };
-        let slab = Rect { x0: x_min, x1: -w, z0: floor_z, z1: slab_bot, part: Part::Slab };
+        let footing = Rect {
+            x0: fx0,
+            x1: fx1,
+            z0: ftop,
+            z1: case.footing.base_depth_m,
+            part: Part::Footing,
+        };
+        let wall = Rect {
+            x0: -w,
+            x1: 0.0,
+            z0: z_top,
+            z1: ftop,
+            part: Part::Wall,
+        };
+        let slab = Rect {
+            x0: x_min,
+            x1: -w,
+            z0: floor_z,
+            z1: slab_bot,
+            part: Part::Slab,
+        };
         rects.extend([footing, wall, slab]);
         // Insulation must not overlap concrete or other insulation.
         let err = |k: usize, what: &str| Error::Input {
             location: Location::file_only(&case.file),
             key: format!("insulation[{k}]"),
-            message: format!("overlaps the {what}; allowed: insulation beside, not inside, other parts"),
+            message: format!(
+                "overlaps the {what}; allowed: insulation beside, not inside, other parts"
+            ),
         };
         for (k, r) in ins_rects.iter().enumerate() {
             for (c, name) in [(&footing, "footing"), (&wall, "wall"), (&slab, "slab")] {
@@ -145,7 +199,13 @@ impl Section {
             }
         }
         rects.extend(ins_rects);
-        Ok(Section { x_min, x_max, z_top, z_bottom, rects })
+        Ok(Section {
+            x_min,
+            x_max,
+            z_top,
+            z_bottom,
+            rects,
+        })
     }
 
     /// Graded mesh of the section for `case` (materials: strata first, then construction parts).
@@ -153,15 +213,27 @@ impl Section {
         let (h0, growth, hmax) = case.simulation.mesh.sizes();
         let w = case.wall.thickness_m;
         let mut bx = vec![
-            Breakpoint { at: self.x_min, size: (4.0 * h0).min(hmax) },
-            Breakpoint { at: self.x_max, size: hmax },
+            Breakpoint {
+                at: self.x_min,
+                size: (4.0 * h0).min(hmax),
+            },
+            Breakpoint {
+                at: self.x_max,
+                size: hmax,
+            },
             Breakpoint { at: -w, size: h0 },
             Breakpoint { at: 0.0, size: h0 },
         ];
         let mut bz = vec![
-            Breakpoint { at: self.z_top, size: h0 },
+            Breakpoint {
+                at: self.z_top,
+                size: h0,
+            },
             Breakpoint { at: 0.0, size: h0 },
-            Breakpoint { at: self.z_bottom, size: hmax },
+            Breakpoint {
+                at: self.z_bottom,
+                size: hmax,
+            },
         ];
         for r in &self.rects {
             for x in [r.x0, r.x1] {
@@ -177,10 +249,16 @@ impl Section {
         }
         for s in &case.strata {
             if s.bottom_m < self.z_bottom - 1e-9 {
-                bz.push(Breakpoint { at: s.bottom_m, size: 2.0 * h0 });
+                bz.push(Breakpoint {
+                    at: s.bottom_m,
+                    size: 2.0 * h0,
+                });
             }
         }
-        let grid = Grid { xe: graded_edges(&bx, growth, hmax), ze: graded_edges(&bz, growth, hmax) };
+        let grid = Grid {
+            xe: graded_edges(&bx, growth, hmax),
+            ze: graded_edges(&bz, growth, hmax),
+        };
         let (nx, nz) = (grid.nx(), grid.nz());
 
         // Materials: strata, then slab, wall, footing, fill, insulation pieces.
@@ -192,18 +270,25 @@ impl Section {
         let slab_m = mesh.add_material(case.slab.material.clone());
         let wall_m = mesh.add_material(case.wall.material.clone());
         let foot_m = mesh.add_material(case.footing.material.clone());
-        let fill_m = mesh.add_material(
-            case.fill.as_ref().map(|f| f.1.clone()).unwrap_or_else(|| {
+        let fill_m =
+            mesh.add_material(case.fill.as_ref().map(|f| f.1.clone()).unwrap_or_else(|| {
                 crate::physics::library::named_material("gravel").expect("gravel exists")
-            }),
-        );
-        let ins_m: Vec<usize> = case.insulation.iter().map(|i| mesh.add_material(i.material.clone())).collect();
+            }));
+        let ins_m: Vec<usize> = case
+            .insulation
+            .iter()
+            .map(|i| mesh.add_material(i.material.clone()))
+            .collect();
         mesh.add_zone(Zone {
             name: "indoor".into(),
             r_horizontal: case.building.r_si_floor + case.slab.finish_r,
             r_vertical: case.building.r_si_wall,
         });
-        mesh.add_zone(Zone { name: "outdoor".into(), r_horizontal: case.climate.r_se, r_vertical: case.climate.r_se });
+        mesh.add_zone(Zone {
+            name: "outdoor".into(),
+            r_horizontal: case.climate.r_se,
+            r_vertical: case.climate.r_se,
+        });
         // Soil by depth; air above ground.
         for j in 0..nz {
             let zc = mesh.grid.zc(j);
@@ -218,7 +303,11 @@ impl Section {
                         Cell::Solid(fill_m)
                     }
                 } else {
-                    let k = case.strata.iter().position(|s| zc < s.bottom_m).unwrap_or(case.strata.len() - 1);
+                    let k = case
+                        .strata
+                        .iter()
+                        .position(|s| zc < s.bottom_m)
+                        .unwrap_or(case.strata.len() - 1);
                     Cell::Solid(strata_idx[k])
                 };
                 let id = mesh.grid.id(i, j);
@@ -241,16 +330,26 @@ impl Section {
             let xc = mesh.grid.xc(i);
             if matches!(mesh.cells[mesh.grid.id(i, 0)], Cell::Solid(_)) {
                 mesh.top[i] = if xc < -w {
-                    EdgeBc::Zone { zone: INDOOR, r: case.building.r_si_floor + case.slab.finish_r }
+                    EdgeBc::Zone {
+                        zone: INDOOR,
+                        r: case.building.r_si_floor + case.slab.finish_r,
+                    }
                 } else if xc > 0.0 {
-                    EdgeBc::Zone { zone: OUTDOOR, r: case.climate.r_se }
+                    EdgeBc::Zone {
+                        zone: OUTDOOR,
+                        r: case.climate.r_se,
+                    }
                 } else {
                     EdgeBc::Adiabatic
                 };
             }
         }
         if case.simulation.bottom_temperature_c.is_some() {
-            let z = mesh.add_zone(Zone { name: "deep ground".into(), r_horizontal: 0.0, r_vertical: 0.0 });
+            let z = mesh.add_zone(Zone {
+                name: "deep ground".into(),
+                r_horizontal: 0.0,
+                r_vertical: 0.0,
+            });
             debug_assert_eq!(z, DEEP);
             mesh.bottom = vec![EdgeBc::Zone { zone: DEEP, r: 0.0 }; nx];
         }

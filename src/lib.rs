@@ -5,17 +5,19 @@
 //! [`solver`] → [`analysis`] → [`report`] → [`cli`]. [`methods`] holds the closed-form published
 //! methods used as cross-checks. The library never prints; only [`cli`] does.
 #![deny(missing_docs)]
+// Index loops over several arrays of the same length read closest to the discrete equations.
+#![allow(clippy::needless_range_loop)]
 
+pub mod analysis;
 pub mod case;
+pub mod cli;
 pub mod error;
 pub mod geometry;
 pub mod mesh;
-pub mod physics;
-pub mod solver;
-pub mod analysis;
 pub mod methods;
+pub mod physics;
 pub mod report;
 pub mod simulate;
-pub mod cli;
+pub mod solver;
 
 pub use error::{Error, Result};

@@ -239,7 +239,10 @@ impl Mesh {
 
     /// Number of solid cells (unknowns).
     pub fn solid_cells(&self) -> usize {
-        self.cells.iter().filter(|c| matches!(c, Cell::Solid(_))).count()
+        self.cells
+            .iter()
+            .filter(|c| matches!(c, Cell::Solid(_)))
+            .count()
     }
 }
 
@@ -255,9 +258,18 @@ mod tests {
     #[test]
     fn graded_axis_hits_breakpoints_and_grows_gently() {
         let pts = [
-            Breakpoint { at: 0.0, size: 0.02 },
-            Breakpoint { at: 0.3, size: 0.02 },
-            Breakpoint { at: 20.0, size: 1.0 },
+            Breakpoint {
+                at: 0.0,
+                size: 0.02,
+            },
+            Breakpoint {
+                at: 0.3,
+                size: 0.02,
+            },
+            Breakpoint {
+                at: 20.0,
+                size: 1.0,
+            },
         ];
         let e = graded_edges(&pts, 1.2, 1.0);
         assert_eq!(e[0], 0.0);
@@ -274,7 +286,10 @@ mod tests {
 
     #[test]
     fn find_cell() {
-        let g = Grid { xe: vec![0.0, 1.0, 3.0], ze: vec![0.0, 2.0] };
+        let g = Grid {
+            xe: vec![0.0, 1.0, 3.0],
+            ze: vec![0.0, 2.0],
+        };
         assert_eq!(g.find_x(0.5), 0);
         assert_eq!(g.find_x(1.5), 1);
         assert_eq!(g.find_x(5.0), 1);

@@ -107,7 +107,8 @@ impl Neumann {
         let ratio = (self.t_initial - self.t_freeze) / (self.t_freeze - self.t_surface);
         let f = |x: f64| {
             (-x * x).exp() / erf(x)
-                - self.k_unfrozen / self.k_frozen * nu * ratio * (-nu * nu * x * x).exp() / erfc(nu * x)
+                - self.k_unfrozen / self.k_frozen * nu * ratio * (-nu * nu * x * x).exp()
+                    / erfc(nu * x)
                 - x * PI.sqrt() / st
         };
         bisect(f, 1e-8, 10.0)
@@ -144,7 +145,8 @@ pub fn modified_berggren_depth(
 
 /// The modified Berggren coefficient λ(α, μ) (dimensionless).
 pub fn berggren_lambda(alpha: f64, mu: f64) -> f64 {
-    let f = |x: f64| (-x * x).exp() / erf(x) - alpha * (-x * x).exp() / erfc(x) - x * PI.sqrt() / mu;
+    let f =
+        |x: f64| (-x * x).exp() / erf(x) - alpha * (-x * x).exp() / erfc(x) - x * PI.sqrt() / mu;
     bisect(f, 1e-9, 10.0) * (2.0 / mu).sqrt()
 }
 
@@ -159,7 +161,10 @@ pub fn sinusoid_freezing_index(mean_c: f64, amplitude_k: f64) -> (f64, f64) {
         return (-mean_c * p, p);
     }
     let th0 = (mean_c / amplitude_k).acos();
-    (p / PI * (amplitude_k * th0.sin() - mean_c * th0), p * th0 / PI)
+    (
+        p / PI * (amplitude_k * th0.sin() - mean_c * th0),
+        p * th0 / PI,
+    )
 }
 
 /// Root of a continuous f with f(lo) > 0 > f(hi) (or the reverse), by bisection to 1e-14.
@@ -204,7 +209,10 @@ mod tests {
         for (a, p, l, rf, u) in cases {
             let b = characteristic_dimension(a, p);
             let dt = equivalent_thickness(0.3, l, 0.17, rf, 0.04);
-            assert!((iso13370_slab_u(l, b, dt) - u).abs() < 6e-5, "{a} {p} {l} {rf}");
+            assert!(
+                (iso13370_slab_u(l, b, dt) - u).abs() < 6e-5,
+                "{a} {p} {l} {rf}"
+            );
         }
         // The two branches nearly coincide at d_t = B' (0.274499 vs 0.274537).
         let lo = 2.0 * 2.0 / (PI * 5.0 + 5.0) * (PI + 1.0).ln();
@@ -215,7 +223,15 @@ mod tests {
     #[test]
     fn iso13370_edge_psi_check_values() {
         let rn = 0.05 / 0.035;
-        let h = |d| iso13370_edge_psi(2.0, 0.72, rn, 0.05, EdgeInsulation::Horizontal { width_m: d });
+        let h = |d| {
+            iso13370_edge_psi(
+                2.0,
+                0.72,
+                rn,
+                0.05,
+                EdgeInsulation::Horizontal { width_m: d },
+            )
+        };
         let v = |d| iso13370_edge_psi(2.0, 0.72, rn, 0.05, EdgeInsulation::Vertical { depth_m: d });
         assert!((h(0.5) + 0.2513).abs() < 1e-4);
         assert!((v(0.5) + 0.3955).abs() < 1e-4);
@@ -246,7 +262,10 @@ mod tests {
         };
         assert!((n.xi() - 0.235536).abs() < 2e-6);
         assert!((n.front_depth(100.0 * 86400.0) - 1.4596).abs() < 1e-4);
-        let one_phase = Neumann { t_initial: 0.0, ..n };
+        let one_phase = Neumann {
+            t_initial: 0.0,
+            ..n
+        };
         assert!((one_phase.xi() - 0.262221).abs() < 2e-6);
         let n3 = Neumann {
             t_surface: -5.0,

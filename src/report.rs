@@ -43,12 +43,20 @@ pub struct Headline {
 pub fn headline(case: &Case, r: &RunResult) -> Headline {
     let y = r.final_year();
     let mean_w = y.heat_loss_kwh * 1000.0 / 8760.0;
-    let peak = r.days.iter().map(|d| d.heat_loss_w).fold(f64::NEG_INFINITY, f64::max);
+    let peak = r
+        .days
+        .iter()
+        .map(|d| d.heat_loss_w)
+        .fold(f64::NEG_INFINITY, f64::max);
     let dtemp = case.indoor_mean_c() - case.climate.mean_c;
     let day_max = if y.max_frost_footing_m > 0.0 {
-        r.days.iter().max_by(|a, b| a.frost_footing_m.total_cmp(&b.frost_footing_m))
+        r.days
+            .iter()
+            .max_by(|a, b| a.frost_footing_m.total_cmp(&b.frost_footing_m))
     } else {
-        r.days.iter().max_by(|a, b| a.frost_open_m.total_cmp(&b.frost_open_m))
+        r.days
+            .iter()
+            .max_by(|a, b| a.frost_open_m.total_cmp(&b.frost_open_m))
     };
     Headline {
         annual_heat_loss_kwh: y.heat_loss_kwh,
@@ -115,13 +123,20 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
 pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
     let path = dir.join(name);
     let tmp = dir.join(format!(".{name}.tmp"));
-    let io = |e| Error::Io { path: path.clone(), source: e };
+    let io = |e| Error::Io {
+        path: path.clone(),
+        source: e,
+    };
     std::fs::write(&tmp, bytes).map_err(io)?;
     std::fs::rename(&tmp, &path).map_err(io)?;
     Ok(path)
 }
 
-fn csv_bytes(header_comment: &str, header: &[String], rows: impl Iterator<Item = Vec<String>>) -> Result<Vec<u8>> {
+fn csv_bytes(
+    header_comment: &str,
+    header: &[String],
+    rows: impl Iterator<Item = Vec<String>>,
+) -> Result<Vec<u8>> {
     let mut out = Vec::new();
     for line in header_comment.lines() {
         out.extend_from_slice(format!("# {line}\n").as_bytes());
@@ -136,15 +151,23 @@ fn csv_bytes(header_comment: &str, header: &[String], rows: impl Iterator<Item =
 }
 
 fn f(v: f64, digits: usize) -> String {
-    if v.is_finite() { format!("{v:.digits$}") } else { String::new() }
+    if v.is_finite() {
+        format!("{v:.digits$}")
+    } else {
+        String::new()
+    }
 }
 
 /// Write every output file of a run into `dir` (created if missing); returns the paths.
 pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathBuf>> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::Io { path: dir.to_path_buf(), source: e })?;
+    std::fs::create_dir_all(dir).map_err(|e| Error::Io {
+        path: dir.to_path_buf(),
+        source: e,
+    })?;
     let mut files = Vec::new();
     let head = format!("{}\n{CAUTION}\nCoordinates: {COORDINATES}.", case.name);
-    let summary = serde_json::to_vec_pretty(&summary_json(case, r)).map_err(|e| Error::Output(e.to_string()))?;
+    let summary = serde_json::to_vec_pretty(&summary_json(case, r))
+        .map_err(|e| Error::Output(e.to_string()))?;
     files.push(write_atomic(dir, "summary.json", &summary)?);
 
     let hdr = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
@@ -172,14 +195,31 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
     }
     let monthly = csv_bytes(
         &format!("{head}\nCalendar months of the reported year (365-day calendar)."),
-        &hdr(&["month", "ground_heat_loss_kwh", "mean_outdoor_temperature_c", "max_frost_depth_open_ground_m", "max_frost_depth_under_footing_m"]),
-        (0..12).map(|m| vec![(m + 1).to_string(), f(kwh[m], 2), f(tout[m] / n[m].max(1) as f64, 3), f(fo[m], 4), f(ff[m], 4)]),
+        &hdr(&[
+            "month",
+            "ground_heat_loss_kwh",
+            "mean_outdoor_temperature_c",
+            "max_frost_depth_open_ground_m",
+            "max_frost_depth_under_footing_m",
+        ]),
+        (0..12).map(|m| {
+            vec![
+                (m + 1).to_string(),
+                f(kwh[m], 2),
+                f(tout[m] / n[m].max(1) as f64, 3),
+                f(fo[m], 4),
+                f(ff[m], 4),
+            ]
+        }),
     )?;
     files.push(write_atomic(dir, "monthly.csv", &monthly)?);
 
     let mut ph = vec!["day_of_year".to_string()];
     for p in &case.probes {
-        ph.push(format!("{} (x={} m z={} m) temperature_c", p.name, p.x_m, p.z_m));
+        ph.push(format!(
+            "{} (x={} m z={} m) temperature_c",
+            p.name, p.x_m, p.z_m
+        ));
     }
     let probes = csv_bytes(
         &format!("{head}\nProbe temperatures at the end of each day of the reported year."),
@@ -201,7 +241,11 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
             v.is_finite().then(|| vec![f(g.xc(i), 4), f(g.zc(j), 4), f(v, 3)])
         }),
     )?;
-    files.push(write_atomic(dir, &format!("field_{:03}.csv", r.field.day_of_year), &field)?);
+    files.push(write_atomic(
+        dir,
+        &format!("field_{:03}.csv", r.field.day_of_year),
+        &field,
+    )?);
     Ok(files)
 }
 
@@ -212,23 +256,61 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
     let y = r.final_year();
     let mut s = String::new();
     s += &format!("{}\n", case.name);
-    s += &format!("  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
-        case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m);
+    s += &format!(
+        "  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
+        case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m
+    );
     s += "\n  Heat loss to the ground                     model      ISO 13370\n";
-    s += &format!("    annual                          kWh  {:>10.0}\n", h.annual_heat_loss_kwh);
-    s += &format!("    mean                              W  {:>10.1}  {:>10.1}\n", h.mean_heat_loss_w, c.iso13370_mean_heat_loss_w);
-    s += &format!("    peak (daily mean)                 W  {:>10.1}\n", h.peak_heat_loss_w);
-    s += &format!("    per metre of exposed perimeter  W/m  {:>10.2}\n", h.heat_loss_per_perimeter_w_per_m);
-    s += &format!("    floor U-value               W/(m²K)  {:>10.3}  {:>10.3}\n", h.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k);
+    s += &format!(
+        "    annual                          kWh  {:>10.0}\n",
+        h.annual_heat_loss_kwh
+    );
+    s += &format!(
+        "    mean                              W  {:>10.1}  {:>10.1}\n",
+        h.mean_heat_loss_w, c.iso13370_mean_heat_loss_w
+    );
+    s += &format!(
+        "    peak (daily mean)                 W  {:>10.1}\n",
+        h.peak_heat_loss_w
+    );
+    s += &format!(
+        "    per metre of exposed perimeter  W/m  {:>10.2}\n",
+        h.heat_loss_per_perimeter_w_per_m
+    );
+    s += &format!(
+        "    floor U-value               W/(m²K)  {:>10.3}  {:>10.3}\n",
+        h.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k
+    );
     s += "\n  Frost depth (below ground level)            model      Stefan  mod. Berggren\n";
-    s += &format!("    open ground                       m  {:>10.2}  {:>10.2}  {:>10.2}\n",
-        h.frost_depth_open_ground_m, c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m);
-    s += &format!("    under the footing                 m  {:>10.2}\n", h.frost_depth_under_footing_m);
-    s += &format!("    footing base                      m  {:>10.2}\n", case.footing.base_depth_m);
-    s += &format!("    margin (base − frost)             m  {:>10.2}  {}\n", h.frost_margin_m,
-        if h.frost_margin_m < 0.0 { "FROST BELOW FOOTING BASE" } else { "" });
-    s += &format!("    deepest on day of year               {:>10}\n", h.date_of_max_frost_depth);
-    s += &format!("    design air freezing index      °C·d  {:>10.0}\n", c.freezing_index_c_days);
+    s += &format!(
+        "    open ground                       m  {:>10.2}  {:>10.2}  {:>10.2}\n",
+        h.frost_depth_open_ground_m, c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m
+    );
+    s += &format!(
+        "    under the footing                 m  {:>10.2}\n",
+        h.frost_depth_under_footing_m
+    );
+    s += &format!(
+        "    footing base                      m  {:>10.2}\n",
+        case.footing.base_depth_m
+    );
+    s += &format!(
+        "    margin (base − frost)             m  {:>10.2}  {}\n",
+        h.frost_margin_m,
+        if h.frost_margin_m < 0.0 {
+            "FROST BELOW FOOTING BASE"
+        } else {
+            ""
+        }
+    );
+    s += &format!(
+        "    deepest on day of year               {:>10}\n",
+        h.date_of_max_frost_depth
+    );
+    s += &format!(
+        "    design air freezing index      °C·d  {:>10.0}\n",
+        c.freezing_index_c_days
+    );
     s += &format!("\n  Numerics: {} cells, {} steps, {} spin-up years ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
         r.mesh.solid_cells(), r.time_steps, r.spin_up_years(),
         if r.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },

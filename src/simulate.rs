@@ -15,7 +15,9 @@ pub const SPIN_UP_FROST_TOL_M: f64 = 0.01;
 
 /// Month (0–11) of calendar day `d` (days since 1 January, 365-day year).
 pub fn month_of(d: f64) -> usize {
-    const ENDS: [f64; 12] = [31., 59., 90., 120., 151., 181., 212., 243., 273., 304., 334., 365.];
+    const ENDS: [f64; 12] = [
+        31., 59., 90., 120., 151., 181., 212., 243., 273., 304., 334., 365.,
+    ];
     let d = d.rem_euclid(365.0);
     ENDS.iter().position(|&e| d < e).unwrap_or(11)
 }
@@ -136,7 +138,9 @@ pub struct Progress {
 /// Cell columns whose centres lie under the footing.
 pub fn footing_columns(mesh: &Mesh, case: &Case) -> Vec<usize> {
     let (x0, x1) = case.footing_x();
-    (0..mesh.grid.nx()).filter(|&i| (x0..=x1).contains(&mesh.grid.xc(i))).collect()
+    (0..mesh.grid.nx())
+        .filter(|&i| (x0..=x1).contains(&mesh.grid.xc(i)))
+        .collect()
 }
 
 /// Frost-line temperature: the midpoint of the top stratum's freezing interval, °C.
@@ -155,26 +159,52 @@ pub fn cross_check(case: &Case) -> CrossCheck {
         let r_n = ins.thickness_m / ins.material.k_unfrozen;
         match ins.kind {
             InsulationKind::UnderSlab { band_width_m: None } => r_f += r_n,
-            InsulationKind::UnderSlab { band_width_m: Some(d) } => {
-                edges.push((methods::EdgeInsulation::Horizontal { width_m: d }, r_n, ins.thickness_m))
-            }
-            InsulationKind::VerticalOutside { bottom_m, .. } | InsulationKind::VerticalInside { bottom_m, .. } => {
-                edges.push((methods::EdgeInsulation::Vertical { depth_m: bottom_m.max(0.0) }, r_n, ins.thickness_m))
-            }
-            InsulationKind::Wing { x_start_m, width_m, .. } => {
-                edges.push((methods::EdgeInsulation::Horizontal { width_m: width_m - x_start_m }, r_n, ins.thickness_m))
-            }
+            InsulationKind::UnderSlab {
+                band_width_m: Some(d),
+            } => edges.push((
+                methods::EdgeInsulation::Horizontal { width_m: d },
+                r_n,
+                ins.thickness_m,
+            )),
+            InsulationKind::VerticalOutside { bottom_m, .. }
+            | InsulationKind::VerticalInside { bottom_m, .. } => edges.push((
+                methods::EdgeInsulation::Vertical {
+                    depth_m: bottom_m.max(0.0),
+                },
+                r_n,
+                ins.thickness_m,
+            )),
+            InsulationKind::Wing {
+                x_start_m, width_m, ..
+            } => edges.push((
+                methods::EdgeInsulation::Horizontal {
+                    width_m: width_m - x_start_m,
+                },
+                r_n,
+                ins.thickness_m,
+            )),
         }
     }
-    let d_t = methods::equivalent_thickness(case.wall.thickness_m, lambda, b.r_si_floor, r_f, case.climate.r_se);
+    let d_t = methods::equivalent_thickness(
+        case.wall.thickness_m,
+        lambda,
+        b.r_si_floor,
+        r_f,
+        case.climate.r_se,
+    );
     let u0 = methods::iso13370_slab_u(lambda, b.b_prime_m, d_t);
     let psi = edges
         .iter()
         .map(|&(e, r_n, d_n)| methods::iso13370_edge_psi(lambda, d_t, r_n, d_n, e))
         .fold(0.0, f64::min);
     let u = u0 + 2.0 * psi / b.b_prime_m;
-    let (fi, season) = methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
-    let stefan = if fi > 0.0 { methods::stefan_depth(soil.k_frozen, fi, soil.latent.max(1.0)) } else { 0.0 };
+    let (fi, season) =
+        methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
+    let stefan = if fi > 0.0 {
+        methods::stefan_depth(soil.k_frozen, fi, soil.latent.max(1.0))
+    } else {
+        0.0
+    };
     let berggren = methods::modified_berggren_depth(
         fi,
         season,
@@ -189,7 +219,9 @@ pub fn cross_check(case: &Case) -> CrossCheck {
         iso13370_edge_psi_w_per_mk: psi,
         iso13370_dt_m: d_t,
         iso13370_lambda_w_per_mk: lambda,
-        iso13370_mean_heat_loss_w: u * b.floor_area_m2 * (case.indoor_mean_c() - case.climate.mean_c),
+        iso13370_mean_heat_loss_w: u
+            * b.floor_area_m2
+            * (case.indoor_mean_c() - case.climate.mean_c),
         freezing_index_c_days: fi,
         freezing_season_days: season,
         stefan_frost_depth_m: stefan,
@@ -236,7 +268,9 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     let dt = case.simulation.dt_s;
     let steps_per_day = (86400.0 / dt).round() as usize;
     // Start at the beginning of the day holding the warmest time of the year.
-    let day0 = (case.climate.coldest_day - 0.5 + 182.5).rem_euclid(365.0).floor();
+    let day0 = (case.climate.coldest_day - 0.5 + 182.5)
+        .rem_euclid(365.0)
+        .floor();
     let max_years = case.simulation.max_spin_up_years + 1;
     let mut years: Vec<Year> = Vec::new();
     let mut converged = false;
@@ -247,9 +281,15 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         let y = years.len();
         days = Vec::with_capacity(365);
         probes = vec![Vec::with_capacity(365); case.probes.len()];
-        field = Field { day_of_year: 0, t: Vec::new() };
+        field = Field {
+            day_of_year: 0,
+            t: Vec::new(),
+        };
         let (mut best_foot, mut best_open) = (-1.0f64, -1.0f64);
-        let mut open_field = Field { day_of_year: 0, t: Vec::new() };
+        let mut open_field = Field {
+            day_of_year: 0,
+            t: Vec::new(),
+        };
         let (mut sum_in, mut sum_abs, mut sum_stored) = (0.0, 0.0, 0.0);
         let mut loss_j = 0.0;
         for d in 0..365 {
@@ -285,19 +325,31 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
             });
             let zt = zone_temps(indoor, out_mean);
             for (k, p) in case.probes.iter().enumerate() {
-                probes[k].push(point_temperature(&mesh, &net, &t, &zt, p.x_m, p.z_m).unwrap_or(f64::NAN));
+                probes[k].push(
+                    point_temperature(&mesh, &net, &t, &zt, p.x_m, p.z_m).unwrap_or(f64::NAN),
+                );
             }
             if ff > best_foot {
                 best_foot = ff;
                 if ff > 0.0 {
-                    field = Field { day_of_year: doy, t: grid_field(&mesh, &net, &t) };
+                    field = Field {
+                        day_of_year: doy,
+                        t: grid_field(&mesh, &net, &t),
+                    };
                 }
             }
             if fo > best_open {
                 best_open = fo;
-                open_field = Field { day_of_year: doy, t: grid_field(&mesh, &net, &t) };
+                open_field = Field {
+                    day_of_year: doy,
+                    t: grid_field(&mesh, &net, &t),
+                };
             }
-            progress(Progress { year: y, day: d + 1, max_years });
+            progress(Progress {
+                year: y,
+                day: d + 1,
+                max_years,
+            });
         }
         if field.t.is_empty() {
             field = open_field;
@@ -306,10 +358,15 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
             heat_loss_kwh: loss_j * perimeter / 3.6e6,
             max_frost_open_m: best_open.max(0.0),
             max_frost_footing_m: best_foot.max(0.0),
-            energy_balance_error: if sum_abs > 0.0 { (sum_in - sum_stored) / sum_abs } else { 0.0 },
+            energy_balance_error: if sum_abs > 0.0 {
+                (sum_in - sum_stored) / sum_abs
+            } else {
+                0.0
+            },
         };
         if let Some(prev) = years.last() {
-            let dq = (year.heat_loss_kwh - prev.heat_loss_kwh).abs() / prev.heat_loss_kwh.abs().max(1e-9);
+            let dq = (year.heat_loss_kwh - prev.heat_loss_kwh).abs()
+                / prev.heat_loss_kwh.abs().max(1e-9);
             let df = (year.max_frost_footing_m - prev.max_frost_footing_m)
                 .abs()
                 .max((year.max_frost_open_m - prev.max_frost_open_m).abs());

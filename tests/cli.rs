@@ -48,7 +48,11 @@ fn check(name: &str, src: &str) -> (i32, String, PathBuf) {
     let path = dir.join("case.toml");
     std::fs::write(&path, src).unwrap();
     let out = bin().arg("check").arg(&path).output().unwrap();
-    (out.status.code().unwrap_or(-1), String::from_utf8_lossy(&out.stderr).to_string(), path)
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stderr).to_string(),
+        path,
+    )
 }
 
 fn expect_input_error(name: &str, src: &str, line: usize, key: &str, words: &[&str]) {
@@ -56,7 +60,10 @@ fn expect_input_error(name: &str, src: &str, line: usize, key: &str, words: &[&s
     let (code, err, path) = check(name, src);
     assert_eq!(code, 2, "{name}: exit code {code}, stderr {err}");
     let loc = format!("{}:{line}:", path.display());
-    assert!(err.contains(&loc), "{name}: expected location {loc} in: {err}");
+    assert!(
+        err.contains(&loc),
+        "{name}: expected location {loc} in: {err}"
+    );
     assert!(err.contains(key), "{name}: expected key {key} in: {err}");
     for w in words {
         assert!(err.contains(w), "{name}: expected '{w}' in: {err}");
@@ -70,31 +77,61 @@ fn valid_case_checks_and_prints_mesh() {
     assert_eq!(code, 0);
     let out = bin().arg("check").arg(&path).output().unwrap();
     let s = String::from_utf8_lossy(&out.stdout);
-    assert!(s.contains("solid cells") && s.contains("B' = 5.000 m") && s.contains("ISO 13370"), "{s}");
+    assert!(
+        s.contains("solid cells") && s.contains("B' = 5.000 m") && s.contains("ISO 13370"),
+        "{s}"
+    );
 }
 
 #[test]
 fn misspelt_key() {
     let src = VALID.replace("thickness_m = 0.1\ntop", "thicknes_m = 0.1\ntop");
-    expect_input_error("misspelt", &src, 7, "slab.thicknes_m", &["unknown field", "thickness_m"]);
+    expect_input_error(
+        "misspelt",
+        &src,
+        7,
+        "slab.thicknes_m",
+        &["unknown field", "thickness_m"],
+    );
 }
 
 #[test]
 fn wrong_type() {
     let src = VALID.replace("base_depth_m = 0.6", "base_depth_m = \"deep\"");
-    expect_input_error("type", &src, 15, "footing.base_depth_m", &["invalid type", "\"deep\""]);
+    expect_input_error(
+        "type",
+        &src,
+        15,
+        "footing.base_depth_m",
+        &["invalid type", "\"deep\""],
+    );
 }
 
 #[test]
 fn zero_thickness() {
-    let src = VALID.replace("[footing]\nwidth_m = 0.4\nthickness_m = 0.2", "[footing]\nwidth_m = 0.4\nthickness_m = 0.0");
-    expect_input_error("zero", &src, 14, "footing.thickness_m", &["0 m is out of range", "greater than 0"]);
+    let src = VALID.replace(
+        "[footing]\nwidth_m = 0.4\nthickness_m = 0.2",
+        "[footing]\nwidth_m = 0.4\nthickness_m = 0.0",
+    );
+    expect_input_error(
+        "zero",
+        &src,
+        14,
+        "footing.thickness_m",
+        &["0 m is out of range", "greater than 0"],
+    );
 }
 
 #[test]
 fn negative_conductivity() {
     let src = VALID.replace("material = \"xps\"", "conductivity_w_per_mk = -0.03");
-    expect_input_error("negk", &src, 19, "insulation[0].conductivity_w_per_mk", &["-0.03", "greater than 0"]);
+    expect_input_error(
+        "negk",
+        &src,
+        19,
+        "insulation[0].conductivity_w_per_mk",
+        &["-0.03", "greater than 0"],
+    );
 }
 
 #[test]
@@ -103,27 +140,57 @@ fn insulation_overlapping_the_slab() {
         "[[soil]]",
         "[[insulation]]\nkind = \"vertical_inside\"\nthickness_m = 0.05\nmaterial = \"xps\"\ntop_depth_m = -0.05\nbottom_depth_m = 0.5\n[[soil]]",
     );
-    expect_input_error("overlap", &src, 26, "insulation[1].top_depth_m", &["overlaps the slab"]);
+    expect_input_error(
+        "overlap",
+        &src,
+        26,
+        "insulation[1].top_depth_m",
+        &["overlaps the slab"],
+    );
 }
 
 #[test]
 fn insulation_leaving_the_domain() {
     let src = VALID.replace("width_m = 1.0", "width_m = 25.0");
-    expect_input_error("domain", &src, 21, "insulation[0].width_m", &["25 m is out of range", "at most 19"]);
+    expect_input_error(
+        "domain",
+        &src,
+        21,
+        "insulation[0].width_m",
+        &["25 m is out of range", "at most 19"],
+    );
 }
 
 #[test]
 fn footing_above_the_slab() {
     let src = VALID.replace("base_depth_m = 0.6", "base_depth_m = 0.0");
-    expect_input_error("footing", &src, 15, "footing.base_depth_m", &["out of range"]);
+    expect_input_error(
+        "footing",
+        &src,
+        15,
+        "footing.base_depth_m",
+        &["out of range"],
+    );
     let src = VALID.replace("top_above_ground_m = 0.1", "top_above_ground_m = -0.5");
-    expect_input_error("footing2", &src, 15, "footing.base_depth_m", &["above the slab's underside"]);
+    expect_input_error(
+        "footing2",
+        &src,
+        15,
+        "footing.base_depth_m",
+        &["above the slab's underside"],
+    );
 }
 
 #[test]
 fn amplitude_too_large() {
     let src = VALID.replace("amplitude_k = 14.0", "amplitude_k = 45.0");
-    expect_input_error("amp", &src, 26, "climate.amplitude_k", &["45 K is out of range", "0 to 30 K"]);
+    expect_input_error(
+        "amp",
+        &src,
+        26,
+        "climate.amplitude_k",
+        &["45 K is out of range", "0 to 30 K"],
+    );
 }
 
 #[test]
@@ -135,12 +202,27 @@ fn permafrost_climate_rejected() {
 #[test]
 fn missing_soil_name() {
     let src = VALID.replace("library = \"sand\"", "library = \"moon-dust\"");
-    expect_input_error("soil", &src, 23, "soil[0].library", &["moon-dust", "known: sand"]);
+    expect_input_error(
+        "soil",
+        &src,
+        23,
+        "soil[0].library",
+        &["moon-dust", "known: sand"],
+    );
 }
 
 #[test]
 fn garbage_never_panics() {
-    for (k, junk) in ["", "[[[", "name = 3", "\u{0}\u{1}binary", "[building]\nfloor_area_m2 = 1e400"].iter().enumerate() {
+    for (k, junk) in [
+        "",
+        "[[[",
+        "name = 3",
+        "\u{0}\u{1}binary",
+        "[building]\nfloor_area_m2 = 1e400",
+    ]
+    .iter()
+    .enumerate()
+    {
         let (code, err, _) = check(&format!("junk{k}"), junk);
         assert_eq!(code, 2, "{junk:?}: {err}");
         assert!(!err.contains("panicked"));
@@ -149,7 +231,10 @@ fn garbage_never_panics() {
 
 #[test]
 fn missing_file_is_a_runtime_error_not_a_panic() {
-    let out = bin().args(["check", "/nonexistent/case.toml"]).output().unwrap();
+    let out = bin()
+        .args(["check", "/nonexistent/case.toml"])
+        .output()
+        .unwrap();
     assert_eq!(out.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&out.stderr).contains("/nonexistent/case.toml"));
 }

@@ -6,9 +6,16 @@ use frostline::physics::material::Material;
 /// A one-cell-wide vertical column with the given z edges, material, and a surface zone on top
 /// (zone 0) with surface resistance `r_top`; adiabatic sides and bottom.
 pub fn column(ze: Vec<f64>, m: Material, r_top: f64) -> Mesh {
-    let grid = Grid { xe: vec![0.0, 1.0], ze };
+    let grid = Grid {
+        xe: vec![0.0, 1.0],
+        ze,
+    };
     let mut mesh = Mesh::uniform(grid, m);
-    let z = mesh.add_zone(Zone { name: "surface".into(), r_horizontal: r_top, r_vertical: r_top });
+    let z = mesh.add_zone(Zone {
+        name: "surface".into(),
+        r_horizontal: r_top,
+        r_vertical: r_top,
+    });
     mesh.top = vec![EdgeBc::Zone { zone: z, r: r_top }];
     mesh
 }

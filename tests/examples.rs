@@ -26,28 +26,63 @@ const KEYS: &[&str] = &[
 
 fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String) {
     let out = scratch(name);
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples").join(format!("{name}.toml"));
-    let res = bin().arg("run").arg(&case).arg("--out").arg(&out).args(extra).output().unwrap();
+    let case = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("examples")
+        .join(format!("{name}.toml"));
+    let res = bin()
+        .arg("run")
+        .arg(&case)
+        .arg("--out")
+        .arg(&out)
+        .args(extra)
+        .output()
+        .unwrap();
     let stdout = String::from_utf8_lossy(&res.stdout).to_string();
-    assert_eq!(res.status.code(), Some(0), "{}", String::from_utf8_lossy(&res.stderr));
-    let s: Value = serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    assert_eq!(
+        res.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&res.stderr)
+    );
+    let s: Value =
+        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
     for k in KEYS {
-        assert!(s[k].is_number(), "{name}: summary.json key {k} missing or not a number");
+        assert!(
+            s[k].is_number(),
+            "{name}: summary.json key {k} missing or not a number"
+        );
     }
-    for k in ["iso13370_u_value_w_per_m2k", "stefan_frost_depth_m", "modified_berggren_frost_depth_m"] {
+    for k in [
+        "iso13370_u_value_w_per_m2k",
+        "stefan_frost_depth_m",
+        "modified_berggren_frost_depth_m",
+    ] {
         assert!(s["cross_check"][k].is_number(), "{name}: cross_check.{k}");
     }
     for f in ["daily.csv", "monthly.csv", "probes.csv"] {
         let text = std::fs::read_to_string(out.join(f)).unwrap();
-        assert!(text.contains("Results are engineering estimates"), "{f} lacks the caution");
+        assert!(
+            text.contains("Results are engineering estimates"),
+            "{f} lacks the caution"
+        );
         let header = text.lines().find(|l| !l.starts_with('#')).unwrap();
-        assert!(header.contains("_c") || header.contains("temperature"), "{f} header without units: {header}");
+        assert!(
+            header.contains("_c") || header.contains("temperature"),
+            "{f} header without units: {header}"
+        );
     }
     let day = s["field_day_of_year"].as_u64().unwrap();
     let field = std::fs::read_to_string(out.join(format!("field_{day:03}.csv"))).unwrap();
     assert!(field.lines().any(|l| l == "x_m,z_m,temperature_c"));
-    assert_eq!(field.lines().filter(|l| !l.starts_with('#')).count() as u64 - 1, s["cells"].as_u64().unwrap());
-    assert!(!std::fs::read_dir(&out).unwrap().any(|e| e.unwrap().file_name().to_string_lossy().ends_with(".tmp")));
+    assert_eq!(
+        field.lines().filter(|l| !l.starts_with('#')).count() as u64 - 1,
+        s["cells"].as_u64().unwrap()
+    );
+    assert!(!std::fs::read_dir(&out).unwrap().any(|e| e
+        .unwrap()
+        .file_name()
+        .to_string_lossy()
+        .ends_with(".tmp")));
     assert!(stdout.contains("Caution"), "result table lacks the caution");
     (s, out, stdout)
 }
@@ -67,8 +102,13 @@ fn kettle_hollow_house() {
     let u = num(&s, "floor_u_value_w_per_m2k");
     assert!((0.196..0.76).contains(&u), "U {u}");
     let open = num(&s, "frost_depth_open_ground_m");
-    let mb = s["cross_check"]["modified_berggren_frost_depth_m"].as_f64().unwrap();
-    assert!((open / mb - 1.0).abs() < 0.15, "open-ground frost {open} vs ModBerg {mb}");
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"]
+        .as_f64()
+        .unwrap();
+    assert!(
+        (open / mb - 1.0).abs() < 0.15,
+        "open-ground frost {open} vs ModBerg {mb}"
+    );
     assert!(num(&s, "frost_margin_m") > 0.0);
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(s["spin_up_converged"].as_bool().unwrap());
@@ -83,7 +123,10 @@ fn kettle_hollow_house() {
         .filter(|l| !l.starts_with('#') && !l.starts_with("month"))
         .map(|l| l.split(',').nth(1).unwrap().parse::<f64>().unwrap())
         .sum();
-    assert!((sum - kwh).abs() < 0.01 * kwh, "monthly {sum} vs annual {kwh}");
+    assert!(
+        (sum - kwh).abs() < 0.01 * kwh,
+        "monthly {sum} vs annual {kwh}"
+    );
     // Probes: two columns of plausible ground temperatures.
     let probes = std::fs::read_to_string(out.join("probes.csv")).unwrap();
     let rows: Vec<&str> = probes.lines().filter(|l| !l.starts_with('#')).collect();
@@ -104,12 +147,20 @@ fn kettle_hollow_house() {
 /// above the 1.2 m footing base; energy balance within 0.1 %.
 #[test]
 fn marrow_flats_depot_shortened() {
-    let (s, _, _) = run_example("marrow-flats-depot", &["--quiet", "--max-spin-up-years", "2"]);
+    let (s, _, _) = run_example(
+        "marrow-flats-depot",
+        &["--quiet", "--max-spin-up-years", "2"],
+    );
     let u = num(&s, "floor_u_value_w_per_m2k");
     assert!((0.1..0.3).contains(&u), "U {u}");
     let open = num(&s, "frost_depth_open_ground_m");
-    let mb = s["cross_check"]["modified_berggren_frost_depth_m"].as_f64().unwrap();
-    assert!((open / mb - 1.0).abs() < 0.25, "open-ground frost {open} vs ModBerg {mb}");
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"]
+        .as_f64()
+        .unwrap();
+    assert!(
+        (open / mb - 1.0).abs() < 0.25,
+        "open-ground frost {open} vs ModBerg {mb}"
+    );
     assert!(num(&s, "frost_margin_m") > 0.0);
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(num(&s, "spin_up_years") <= 2.0);

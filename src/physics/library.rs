@@ -96,7 +96,10 @@ mod tests {
         for (n, _) in SOILS {
             let s = bundled_soil(n).unwrap();
             let (ku, kf) = s.index().johansen();
-            assert!(ku > 0.5 && ku < 3.5 && kf >= ku * 0.9 && kf < 4.0, "{n}: {ku} {kf}");
+            assert!(
+                ku > 0.5 && ku < 3.5 && kf >= ku * 0.9 && kf < 4.0,
+                "{n}: {ku} {kf}"
+            );
         }
         for n in MATERIAL_NAMES {
             assert!(named_material(n).is_some());

@@ -1,4 +1,4 @@
 //! Physical properties: materials and their enthalpy curves. Knows nothing of meshes.
+pub mod library;
 pub mod material;
 pub mod soil;
-pub mod library;

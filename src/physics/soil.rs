@@ -56,7 +56,11 @@ impl SoilIndex {
         let n = self.porosity();
         let sr = self.saturation();
         let k_dry = (0.135 * rd + 64.7) / (2700.0 - 0.947 * rd);
-        let k_o: f64 = if self.texture == Texture::Coarse && self.quartz <= 0.2 { 3.0 } else { 2.0 };
+        let k_o: f64 = if self.texture == Texture::Coarse && self.quartz <= 0.2 {
+            3.0
+        } else {
+            2.0
+        };
         let k_s = 7.7f64.powf(self.quartz) * k_o.powf(1.0 - self.quartz);
         let k_sat_u = k_s.powf(1.0 - n) * 0.57f64.powf(n);
         let k_sat_f = k_s.powf(1.0 - n) * 2.2f64.powf(n);
@@ -65,12 +69,18 @@ impl SoilIndex {
             Texture::Fine => (sr.max(0.1).log10() + 1.0).max(0.0),
         };
         let ke_f = sr;
-        ((k_sat_u - k_dry) * ke_u + k_dry, (k_sat_f - k_dry) * ke_f + k_dry)
+        (
+            (k_sat_u - k_dry) * ke_u + k_dry,
+            (k_sat_f - k_dry) * ke_f + k_dry,
+        )
     }
     /// (unfrozen, frozen) volumetric heat capacities, J/(m³·K).
     pub fn heat_capacities(&self) -> (f64, f64) {
         let rd = self.dry_density;
-        (rd * (C_SOLIDS + 4190.0 * self.water_content), rd * (C_SOLIDS + 2050.0 * self.water_content))
+        (
+            rd * (C_SOLIDS + 4190.0 * self.water_content),
+            rd * (C_SOLIDS + 2050.0 * self.water_content),
+        )
     }
     /// Volumetric latent heat, J/m³.
     pub fn latent_heat(&self) -> f64 {
@@ -108,11 +118,24 @@ mod tests {
             (1400.0, 0.30, 0.2, Texture::Fine, 1.193, 2.124),
         ];
         for (rd, w, q, tex, ku, kf) in rows {
-            let s = SoilIndex { dry_density: rd, water_content: w, quartz: q, texture: tex };
+            let s = SoilIndex {
+                dry_density: rd,
+                water_content: w,
+                quartz: q,
+                texture: tex,
+            };
             let (u, f) = s.johansen();
-            assert!((u - ku).abs() < 1.5e-3 && (f - kf).abs() < 1.5e-3, "{rd} {w}: {u} {f}");
+            assert!(
+                (u - ku).abs() < 1.5e-3 && (f - kf).abs() < 1.5e-3,
+                "{rd} {w}: {u} {f}"
+            );
         }
-        let s = SoilIndex { dry_density: 1500.0, water_content: 0.25, quartz: 0.3, texture: Texture::Fine };
+        let s = SoilIndex {
+            dry_density: 1500.0,
+            water_content: 0.25,
+            quartz: 0.3,
+            texture: Texture::Fine,
+        };
         let (cu, cf) = s.heat_capacities();
         assert!((cu - 2.636e6).abs() < 1e3 && (cf - 1.834e6).abs() < 1e3);
         assert!((s.latent_heat() - 125.14e6).abs() < 0.01e6);

@@ -6,7 +6,8 @@
 use crate::error::{Error, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::sparse::linalg::cholesky::{
-    factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky, SymmetricOrdering,
+    factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky,
+    SymmetricOrdering,
 };
 use faer::sparse::linalg::SupernodalThreshold;
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMat};
@@ -80,7 +81,12 @@ impl SpdSolver {
     /// Analyse the pattern: `col_ptr` (n + 1) and `row_idx` of the lower triangle, rows sorted.
     /// `order`, if given, is a fill-reducing elimination order (`order[k]` = the unknown eliminated
     /// k-th), used with the supernodal factorisation; otherwise faer's AMD ordering is used.
-    pub fn new(n: usize, col_ptr: Vec<usize>, row_idx: Vec<usize>, order: Option<&[usize]>) -> Result<Self> {
+    pub fn new(
+        n: usize,
+        col_ptr: Vec<usize>,
+        row_idx: Vec<usize>,
+        order: Option<&[usize]>,
+    ) -> Result<Self> {
         let nnz = row_idx.len();
         let pattern = SymbolicSparseColMat::new_checked(n, n, col_ptr, None, row_idx);
         let sym_err = |e| Error::NotPositiveDefinite(format!("symbolic analysis: {e:?}"));
@@ -113,7 +119,8 @@ impl SpdSolver {
             )
             .map_err(sym_err)?,
         };
-        let fbuf = MemBuffer::new(chol.factorize_numeric_llt_scratch::<f64>(Par::Seq, Default::default()));
+        let fbuf =
+            MemBuffer::new(chol.factorize_numeric_llt_scratch::<f64>(Par::Seq, Default::default()));
         let sbuf = MemBuffer::new(chol.solve_in_place_scratch::<f64>(1, Par::Seq));
         Ok(SpdSolver {
             n,

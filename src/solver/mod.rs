@@ -51,7 +51,13 @@ pub struct SolverParams {
 
 impl Default for SolverParams {
     fn default() -> Self {
-        SolverParams { tol_k: 1e-6, max_newton: 20, max_halvings: 8, max_picard: 100, near_factor_cells: 0 }
+        SolverParams {
+            tol_k: 1e-6,
+            max_newton: 20,
+            max_halvings: 8,
+            max_picard: 100,
+            near_factor_cells: 0,
+        }
     }
 }
 
@@ -127,7 +133,12 @@ impl<'a> Solver<'a> {
     /// Set up (symbolic factorisation) for `net`.
     pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
         let order = linsys::nested_dissection(net.nx, net.nz, &net.unk_of);
-        let lin = SpdSolver::new(net.n, net.col_ptr.clone(), net.row_idx.clone(), Some(&order))?;
+        let lin = SpdSolver::new(
+            net.n,
+            net.col_ptr.clone(),
+            net.row_idx.clone(),
+            Some(&order),
+        )?;
         Ok(Solver {
             lin,
             k: vec![0.0; net.n],
@@ -197,9 +208,15 @@ impl<'a> Solver<'a> {
                 rhs[bf.p] += self.gb[b] * zone_t[bf.zone];
             }
             self.lin.solve(&self.vals, &mut rhs)?;
-            let change = rhs.iter().zip(&t).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
+            let change = rhs
+                .iter()
+                .zip(&t)
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f64::max);
             t = rhs;
-            if change < self.params.tol_k || !net.materials.iter().any(|m| m.k_frozen != m.k_unfrozen) {
+            if change < self.params.tol_k
+                || !net.materials.iter().any(|m| m.k_frozen != m.k_unfrozen)
+            {
                 break;
             }
             if iterations >= self.params.max_picard {
@@ -228,9 +245,19 @@ impl<'a> Solver<'a> {
 
     /// Advance enthalpies `h` (J/m³) by `dt` seconds with zone temperatures `zone_t` (°C) held over
     /// the step. `time_s` is only used in error reports.
-    pub fn step(&mut self, h: &mut [f64], zone_t: &[f64], dt: f64, time_s: f64) -> Result<StepEnergy> {
+    pub fn step(
+        &mut self,
+        h: &mut [f64],
+        zone_t: &[f64],
+        dt: f64,
+        time_s: f64,
+    ) -> Result<StepEnergy> {
         self.stats.steps += 1;
-        let mut e = StepEnergy { from_zone: vec![0.0; self.net.n_zones], stored: 0.0, dt };
+        let mut e = StepEnergy {
+            from_zone: vec![0.0; self.net.n_zones],
+            stored: 0.0,
+            dt,
+        };
         self.step_rec(h, zone_t, dt, time_s, 0, &mut e)?;
         Ok(e)
     }
@@ -321,7 +348,11 @@ impl<'a> Solver<'a> {
             let (vol, cap) = (&net.volume, std::mem::take(&mut self.cap));
             self.assemble(|p| vol[p] * cap[p] / dt);
             let mut rhs: Vec<f64> = self.r.iter().map(|v| -v).collect();
-            if self.lin.solve_near(&self.vals, &mut rhs, self.params.near_factor_cells).is_err() {
+            if self
+                .lin
+                .solve_near(&self.vals, &mut rhs, self.params.near_factor_cells)
+                .is_err()
+            {
                 h.copy_from_slice(&self.h_old);
                 self.cap = cap;
                 return Err((iter, f64::NAN));
@@ -339,7 +370,9 @@ impl<'a> Solver<'a> {
         for (b, bf) in net.bfaces.iter().enumerate() {
             e.from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
         }
-        e.stored += (0..net.n).map(|p| net.volume[p] * (h[p] - self.h_old[p])).sum::<f64>();
+        e.stored += (0..net.n)
+            .map(|p| net.volume[p] * (h[p] - self.h_old[p]))
+            .sum::<f64>();
         for p in 0..net.n {
             self.dh_prev[p] = h[p] - self.h_old[p];
         }

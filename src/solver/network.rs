@@ -117,7 +117,14 @@ impl Network {
                 Side::Top | Side::Bottom => z.r_horizontal,
                 Side::Left | Side::Right => z.r_vertical,
             };
-            BFace { p, d, area, r, zone, side }
+            BFace {
+                p,
+                d,
+                area,
+                r,
+                zone,
+                side,
+            }
         };
         for j in 0..nz {
             for i in 0..nx {
@@ -141,7 +148,14 @@ impl Network {
                         Cell::Zone(z) => bfaces.push(zone_face(z, p, hx, g.dz(j), Side::Right)),
                     }
                 } else if let EdgeBc::Zone { zone, r } = mesh.right[j] {
-                    bfaces.push(BFace { p, d: hx, area: g.dz(j), r, zone, side: Side::Right });
+                    bfaces.push(BFace {
+                        p,
+                        d: hx,
+                        area: g.dz(j),
+                        r,
+                        zone,
+                        side: Side::Right,
+                    });
                 }
                 // Left neighbour (zone or edge only; solid pairs were added from the left cell).
                 if i > 0 {
@@ -149,7 +163,14 @@ impl Network {
                         bfaces.push(zone_face(z, p, hx, g.dz(j), Side::Left));
                     }
                 } else if let EdgeBc::Zone { zone, r } = mesh.left[j] {
-                    bfaces.push(BFace { p, d: hx, area: g.dz(j), r, zone, side: Side::Left });
+                    bfaces.push(BFace {
+                        p,
+                        d: hx,
+                        area: g.dz(j),
+                        r,
+                        zone,
+                        side: Side::Left,
+                    });
                 }
                 // Lower neighbour.
                 if j + 1 < nz {
@@ -165,7 +186,14 @@ impl Network {
                         Cell::Zone(z) => bfaces.push(zone_face(z, p, hz, g.dx(i), Side::Bottom)),
                     }
                 } else if let EdgeBc::Zone { zone, r } = mesh.bottom[i] {
-                    bfaces.push(BFace { p, d: hz, area: g.dx(i), r, zone, side: Side::Bottom });
+                    bfaces.push(BFace {
+                        p,
+                        d: hz,
+                        area: g.dx(i),
+                        r,
+                        zone,
+                        side: Side::Bottom,
+                    });
                 }
                 // Upper neighbour.
                 if j > 0 {
@@ -173,14 +201,25 @@ impl Network {
                         bfaces.push(zone_face(z, p, hz, g.dx(i), Side::Top));
                     }
                 } else if let EdgeBc::Zone { zone, r } = mesh.top[i] {
-                    bfaces.push(BFace { p, d: hz, area: g.dx(i), r, zone, side: Side::Top });
+                    bfaces.push(BFace {
+                        p,
+                        d: hz,
+                        area: g.dx(i),
+                        r,
+                        zone,
+                        side: Side::Top,
+                    });
                 }
             }
         }
         // Lower-triangle CSC pattern: column c holds c and every neighbour r > c.
         let mut nbrs: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
         for (f, face) in faces.iter().enumerate() {
-            let (lo, hi) = if face.p < face.q { (face.p, face.q) } else { (face.q, face.p) };
+            let (lo, hi) = if face.p < face.q {
+                (face.p, face.q)
+            } else {
+                (face.q, face.p)
+            };
             nbrs[lo].push((hi, f));
         }
         let mut col_ptr = Vec::with_capacity(n + 1);
@@ -247,6 +286,8 @@ impl Network {
 
     /// Enthalpies (J/m³) from temperatures (°C).
     pub fn enthalpies(&self, t: &[f64]) -> Vec<f64> {
-        (0..self.n).map(|p| self.materials[self.mat[p]].enthalpy(t[p])).collect()
+        (0..self.n)
+            .map(|p| self.materials[self.mat[p]].enthalpy(t[p]))
+            .collect()
     }
 }
