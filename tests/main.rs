@@ -4,4 +4,5 @@ mod cli;
 mod common;
 mod examples;
 mod iso13370;
+mod regression;
 mod verification;

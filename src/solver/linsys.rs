@@ -197,6 +197,7 @@ impl SpdSolver {
         }
     }
 
+    /// Apply the current factor's inverse to `v` in place.
     fn precondition(&mut self, v: &mut [f64]) {
         let llt = LltRef::new(&self.chol, &self.l_val);
         llt.solve_in_place_with_conj(
@@ -279,14 +280,7 @@ impl SpdSolver {
             self.valid = true;
             self.factorizations += 1;
         }
-        let llt = LltRef::new(&self.chol, &self.l_val);
-        llt.solve_in_place_with_conj(
-            Conj::No,
-            MatMut::from_column_major_slice_mut(rhs, self.n, 1),
-            Par::Seq,
-            MemStack::new(&mut self.sbuf),
-        );
-        self.solves += 1;
+        self.precondition(rhs);
         Ok(())
     }
 }
@@ -311,5 +305,47 @@ mod tests {
         s.solve(&vals, &mut b).unwrap();
         assert_eq!(s.factorizations, 1);
         assert!((b[0] - 1.0).abs() < 1e-12 && b[1].abs() < 1e-12);
+    }
+
+    /// A tridiagonal SPD matrix (lower triangle) with diagonal `d`.
+    fn tridiag(d: &[f64]) -> (Vec<usize>, Vec<usize>, Vec<f64>) {
+        let n = d.len();
+        let (mut cp, mut ri, mut v) = (vec![0], Vec::new(), Vec::new());
+        for c in 0..n {
+            ri.push(c);
+            v.push(d[c]);
+            if c + 1 < n {
+                ri.push(c + 1);
+                v.push(-1.0);
+            }
+            cp.push(ri.len());
+        }
+        (cp, ri, v)
+    }
+
+    #[test]
+    fn near_factor_cg_matches_direct_solve() {
+        let n = 50;
+        let d0 = vec![2.5; n];
+        let (cp, ri, v0) = tridiag(&d0);
+        let mut s = SpdSolver::new(n, cp.clone(), ri.clone(), None).unwrap();
+        let mut b: Vec<f64> = (0..n).map(|i| (i as f64).sin()).collect();
+        s.solve(&v0, &mut b).unwrap();
+        // Change two diagonal entries: CG with the old factor must reach the direct answer.
+        let mut d1 = d0.clone();
+        d1[10] = 40.0;
+        d1[30] = 2.6;
+        let (_, _, v1) = tridiag(&d1);
+        let rhs: Vec<f64> = (0..n).map(|i| 1.0 + (i as f64).cos()).collect();
+        let mut x_near = rhs.clone();
+        s.solve_near(&v1, &mut x_near, 4).unwrap();
+        assert_eq!(s.near_solves, 1);
+        assert_eq!(s.factorizations, 1);
+        let mut direct = SpdSolver::new(n, cp, ri, None).unwrap();
+        let mut x = rhs.clone();
+        direct.solve(&v1, &mut x).unwrap();
+        for (a, b) in x.iter().zip(&x_near) {
+            assert!((a - b).abs() < 1e-8, "{a} vs {b}");
+        }
     }
 }

@@ -1,0 +1,57 @@
+//! Regression properties of whole runs: determinism and energy conservation.
+use frostline::case::{load_case, Fineness};
+use frostline::simulate::run;
+
+fn demo() -> frostline::case::Case {
+    let path =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let mut c = load_case(&path).unwrap();
+    c.simulation.mesh = Fineness::Coarse;
+    c.simulation.max_spin_up_years = 1;
+    c
+}
+
+/// The same case run twice gives bit-identical records (no hidden state, no thread-dependent
+/// arithmetic: faer runs sequentially).
+#[test]
+fn runs_are_deterministic() {
+    let case = demo();
+    let a = run(&case, &mut |_| {}).unwrap();
+    let b = run(&case, &mut |_| {}).unwrap();
+    assert_eq!(a.days, b.days);
+    assert_eq!(a.years, b.years);
+    assert_eq!(a.probes, b.probes);
+    assert_eq!(a.field.t.len(), b.field.t.len());
+    assert!(a
+        .field
+        .t
+        .iter()
+        .zip(&b.field.t)
+        .all(|(x, y)| x.to_bits() == y.to_bits()));
+}
+
+/// Energy conservation of the enthalpy-Newton scheme: for every simulated year,
+/// |Σ boundary heat − Σ stored change| < 0.1 % of the throughput (the requirement; the
+/// scheme's own error is round-off, ~1e-15), including the latent heat of freezing and thawing.
+#[test]
+fn every_year_conserves_energy() {
+    let mut case = demo();
+    case.simulation.dt_s = 6.0 * 3600.0;
+    let r = run(&case, &mut |_| {}).unwrap();
+    for y in &r.years {
+        assert!(
+            y.energy_balance_error.abs() < 1e-3,
+            "{}",
+            y.energy_balance_error
+        );
+        assert!(
+            y.energy_balance_error.abs() < 1e-10,
+            "round-off level expected: {}",
+            y.energy_balance_error
+        );
+    }
+    assert!(
+        r.final_year().max_frost_open_m > 0.5,
+        "the check must include freezing"
+    );
+}
