@@ -123,6 +123,7 @@ pub struct Solver<'a> {
     vals: Vec<f64>,
     r: Vec<f64>,
     h_old: Vec<f64>,
+    k_valid: bool,
     /// Enthalpy change of the last accepted step and its length (predictor).
     dh_prev: Vec<f64>,
     dt_prev: f64,
@@ -149,6 +150,7 @@ impl<'a> Solver<'a> {
             vals: vec![0.0; net.row_idx.len()],
             r: vec![0.0; net.n],
             h_old: vec![0.0; net.n],
+            k_valid: false,
             dh_prev: vec![0.0; net.n],
             dt_prev: 0.0,
             stats: SolverStats::default(),
@@ -167,10 +169,22 @@ impl<'a> Solver<'a> {
         s
     }
 
+    /// Conductivities at temperatures `t` and the face conductances from them; the faces are
+    /// recomputed only when some conductivity changed.
     fn update_conductances(&mut self, t: &[f64]) {
-        self.net.conductivities(t, &mut self.k);
-        self.net.face_conductances(&self.k, &mut self.gf);
-        self.net.boundary_conductances(&self.k, &mut self.gb);
+        let mut changed = !self.k_valid;
+        for p in 0..self.net.n {
+            let k = self.net.materials[self.net.mat[p]].conductivity(t[p]);
+            if k != self.k[p] {
+                self.k[p] = k;
+                changed = true;
+            }
+        }
+        if changed {
+            self.net.face_conductances(&self.k, &mut self.gf);
+            self.net.boundary_conductances(&self.k, &mut self.gb);
+            self.k_valid = true;
+        }
     }
 
     /// Fill `vals` with diag(extra) + K.
