@@ -56,7 +56,7 @@ impl Default for SolverParams {
             max_newton: 20,
             max_halvings: 8,
             max_picard: 100,
-            near_factor_cells: 0,
+            near_factor_cells: 4,
         }
     }
 }
