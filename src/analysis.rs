@@ -132,16 +132,26 @@ fn bilinear(
     )
 }
 
+/// Frozen fraction used for the frost line: 1 − unfrozen fraction for a freezing material; for a
+/// material without water a ramp 0.5 − (T − t_line)/(0.5 K), clamped to [0, 1], which is 0.5 at
+/// `t_line` so that the same interpolation finds the `t_line` isotherm there.
+fn frozen_fraction(net: &Network, t: &[f64], p: usize, t_line: f64) -> f64 {
+    let m = &net.materials[net.mat[p]];
+    if m.freezes() {
+        1.0 - m.unfrozen_fraction(t[p])
+    } else {
+        (0.5 - (t[p] - t_line) / 0.5).clamp(0.0, 1.0)
+    }
+}
+
 /// Deepest frozen point of column `i` at or below `z_from` (m); `None` if nothing there is frozen.
 ///
-/// The frost line is the isotherm `t_line` (°C; the midpoint of the soil's freezing interval). The
-/// deepest cell that holds any ice (T below its material's freezing temperature; for a material
-/// without water, T below `t_line`) carries the front:
-/// - if that cell is only partly frozen, the front lies inside it at its frozen fraction φ,
-///   z = z_top + φ Δz (the enthalpy method's own front position, first-order exact for a sharp
-///   front moving down through the cell);
-/// - if it is fully frozen, the front lies between its centre and the next centre down, where
-///   linear interpolation of the temperature crosses `t_line`.
+/// The frost line is where the frozen fraction φ is one half (the midpoint of the freezing
+/// interval; `t_line` °C in materials without water). φ is taken at the cell centres and
+/// interpolated linearly: below the deepest cell j with φ_j ≥ ½ the front lies at
+/// z = z_j + (φ_j − ½)/(φ_j − φ_{j+1}) (z_{j+1} − z_j). For a sharp front this moves continuously
+/// and monotonically from face to face as cells freeze (within about a tenth of a cell of the
+/// front's true position), and trace ice left in a thawing layer does not count as frost.
 pub fn frost_depth_column(
     mesh: &Mesh,
     net: &Network,
@@ -151,33 +161,17 @@ pub fn frost_depth_column(
     t_line: f64,
 ) -> Option<f64> {
     let g = &mesh.grid;
-    let unk = |j: usize| {
+    let phi = |j: usize| {
         let p = net.unk_of[g.id(i, j)];
-        (p != usize::MAX).then_some(p)
+        (p != usize::MAX).then(|| frozen_fraction(net, t, p, t_line))
     };
-    let holds_ice = |p: usize| {
-        let m = &net.materials[net.mat[p]];
-        if m.freezes() {
-            t[p] < m.t_freeze
-        } else {
-            t[p] < t_line
-        }
-    };
-    let jdeep = (0..g.nz())
+    let j = (0..g.nz())
         .rev()
-        .find(|&j| g.ze[j + 1] > z_from && unk(j).is_some_and(holds_ice))?;
-    let p = unk(jdeep)?;
-    let m = &net.materials[net.mat[p]];
-    let z = if m.freezes() && t[p] > m.t_solidus() {
-        g.ze[jdeep] + (1.0 - m.unfrozen_fraction(t[p])) * g.dz(jdeep)
-    } else {
-        match (jdeep + 1 < g.nz()).then(|| unk(jdeep + 1)).flatten() {
-            Some(q) => {
-                let f = ((t_line - t[p]) / (t[q] - t[p])).clamp(0.0, 1.0);
-                g.zc(jdeep) + f * (g.zc(jdeep + 1) - g.zc(jdeep))
-            }
-            None => g.ze[jdeep + 1],
-        }
+        .find(|&j| g.ze[j + 1] > z_from && phi(j).is_some_and(|f| f >= 0.5))?;
+    let a = phi(j)?;
+    let z = match (j + 1 < g.nz()).then(|| phi(j + 1)).flatten() {
+        Some(b) if a > b => g.zc(j) + (a - 0.5) / (a - b) * (g.zc(j + 1) - g.zc(j)),
+        _ => g.ze[j + 1],
     };
     Some(z.max(z_from))
 }

@@ -397,6 +397,8 @@ pub struct Probe {
 pub struct Case {
     /// The file the case was read from (for messages).
     pub file: String,
+    /// The case file's text as read.
+    pub source: String,
     /// Case name.
     pub name: String,
     /// Building.
@@ -1131,6 +1133,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
 
     Ok(Case {
         file: c.file.to_string(),
+        source: c.src.to_string(),
         name: raw.name,
         building,
         slab,

@@ -2,6 +2,7 @@
 use crate::case::{load_case, Case, Fineness};
 use crate::error::Error;
 use crate::geometry::Section;
+use crate::plot::PlotOptions;
 use crate::report;
 use crate::simulate::{self, Progress};
 use clap::{Args, Parser, Subcommand, ValueEnum};
@@ -26,6 +27,11 @@ pub enum Command {
         Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out."
     )]
     Run(RunArgs),
+    /// Re-render the plots (and report.html) of a finished run from its saved results.
+    #[command(
+        after_help = "Examples:\n  frostline plot out/kettle\n  frostline plot out/kettle --day 60 --zoom -1,2,-0.4,2.5 --animate"
+    )]
+    Plot(PlotArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
     Check {
@@ -62,6 +68,28 @@ pub struct RunArgs {
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Do not write plots and report.html.
+    #[arg(long)]
+    pub no_plots: bool,
+    /// Also write soil_temperature.gif, the field through the year.
+    #[arg(long)]
+    pub animate: bool,
+}
+
+/// Arguments of `plot`.
+#[derive(Args, Debug)]
+pub struct PlotArgs {
+    /// Directory of a finished run (its --out).
+    pub dir: PathBuf,
+    /// Day of year of the field plots (default: the day of deepest frost).
+    #[arg(long)]
+    pub day: Option<usize>,
+    /// Window of the zoomed field plot: x0,x1,z0,z1 in m (e.g. -1.5,2.5,-0.3,2.2).
+    #[arg(long, allow_hyphen_values = true)]
+    pub zoom: Option<String>,
+    /// Also write soil_temperature.gif.
+    #[arg(long)]
+    pub animate: bool,
 }
 
 /// Run the CLI and return the process exit code (0 ok, 2 bad input or usage, 1 failure).
@@ -91,6 +119,38 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Check { case } => {
             let case = load_case(&case)?;
             print!("{}", check_text(&case)?);
+            Ok(())
+        }
+        Command::Plot(a) => {
+            let zoom = match a.zoom {
+                None => None,
+                Some(text) => {
+                    let v: Vec<f64> = text
+                        .split(',')
+                        .filter_map(|x| x.trim().parse().ok())
+                        .collect();
+                    if v.len() != 4 || text.split(',').count() != 4 {
+                        return Err(Error::Input {
+                            location: crate::error::Location::file_only("command line"),
+                            key: "--zoom".into(),
+                            message: format!(
+                                "\"{text}\" is not four numbers; allowed: x0,x1,z0,z1 in m"
+                            ),
+                        });
+                    }
+                    Some([v[0], v[1], v[2], v[3]])
+                }
+            };
+            let opts = PlotOptions {
+                day_of_year: a.day,
+                zoom,
+                animate: a.animate,
+            };
+            let mut files = crate::plot::render_dir(&a.dir, &opts)?;
+            files.push(crate::report::html::write_report(&a.dir)?);
+            for f in files {
+                println!("{}", f.display());
+            }
             Ok(())
         }
         Command::Run(a) => {
@@ -134,7 +194,15 @@ fn execute(cli: Cli) -> Result<(), Error> {
             let result = simulate::run(&case, &mut cb);
             bar.finish_and_clear();
             let result = result?;
-            let files = report::write_outputs(&case, &result, &a.out)?;
+            let mut files = report::write_outputs(&case, &result, &a.out)?;
+            if !a.no_plots {
+                let opts = PlotOptions {
+                    animate: a.animate,
+                    ..Default::default()
+                };
+                files.extend(crate::plot::render_dir(&a.out, &opts)?);
+                files.push(crate::report::html::write_report(&a.out)?);
+            }
             print!("{}", report::result_table(&case, &result));
             println!("\n  Files in {}:", a.out.display());
             for f in files {

@@ -16,6 +16,7 @@ pub mod geometry;
 pub mod mesh;
 pub mod methods;
 pub mod physics;
+pub mod plot;
 pub mod report;
 pub mod simulate;
 pub mod solver;

@@ -89,8 +89,12 @@ pub struct CrossCheck {
 /// Everything a run produces.
 #[derive(Debug, Clone)]
 pub struct RunResult {
+    /// The section (construction outlines).
+    pub section: Section,
     /// Mesh used.
     pub mesh: Mesh,
+    /// Grid fields of every day of the reported year (°C, NaN for air), in `days` order.
+    pub daily_fields: Vec<Vec<f32>>,
     /// Days of the reported year, from the warmest day on.
     pub days: Vec<Day>,
     /// Probe temperatures per day of the reported year (probe-major), °C.
@@ -99,7 +103,8 @@ pub struct RunResult {
     pub years: Vec<Year>,
     /// Whether the spin-up criterion was met.
     pub spin_up_converged: bool,
-    /// Field on the day of maximum frost depth under the footing (or in open ground if none).
+    /// Field on the day of maximum frost depth under the footing; if there is none, on the day of
+    /// deepest open-ground frost while the air is below 0 °C; if no frost at all, the coldest day.
     pub field: Field,
     /// Steady-state heat loss at the annual means, W (whole building).
     pub steady_heat_loss_w: f64,
@@ -143,7 +148,8 @@ pub fn footing_columns(mesh: &Mesh, case: &Case) -> Vec<usize> {
         .collect()
 }
 
-/// Frost-line temperature: the midpoint of the top stratum's freezing interval, °C.
+/// Frost-line temperature: the midpoint of the top stratum's freezing interval (half the pore
+/// water frozen), °C.
 pub fn frost_line_c(case: &Case) -> f64 {
     case.strata[0].material.t_frost_line()
 }
@@ -275,17 +281,18 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     let mut years: Vec<Year> = Vec::new();
     let mut converged = false;
     let mut time_steps = 0;
-    let (mut days, mut probes, mut field);
+    let (mut days, mut probes, mut field, mut daily_fields);
     let mut sim_time = 0.0;
     loop {
         let y = years.len();
         days = Vec::with_capacity(365);
+        daily_fields = Vec::<Vec<f32>>::with_capacity(365);
         probes = vec![Vec::with_capacity(365); case.probes.len()];
         field = Field {
             day_of_year: 0,
             t: Vec::new(),
         };
-        let (mut best_foot, mut best_open) = (-1.0f64, -1.0f64);
+        let (mut best_foot, mut best_open, mut best_open_winter) = (-1.0f64, -1.0f64, -1.0f64);
         let mut open_field = Field {
             day_of_year: 0,
             t: Vec::new(),
@@ -323,6 +330,12 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
                 frost_open_m: fo,
                 frost_footing_m: ff,
             });
+            daily_fields.push(
+                grid_field(&mesh, &net, &t)
+                    .into_iter()
+                    .map(|v| v as f32)
+                    .collect(),
+            );
             let zt = zone_temps(indoor, out_mean);
             for (k, p) in case.probes.iter().enumerate() {
                 probes[k].push(
@@ -340,6 +353,12 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
             }
             if fo > best_open {
                 best_open = fo;
+            }
+            // Without frost under the footing, the field shown is that of the deepest open-ground
+            // frost while the air is still below freezing (the end of the freezing season), not
+            // of a late, slowly creeping frozen layer in summer.
+            if out_mean < 0.0 && fo > best_open_winter {
+                best_open_winter = fo;
                 open_field = Field {
                     day_of_year: doy,
                     t: grid_field(&mesh, &net, &t),
@@ -353,6 +372,18 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         }
         if field.t.is_empty() {
             field = open_field;
+        }
+        if field.t.is_empty() {
+            // No frost at all: show the coldest day's field.
+            let k = days
+                .iter()
+                .enumerate()
+                .min_by(|a, b| a.1.outdoor_c.total_cmp(&b.1.outdoor_c))
+                .map_or(0, |(k, _)| k);
+            field = Field {
+                day_of_year: days[k].day_of_year,
+                t: daily_fields[k].iter().map(|&v| v as f64).collect(),
+            };
         }
         let year = Year {
             heat_loss_kwh: loss_j * perimeter / 3.6e6,
@@ -389,6 +420,8 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         cross_check: cross_check(case),
         wall_time_s: start.elapsed().as_secs_f64(),
         mesh,
+        section,
+        daily_fields,
     })
 }
 

@@ -139,6 +139,33 @@ fn kettle_hollow_house() {
         }
     }
     assert!(stdout.contains("kWh") && stdout.contains("W/(m²K)"));
+    crate::plots::check_plots(&out, &s);
+    crate::plots::check_report(&out, &s);
+    // Re-render from the saved results for another day and window, with the animation.
+    let res = bin()
+        .args(["plot"])
+        .arg(&out)
+        .args(["--day", "30", "--zoom", "-1.5,2.5,-0.3,2.2", "--animate"])
+        .output()
+        .unwrap();
+    assert_eq!(
+        res.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&res.stderr)
+    );
+    let index: Value =
+        serde_json::from_slice(&std::fs::read(out.join("plots.json")).unwrap()).unwrap();
+    assert_eq!(index["day_of_year"].as_u64(), Some(30));
+    crate::plots::check_plots(&out, &s);
+    assert!(out.join("soil_temperature.gif").exists());
+    let res = bin()
+        .args(["plot"])
+        .arg(&out)
+        .args(["--day", "400"])
+        .output()
+        .unwrap();
+    assert_eq!(res.status.code(), Some(2));
 }
 
 /// The large depot (whole-floor insulation, no wing, footing at 1.2 m), shortened to at most two

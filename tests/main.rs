@@ -4,5 +4,6 @@ mod cli;
 mod common;
 mod examples;
 mod iso13370;
+mod plots;
 mod regression;
 mod verification;

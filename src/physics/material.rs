@@ -66,8 +66,8 @@ impl Material {
         self.t_freeze - self.freezing_interval
     }
 
-    /// The temperature taken as the frost line for this material: the midpoint of the freezing
-    /// interval, °C.
+    /// The frost-line temperature: the midpoint of the freezing interval, °C (half the pore water
+    /// frozen).
     pub fn t_frost_line(&self) -> f64 {
         self.t_freeze - 0.5 * self.freezing_interval
     }

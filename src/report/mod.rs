@@ -1,8 +1,12 @@
 //! Output files of a run (summary.json, daily.csv, monthly.csv, probes.csv, field_<day>.csv) and
 //! the short result table. Every file is written to a temporary name and renamed, so a failed run
 //! never leaves a half-written file.
+pub mod html;
+
 use crate::case::Case;
 use crate::error::{Error, Result};
+use crate::geometry::Part;
+use crate::plot::data::{encode_fields, PartOutline, SectionFile, NO_VALUE};
 use crate::simulate::{month_of, RunResult};
 use serde_json::json;
 use std::path::{Path, PathBuf};
@@ -169,6 +173,7 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
     let summary = serde_json::to_vec_pretty(&summary_json(case, r))
         .map_err(|e| Error::Output(e.to_string()))?;
     files.push(write_atomic(dir, "summary.json", &summary)?);
+    files.push(write_atomic(dir, "case.toml", case.source.as_bytes())?);
 
     let hdr = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
     let daily = csv_bytes(
@@ -245,6 +250,53 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
         dir,
         &format!("field_{:03}.csv", r.field.day_of_year),
         &field,
+    )?);
+
+    // Saved for plotting and `frostline plot DIR`.
+    let parts = r
+        .section
+        .rects
+        .iter()
+        .map(|rc| {
+            let (label, kind) = match rc.part {
+                Part::Slab => ("slab".to_string(), "concrete"),
+                Part::Wall => ("wall".to_string(), "concrete"),
+                Part::Footing => ("footing".to_string(), "concrete"),
+                Part::Fill => ("fill".to_string(), "fill"),
+                Part::Insulation(k) => (format!("insulation[{k}]"), "insulation"),
+            };
+            PartOutline {
+                label,
+                kind: kind.into(),
+                x0: rc.x0,
+                x1: rc.x1,
+                z0: rc.z0,
+                z1: rc.z1,
+            }
+        })
+        .collect();
+    let sec = SectionFile {
+        case_name: case.name.clone(),
+        coordinates: COORDINATES.into(),
+        xe: g.xe.clone(),
+        ze: g.ze.clone(),
+        parts,
+        footing_base_depth_m: case.footing.base_depth_m,
+        footing_x_m: case.footing_x(),
+        frost_line_c: crate::simulate::frost_line_c(case),
+        field_day_of_year: r.field.day_of_year,
+        days: r.daily_fields.len(),
+        fields_format: format!(
+            "little-endian i16, hundredths of a degree C, {NO_VALUE} = no value (air); day-major in daily.csv order, \
+             cells row-major (z outer, x inner) over the grid of xe x ze"
+        ),
+    };
+    let json = serde_json::to_vec_pretty(&sec).map_err(|e| Error::Output(e.to_string()))?;
+    files.push(write_atomic(dir, "section.json", &json)?);
+    files.push(write_atomic(
+        dir,
+        "fields.i16",
+        &encode_fields(&r.daily_fields),
     )?);
     Ok(files)
 }

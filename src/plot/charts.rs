@@ -1,0 +1,260 @@
+//! Line and bar charts of the reported year: frost depth, monthly heat loss, probe temperatures.
+use super::data::PlotData;
+use super::out_err;
+use crate::error::Result;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use std::path::{Path, PathBuf};
+
+/// Size of the line and bar charts, pixels.
+pub const SIZE: (u32, u32) = (1000, 560);
+const OPEN: RGBColor = RGBColor(33, 74, 160);
+const FOOT: RGBColor = RGBColor(196, 78, 52);
+
+fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {
+    move |x: &f64| {
+        let k = (x.round().max(0.0) as usize).min(d.days.len().saturating_sub(1));
+        d.days
+            .get(k)
+            .map_or(String::new(), |day| format!("{}", day.day_of_year))
+    }
+}
+
+fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -> Result<()> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let n = d.days.len() as f64;
+    let deepest = d
+        .days
+        .iter()
+        .map(|x| x.frost_open_m.max(x.frost_footing_m))
+        .fold(d.footing_base_depth_m, f64::max);
+    let zmax = (deepest * 1.15).max(0.5);
+    let mut chart = ChartBuilder::on(root)
+        .caption(
+            format!("{} — frost depth over the reported year", d.case_name),
+            ("sans-serif", 18),
+        )
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(0.0..n, zmax..0.0)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .x_desc("day of year (the reported year runs from the warmest day)")
+        .y_desc("frost depth below ground (m)")
+        .x_label_formatter(&doy_label(d))
+        .label_style(("sans-serif", 13))
+        .light_line_style(RGBColor(235, 235, 235))
+        .draw()
+        .map_err(out_err)?;
+    chart
+        .draw_series(LineSeries::new(
+            d.days
+                .iter()
+                .enumerate()
+                .map(|(k, x)| (k as f64, x.frost_open_m)),
+            OPEN.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label("open ground (far edge)")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], OPEN.stroke_width(2)));
+    chart
+        .draw_series(LineSeries::new(
+            d.days
+                .iter()
+                .enumerate()
+                .map(|(k, x)| (k as f64, x.frost_footing_m)),
+            FOOT.stroke_width(3),
+        ))
+        .map_err(out_err)?
+        .label("under the footing")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
+    let base = d.footing_base_depth_m;
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(0.0, base), (n, base)],
+            8,
+            6,
+            BLACK.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label(format!("footing base ({base:.2} m)"))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 13))
+        .position(SeriesLabelPosition::LowerLeft)
+        .draw()
+        .map_err(out_err)?;
+    root.present().map_err(out_err)
+}
+
+fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -> Result<()> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let kmax = d.monthly.iter().map(|m| m.1).fold(0.0, f64::max) * 1.3;
+    let (tlo, thi) = d
+        .monthly
+        .iter()
+        .fold((f64::MAX, f64::MIN), |(a, b), m| (a.min(m.2), b.max(m.2)));
+    let names = [
+        "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
+    ];
+    let mut chart = ChartBuilder::on(root)
+        .caption(
+            format!(
+                "{} — monthly ground heat loss (whole building)",
+                d.case_name
+            ),
+            ("sans-serif", 18),
+        )
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(70)
+        .right_y_label_area_size(60)
+        .build_cartesian_2d(0.5..12.5, 0.0..kmax.max(1.0))
+        .map_err(out_err)?
+        .set_secondary_coord(0.5..12.5, (tlo - 2.0).floor()..(thi + 2.0).ceil());
+    chart
+        .configure_mesh()
+        .disable_x_mesh()
+        .x_labels(12)
+        .x_label_formatter(&|x: &f64| {
+            names
+                .get((x.round() as usize).wrapping_sub(1))
+                .map_or(String::new(), |s| s.to_string())
+        })
+        .y_desc("ground heat loss (kWh per month)")
+        .label_style(("sans-serif", 13))
+        .light_line_style(RGBColor(235, 235, 235))
+        .draw()
+        .map_err(out_err)?;
+    chart
+        .configure_secondary_axes()
+        .y_desc("mean outdoor temperature (°C)")
+        .label_style(("sans-serif", 13))
+        .draw()
+        .map_err(out_err)?;
+    chart
+        .draw_series(d.monthly.iter().map(|m| {
+            let x = m.0 as f64;
+            Rectangle::new(
+                [(x - 0.35, 0.0), (x + 0.35, m.1)],
+                RGBColor(232, 150, 72).filled(),
+            )
+        }))
+        .map_err(out_err)?
+        .label("heat loss (kWh)")
+        .legend(|(x, y)| {
+            Rectangle::new(
+                [(x, y - 5), (x + 15, y + 5)],
+                RGBColor(232, 150, 72).filled(),
+            )
+        });
+    chart
+        .draw_secondary_series(LineSeries::new(
+            d.monthly.iter().map(|m| (m.0 as f64, m.2)),
+            OPEN.stroke_width(3),
+        ))
+        .map_err(out_err)?
+        .label("mean outdoor temperature (°C)")
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], OPEN.stroke_width(3)));
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 13))
+        .position(SeriesLabelPosition::UpperRight)
+        .draw()
+        .map_err(out_err)?;
+    root.present().map_err(out_err)
+}
+
+fn draw_probes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -> Result<()> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let n = d.days.len() as f64;
+    let (lo, hi) = d
+        .probes
+        .iter()
+        .flatten()
+        .filter(|v| v.is_finite())
+        .fold((f64::MAX, f64::MIN), |(a, b), &v| (a.min(v), b.max(v)));
+    let (lo, hi) = if lo <= hi {
+        ((lo - 1.0).floor(), (hi + 1.0).ceil())
+    } else {
+        (-1.0, 1.0)
+    };
+    let mut chart = ChartBuilder::on(root)
+        .caption(
+            format!("{} — probe temperatures", d.case_name),
+            ("sans-serif", 18),
+        )
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(0.0..n, lo..hi)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .x_desc("day of year")
+        .y_desc("temperature (°C)")
+        .x_label_formatter(&doy_label(d))
+        .label_style(("sans-serif", 13))
+        .light_line_style(RGBColor(235, 235, 235))
+        .draw()
+        .map_err(out_err)?;
+    chart
+        .draw_series(std::iter::once(PathElement::new(
+            vec![(0.0, 0.0), (n, 0.0)],
+            RGBColor(120, 120, 120).stroke_width(1),
+        )))
+        .map_err(out_err)?;
+    let palette = [
+        OPEN,
+        FOOT,
+        RGBColor(40, 140, 80),
+        RGBColor(120, 60, 160),
+        RGBColor(200, 150, 0),
+        RGBColor(60, 60, 60),
+    ];
+    for (k, (name, series)) in d.probe_names.iter().zip(&d.probes).enumerate() {
+        let c = palette[k % palette.len()];
+        chart
+            .draw_series(LineSeries::new(
+                series.iter().enumerate().map(|(i, &v)| (i as f64, v)),
+                c.stroke_width(2),
+            ))
+            .map_err(out_err)?
+            .label(name.trim_end_matches(" temperature_c").to_string())
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], c.stroke_width(2)));
+    }
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 13))
+        .position(SeriesLabelPosition::UpperRight)
+        .draw()
+        .map_err(out_err)?;
+    root.present().map_err(out_err)
+}
+
+/// `frost_depth.png/svg`.
+pub fn frost_depth(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+    render_both!(dir, "frost_depth", SIZE, files, draw_frost(d));
+    Ok(())
+}
+
+/// `heat_loss.png/svg`.
+pub fn heat_loss(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+    render_both!(dir, "heat_loss", SIZE, files, draw_heat(d));
+    Ok(())
+}
+
+/// `probes.png/svg`.
+pub fn probes(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+    render_both!(dir, "probes", SIZE, files, draw_probes(d));
+    Ok(())
+}

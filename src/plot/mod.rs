@@ -1,0 +1,408 @@
+//! Plots of a finished run, rendered from the files it saved (so `frostline plot DIR` and
+//! `frostline run` share one path): the soil temperature field with isotherms and the frost line,
+//! a zoom around the footing, frost depth over the year, monthly heat loss, probe temperatures,
+//! and optionally an animation of the field through the year. PNG and SVG; fonts are embedded
+//! (DejaVu Sans), so no system font package is needed.
+pub mod data;
+pub mod isolines;
+
+use crate::error::{Error, Result};
+use data::PlotData;
+use isolines::isolines;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use std::path::{Path, PathBuf};
+
+/// What to render.
+#[derive(Debug, Clone, Default)]
+pub struct PlotOptions {
+    /// Day of year of the field plots (default: the run's day of deepest frost).
+    pub day_of_year: Option<usize>,
+    /// Zoom window x0, x1, z0, z1 (m) for the zoomed field plot.
+    pub zoom: Option<[f64; 4]>,
+    /// Also write `soil_temperature.gif` (the field through the year).
+    pub animate: bool,
+}
+
+fn register_fonts() {
+    static ONCE: std::sync::Once = std::sync::Once::new();
+    ONCE.call_once(|| {
+        // The bytes are DejaVu Sans, embedded by the `dejavu` crate; registration cannot fail for
+        // a valid TrueType file, and the test suite renders every plot.
+        let _ = plotters::style::register_font(
+            "sans-serif",
+            FontStyle::Normal,
+            dejavu::sans::regular(),
+        );
+        let _ = plotters::style::register_font("sans-serif", FontStyle::Bold, dejavu::sans::bold());
+    });
+}
+
+fn out_err<E: std::fmt::Debug>(e: E) -> Error {
+    Error::Output(format!("plot: {e:?}"))
+}
+
+/// The temperature colour scale (°C → colour): blues for frozen ground below 0 °C, from pale ice
+/// to deep navy; warm tones above 0 °C, from cream through amber to brick red. The two halves meet
+/// with a jump in hue at 0 °C, so frozen and unfrozen soil are unmistakable.
+pub fn temperature_colour(t: f64) -> RGBColor {
+    const COLD: [(f64, (u8, u8, u8)); 4] = [
+        (-20.0, (16, 24, 74)),
+        (-10.0, (33, 74, 160)),
+        (-4.0, (88, 150, 214)),
+        (0.0, (205, 232, 250)),
+    ];
+    const WARM: [(f64, (u8, u8, u8)); 5] = [
+        (0.0, (252, 243, 207)),
+        (4.0, (247, 208, 128)),
+        (9.0, (232, 150, 72)),
+        (15.0, (196, 78, 52)),
+        (25.0, (112, 24, 32)),
+    ];
+    let table: &[(f64, (u8, u8, u8))] = if t < 0.0 { &COLD } else { &WARM };
+    let t = t.clamp(table[0].0, table[table.len() - 1].0);
+    for w in table.windows(2) {
+        let ((t0, c0), (t1, c1)) = (w[0], w[1]);
+        if t <= t1 {
+            let f = if t1 > t0 { (t - t0) / (t1 - t0) } else { 0.0 };
+            let mix = |a: u8, b: u8| (a as f64 + f * (b as f64 - a as f64)).round() as u8;
+            return RGBColor(mix(c0.0, c1.0), mix(c0.1, c1.1), mix(c0.2, c1.2));
+        }
+    }
+    let c = table[table.len() - 1].1;
+    RGBColor(c.0, c.1, c.2)
+}
+
+/// A view of the section: x and z ranges, m.
+#[derive(Debug, Clone, Copy)]
+struct View {
+    x0: f64,
+    x1: f64,
+    z0: f64,
+    z1: f64,
+}
+
+/// Image size (w, h) in pixels for a view drawn with equal scales on both axes.
+fn field_size(v: View) -> (u32, u32) {
+    let (bar, ylab, xlab, cap, margin) = (110.0, 60.0, 45.0, 40.0, 15.0);
+    let aspect = (v.z1 - v.z0) / (v.x1 - v.x0);
+    let mut plot_w = 860.0;
+    let mut plot_h = plot_w * aspect;
+    if plot_h > 1100.0 {
+        plot_h = 1100.0;
+        plot_w = plot_h / aspect;
+    }
+    if plot_h < 260.0 {
+        plot_h = 260.0;
+        plot_w = plot_h / aspect;
+    }
+    (
+        (plot_w + ylab + bar + 2.0 * margin) as u32,
+        (plot_h + xlab + cap + 2.0 * margin) as u32,
+    )
+}
+
+/// Draw the field of `day` (index into the saved days) in view `v`.
+fn draw_field<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    d: &PlotData,
+    day: usize,
+    v: View,
+    interval: f64,
+    title: &str,
+) -> Result<Vec<isolines::Polyline>> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let (w, _) = root.dim_in_pixel();
+    let (left, right) = root.split_horizontally(w.saturating_sub(110));
+    let mut chart = ChartBuilder::on(&left)
+        .caption(title, ("sans-serif", 18))
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(v.x0..v.x1, v.z1..v.z0)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc("x (m), 0 at the wall's exterior face")
+        .y_desc("depth z (m) below ground")
+        .label_style(("sans-serif", 13))
+        .draw()
+        .map_err(out_err)?;
+    let field = d.field(day);
+    let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
+    let cells = (0..nz)
+        .flat_map(|j| (0..nx).map(move |i| (i, j)))
+        .filter_map(|(i, j)| {
+            let t = field[j * nx + i];
+            let (xa, xb, za, zb) = (d.xe[i], d.xe[i + 1], d.ze[j], d.ze[j + 1]);
+            (t.is_finite() && xb > v.x0 && xa < v.x1 && zb > v.z0 && za < v.z1).then(|| {
+                Rectangle::new(
+                    [(xa.max(v.x0), za.max(v.z0)), (xb.min(v.x1), zb.min(v.z1))],
+                    temperature_colour(t).filled(),
+                )
+            })
+        });
+    chart.draw_series(cells).map_err(out_err)?;
+    // Isotherms.
+    let xs: Vec<f64> = d.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let zs: Vec<f64> = d.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let (lo, hi) = field
+        .iter()
+        .filter(|t| t.is_finite())
+        .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
+    let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
+    // Labels keep a distance of 6 % of the view from each other.
+    let mut placed: Vec<(f64, f64)> = Vec::new();
+    let far = |p: (f64, f64), placed: &[(f64, f64)]| {
+        placed.iter().all(|q| {
+            (((p.0 - q.0) / (v.x1 - v.x0)).powi(2) + ((p.1 - q.1) / (v.z1 - v.z0)).powi(2)).sqrt()
+                > 0.06
+        })
+    };
+    let mut level = (lo / interval).ceil() * interval;
+    while level <= hi {
+        if level.abs() > 1e-9 {
+            for line in isolines(&xs, &zs, field, level) {
+                let pts: Vec<(f64, f64)> = line.iter().copied().filter(inside).collect();
+                if pts.len() < 2 {
+                    continue;
+                }
+                chart
+                    .draw_series(std::iter::once(PathElement::new(
+                        pts.clone(),
+                        RGBColor(70, 70, 70).stroke_width(1),
+                    )))
+                    .map_err(out_err)?;
+                if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
+                    let (x, z) = pts[pts.len() / 2];
+                    placed.push((x, z));
+                    chart
+                        .draw_series(std::iter::once(Text::new(
+                            format!("{level:.0}"),
+                            (x, z),
+                            ("sans-serif", 12).into_font(),
+                        )))
+                        .map_err(out_err)?;
+                }
+            }
+        }
+        level += interval;
+    }
+    // Outlines of the construction.
+    for p in &d.parts {
+        let colour = if p.kind == "insulation" {
+            RGBColor(220, 0, 140)
+        } else {
+            RGBColor(40, 40, 40)
+        };
+        let r = [
+            (p.x0.max(v.x0), p.z0.max(v.z0)),
+            (p.x1.min(v.x1), p.z1.min(v.z1)),
+        ];
+        if r[0].0 < r[1].0 && r[0].1 < r[1].1 {
+            chart
+                .draw_series(std::iter::once(Rectangle::new(r, colour.stroke_width(2))))
+                .map_err(out_err)?;
+        }
+    }
+    // Ground line outside, and the frost line.
+    chart
+        .draw_series(std::iter::once(PathElement::new(
+            vec![(0.0f64.max(v.x0), 0.0), (v.x1, 0.0)],
+            RGBColor(90, 60, 30).stroke_width(2),
+        )))
+        .map_err(out_err)?;
+    let frost = isolines(&xs, &zs, field, d.frost_line_c);
+    for line in &frost {
+        let pts: Vec<(f64, f64)> = line.iter().copied().filter(inside).collect();
+        if pts.len() >= 2 {
+            chart
+                .draw_series(std::iter::once(PathElement::new(
+                    pts,
+                    BLACK.stroke_width(4),
+                )))
+                .map_err(out_err)?;
+        }
+    }
+    // Colour bar.
+    let (tmin, tmax) = ((lo.floor()).min(-1.0), hi.ceil().max(1.0));
+    let mut bar = ChartBuilder::on(&right)
+        .margin_top(60)
+        .margin_bottom(60)
+        .margin_right(10)
+        .y_label_area_size(50)
+        .caption("°C", ("sans-serif", 15))
+        .build_cartesian_2d(0.0..1.0, tmin..tmax)
+        .map_err(out_err)?;
+    bar.configure_mesh()
+        .disable_mesh()
+        .disable_x_axis()
+        .label_style(("sans-serif", 12))
+        .draw()
+        .map_err(out_err)?;
+    let n = 200;
+    bar.draw_series((0..n).map(|k| {
+        let a = tmin + (tmax - tmin) * k as f64 / n as f64;
+        let b = tmin + (tmax - tmin) * (k + 1) as f64 / n as f64;
+        Rectangle::new(
+            [(0.0, a), (1.0, b)],
+            temperature_colour(0.5 * (a + b)).filled(),
+        )
+    }))
+    .map_err(out_err)?;
+    bar.draw_series(std::iter::once(PathElement::new(
+        vec![(0.0, d.frost_line_c), (1.0, d.frost_line_c)],
+        BLACK.stroke_width(3),
+    )))
+    .map_err(out_err)?;
+    root.present().map_err(out_err)?;
+    Ok(frost)
+}
+
+/// Render with a generic drawing function into `<stem>.png` and `<stem>.svg`; evaluates to the
+/// PNG call's result.
+macro_rules! render_both {
+    ($dir:expr, $stem:expr, $size:expr, $files:expr, $draw:ident ( $($arg:expr),* )) => {{
+        let png = $dir.join(format!("{}.png", $stem));
+        let svg = $dir.join(format!("{}.svg", $stem));
+        let out = {
+            let root = BitMapBackend::new(&png, $size).into_drawing_area();
+            $draw(&root, $($arg),*)?
+        };
+        {
+            let root = SVGBackend::new(&svg, $size).into_drawing_area();
+            $draw(&root, $($arg),*)?;
+        }
+        $files.push(png);
+        $files.push(svg);
+        out
+    }};
+}
+
+/// Render every plot of the run saved in `dir`; returns the files written.
+pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
+    register_fonts();
+    let d = PlotData::load(dir)?;
+    let mut files = Vec::new();
+    let day = match opts.day_of_year {
+        Some(doy) => d.day_index(doy).ok_or_else(|| Error::Input {
+            location: crate::error::Location::file_only("command line"),
+            key: "--day".into(),
+            message: format!("{doy} is not a day of the saved year; allowed: 1 to 365"),
+        })?,
+        None => d.field_day_index,
+    };
+    let doy = d.days[day].day_of_year;
+    let full = View {
+        x0: d.xe[0],
+        x1: *d.xe.last().unwrap_or(&1.0),
+        z0: d.ze[0],
+        z1: *d.ze.last().unwrap_or(&1.0),
+    };
+    let title = format!("{} — soil temperature, day {doy}", d.case_name);
+    let mut sizes = vec![
+        ("soil_temperature", field_size(full)),
+        ("frost_depth", charts::SIZE),
+        ("heat_loss", charts::SIZE),
+        ("probes", charts::SIZE),
+    ];
+    render_both!(
+        dir,
+        "soil_temperature",
+        field_size(full),
+        files,
+        draw_field(&d, day, full, 2.0, &title)
+    );
+    let zoom = match opts.zoom {
+        Some([x0, x1, z0, z1]) => View { x0, x1, z0, z1 },
+        None => {
+            let deepest = d.days[day]
+                .frost_footing_m
+                .max(d.days[day].frost_open_m)
+                .max(d.footing_base_depth_m);
+            View {
+                x0: (d.footing_x.0 - 1.2).max(full.x0),
+                x1: (d
+                    .parts
+                    .iter()
+                    .map(|p| p.x1)
+                    .filter(|&x| x < full.x1)
+                    .fold(0.0, f64::max)
+                    + 1.2)
+                    .min(full.x1),
+                z0: full.z0,
+                z1: (deepest + 0.6).min(full.z1),
+            }
+        }
+    };
+    if !(zoom.x1 > zoom.x0 && zoom.z1 > zoom.z0) {
+        return Err(Error::Input {
+            location: crate::error::Location::file_only("command line"),
+            key: "--zoom".into(),
+            message: "empty window; allowed: x0 < x1 and z0 < z1 (m)".into(),
+        });
+    }
+    let ztitle = format!("{} — around the footing, day {doy}", d.case_name);
+    sizes.push(("soil_temperature_zoom", field_size(zoom)));
+    let frost = render_both!(
+        dir,
+        "soil_temperature_zoom",
+        field_size(zoom),
+        files,
+        draw_field(&d, day, zoom, 1.0, &ztitle)
+    );
+    // The frost line drawn on the field, saved as data.
+    let mut csv = String::from("# Frost line (isotherm at the frost-line temperature) on the plotted day; x, z in m.\nline,x_m,z_m\n");
+    for (k, l) in frost.iter().enumerate() {
+        for (x, z) in l {
+            csv += &format!("{k},{x:.4},{z:.4}\n");
+        }
+    }
+    files.push(crate::report::write_atomic(
+        dir,
+        &format!("frost_line_{doy:03}.csv"),
+        csv.as_bytes(),
+    )?);
+    charts::frost_depth(dir, &d, &mut files)?;
+    charts::heat_loss(dir, &d, &mut files)?;
+    if !d.probe_names.is_empty() {
+        charts::probes(dir, &d, &mut files)?;
+    }
+    // The plot index: every image and its size in pixels.
+    let mut index = Vec::new();
+    for f in &files {
+        let name = f
+            .file_name()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_default();
+        if let Some(size) = sizes
+            .iter()
+            .find(|(stem, _)| name.starts_with(&format!("{stem}.")))
+            .map(|x| x.1)
+        {
+            index
+                .push(serde_json::json!({ "file": name, "width_px": size.0, "height_px": size.1 }));
+        }
+    }
+    if opts.animate {
+        let path = dir.join("soil_temperature.gif");
+        let size = field_size(zoom);
+        let root = BitMapBackend::gif(&path, size, 150)
+            .map_err(out_err)?
+            .into_drawing_area();
+        for k in (0..d.days.len()).step_by(7) {
+            let t = format!("{} — day {}", d.case_name, d.days[k].day_of_year);
+            draw_field(&root, &d, k, zoom, 1.0, &t)?;
+        }
+        files.push(path);
+        index.push(serde_json::json!({ "file": "soil_temperature.gif", "width_px": size.0, "height_px": size.1 }));
+    }
+    let json =
+        serde_json::to_vec_pretty(&serde_json::json!({ "day_of_year": doy, "plots": index }))
+            .map_err(out_err)?;
+    files.push(crate::report::write_atomic(dir, "plots.json", &json)?);
+    Ok(files)
+}
+
+pub mod charts;
