@@ -82,6 +82,24 @@ struct View {
     z1: f64,
 }
 
+/// The pieces of a polyline that lie inside the view (split where it leaves, so no chord is drawn
+/// across the part outside).
+fn runs_inside(line: &[(f64, f64)], inside: &impl Fn(&(f64, f64)) -> bool) -> Vec<Vec<(f64, f64)>> {
+    let mut out = Vec::new();
+    let mut cur = Vec::new();
+    for p in line {
+        if inside(p) {
+            cur.push(*p);
+        } else if !cur.is_empty() {
+            out.push(std::mem::take(&mut cur));
+        }
+    }
+    if !cur.is_empty() {
+        out.push(cur);
+    }
+    out
+}
+
 /// Image size (w, h) in pixels for a view drawn with equal scales on both axes.
 fn field_size(v: View) -> (u32, u32) {
     let (bar, ylab, xlab, cap, margin) = (110.0, 60.0, 45.0, 40.0, 15.0);
@@ -110,6 +128,7 @@ fn draw_field<DB: DrawingBackend>(
     v: View,
     interval: f64,
     title: &str,
+    range: Option<(f64, f64)>,
 ) -> Result<Vec<isolines::Polyline>> {
     root.fill(&WHITE).map_err(out_err)?;
     let (w, _) = root.dim_in_pixel();
@@ -163,8 +182,10 @@ fn draw_field<DB: DrawingBackend>(
     let mut level = (lo / interval).ceil() * interval;
     while level <= hi {
         if level.abs() > 1e-9 {
-            for line in isolines(&xs, &zs, field, level) {
-                let pts: Vec<(f64, f64)> = line.iter().copied().filter(inside).collect();
+            for pts in isolines(&xs, &zs, field, level)
+                .iter()
+                .flat_map(|l| runs_inside(l, &inside))
+            {
                 if pts.len() < 2 {
                     continue;
                 }
@@ -214,8 +235,7 @@ fn draw_field<DB: DrawingBackend>(
         )))
         .map_err(out_err)?;
     let frost = isolines(&xs, &zs, field, d.frost_line_c);
-    for line in &frost {
-        let pts: Vec<(f64, f64)> = line.iter().copied().filter(inside).collect();
+    for pts in frost.iter().flat_map(|l| runs_inside(l, &inside)) {
         if pts.len() >= 2 {
             chart
                 .draw_series(std::iter::once(PathElement::new(
@@ -226,7 +246,7 @@ fn draw_field<DB: DrawingBackend>(
         }
     }
     // Colour bar.
-    let (tmin, tmax) = ((lo.floor()).min(-1.0), hi.ceil().max(1.0));
+    let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
     let mut bar = ChartBuilder::on(&right)
         .margin_top(60)
         .margin_bottom(60)
@@ -300,7 +320,11 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         z0: d.ze[0],
         z1: *d.ze.last().unwrap_or(&1.0),
     };
-    let title = format!("{} — soil temperature, day {doy}", d.case_name);
+    let fl = d.frost_line_c;
+    let title = format!(
+        "{} — soil temperature, day {doy}; bold: frost line ({fl:.2} °C)",
+        d.case_name
+    );
     let mut sizes = vec![
         ("soil_temperature", field_size(full)),
         ("frost_depth", charts::SIZE),
@@ -312,7 +336,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         "soil_temperature",
         field_size(full),
         files,
-        draw_field(&d, day, full, 2.0, &title)
+        draw_field(&d, day, full, 2.0, &title, None)
     );
     let zoom = match opts.zoom {
         Some([x0, x1, z0, z1]) => View { x0, x1, z0, z1 },
@@ -343,14 +367,17 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
             message: "empty window; allowed: x0 < x1 and z0 < z1 (m)".into(),
         });
     }
-    let ztitle = format!("{} — around the footing, day {doy}", d.case_name);
+    let ztitle = format!(
+        "{} — around the footing, day {doy}; bold: frost line ({fl:.2} °C)",
+        d.case_name
+    );
     sizes.push(("soil_temperature_zoom", field_size(zoom)));
     let frost = render_both!(
         dir,
         "soil_temperature_zoom",
         field_size(zoom),
         files,
-        draw_field(&d, day, zoom, 1.0, &ztitle)
+        draw_field(&d, day, zoom, 1.0, &ztitle, None)
     );
     // The frost line drawn on the field, saved as data.
     let mut csv = String::from("# Frost line (isotherm at the frost-line temperature) on the plotted day; x, z in m.\nline,x_m,z_m\n");
@@ -391,9 +418,19 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         let root = BitMapBackend::gif(&path, size, 150)
             .map_err(out_err)?
             .into_drawing_area();
+        // One colour scale for every frame: the year's extremes.
+        let (lo, hi) = d
+            .fields
+            .iter()
+            .filter(|t| t.is_finite())
+            .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
+        let range = Some((lo.floor().min(-1.0), hi.ceil().max(1.0)));
         for k in (0..d.days.len()).step_by(7) {
-            let t = format!("{} — day {}", d.case_name, d.days[k].day_of_year);
-            draw_field(&root, &d, k, zoom, 1.0, &t)?;
+            let t = format!(
+                "{} — day {}; bold: frost line ({fl:.2} °C)",
+                d.case_name, d.days[k].day_of_year
+            );
+            draw_field(&root, &d, k, zoom, 1.0, &t, range)?;
         }
         files.push(path);
         index.push(serde_json::json!({ "file": "soil_temperature.gif", "width_px": size.0, "height_px": size.1 }));
