@@ -28,6 +28,8 @@ pub struct RawCase {
     pub wall: RawWall,
     pub footing: RawFooting,
     #[serde(default)]
+    pub basement: Option<RawBasement>,
+    #[serde(default)]
     pub insulation: Vec<S<RawInsulation>>,
     #[serde(default)]
     pub fill: Option<RawFill>,
@@ -108,6 +110,16 @@ pub struct RawFooting {
     pub base_depth_m: S<f64>,
     #[serde(default)]
     pub material: Option<S<RawMaterial>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawBasement {
+    pub floor_depth_m: S<f64>,
+    pub backfill_width_m: Option<S<f64>>,
+    pub backfill_depth_m: Option<S<f64>>,
+    pub backfill: Option<S<RawStratum>>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -283,6 +295,15 @@ pub struct Footing {
     pub material: Material,
 }
 
+/// A heated basement: the floor below ground level, optionally with backfill beside the wall.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Basement {
+    /// Depth of the basement floor surface below ground level, m.
+    pub floor_depth_m: f64,
+    /// Backfill beside the wall: (outward width from x = 0 m, depth m, material).
+    pub backfill: Option<(f64, f64, Material)>,
+}
+
 /// Where an insulation piece sits.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum InsulationKind {
@@ -409,6 +430,8 @@ pub struct Case {
     pub wall: Wall,
     /// Footing.
     pub footing: Footing,
+    /// Heated basement, if the floor is below ground.
+    pub basement: Option<Basement>,
     /// Insulation pieces.
     pub insulation: Vec<Insulation>,
     /// Granular fill under the slab: (thickness m, material).
@@ -703,17 +726,33 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     };
 
     // Concrete parts.
+    let basement_depth = match &raw.basement {
+        Some(b) => {
+            if let Some(t) = &raw.slab.top_above_ground_m {
+                return Err(c.err(
+                    t.span(),
+                    "slab.top_above_ground_m",
+                    "not used with [basement]; the floor level is basement.floor_depth_m",
+                ));
+            }
+            Some(c.range(&b.floor_depth_m, "basement.floor_depth_m", 0.0, 5.0, "m")?)
+        }
+        None => None,
+    };
     let slab = Slab {
         thickness_m: c.range(&raw.slab.thickness_m, "slab.thickness_m", 0.0, 1.0, "m")?,
         material: c.material(&raw.slab.material, "slab.material", "concrete")?,
-        top_above_ground_m: c.opt(
-            &raw.slab.top_above_ground_m,
-            "slab.top_above_ground_m",
-            -0.5,
-            1.5,
-            "m",
-            0.0,
-        )?,
+        top_above_ground_m: match basement_depth {
+            Some(d) => -d,
+            None => c.opt(
+                &raw.slab.top_above_ground_m,
+                "slab.top_above_ground_m",
+                -0.5,
+                1.5,
+                "m",
+                0.0,
+            )?,
+        },
         finish_r: c.opt(
             &raw.slab.finish_resistance_m2k_per_w,
             "slab.finish_resistance_m2k_per_w",
@@ -916,6 +955,52 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         });
     }
 
+    // Basement and backfill.
+    let basement = match (&raw.basement, basement_depth) {
+        (Some(b), Some(depth)) => {
+            let backfill = match &b.backfill {
+                None => None,
+                Some(st) => {
+                    if let Some(v) = &st.get_ref().bottom_depth_m {
+                        return Err(c.err(
+                            v.span(),
+                            "basement.backfill.bottom_depth_m",
+                            "not used for backfill; give basement.backfill_depth_m",
+                        ));
+                    }
+                    let m = stratum(c, st, "basement.backfill")?;
+                    let w = b.backfill_width_m.as_ref().map_or(Ok(1.0), |v| {
+                        c.range(
+                            v,
+                            "basement.backfill_width_m",
+                            0.0,
+                            simulation.domain_width_m - 1.0,
+                            "m",
+                        )
+                    })?;
+                    let d = b
+                        .backfill_depth_m
+                        .as_ref()
+                        .map_or(Ok(footing.base_depth_m), |v| {
+                            c.range(
+                                v,
+                                "basement.backfill_depth_m",
+                                0.0,
+                                simulation.domain_depth_m - 1.0,
+                                "m",
+                            )
+                        })?;
+                    Some((w, d, m))
+                }
+            };
+            Some(Basement {
+                floor_depth_m: depth,
+                backfill,
+            })
+        }
+        _ => None,
+    };
+
     // Fill.
     let fill = match &raw.fill {
         None => None,
@@ -1022,10 +1107,11 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
                     }
                     InsulationKind::VerticalOutside { top_m: top, bottom_m: bottom }
                 } else {
-                    if top < slab_bottom - 1e-9 {
+                    let floor_z = -slab.top_above_ground_m;
+                    if top < slab_bottom - 1e-9 && bottom > floor_z + 1e-9 {
                         let sp = r.top_depth_m.as_ref().map_or(ins.span(), |v| v.span());
                         return Err(c.err(sp, &format!("{key}.top_depth_m"), format!(
-                            "{top} m overlaps the slab (underside at z = {slab_bottom:.3} m); allowed: at or below the slab's underside")));
+                            "{top} m overlaps the slab (z = {floor_z:.3} to {slab_bottom:.3} m); allowed: at or below the slab's underside, or wholly above the floor")));
                     }
                     InsulationKind::VerticalInside { top_m: top, bottom_m: bottom }
                 }
@@ -1139,6 +1225,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         slab,
         wall,
         footing,
+        basement,
         insulation,
         fill,
         strata,

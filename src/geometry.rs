@@ -19,8 +19,10 @@ pub enum Part {
     Wall,
     /// Footing.
     Footing,
-    /// Granular fill.
+    /// Granular fill under the slab.
     Fill,
+    /// Backfill beside a basement wall.
+    Backfill,
     /// Insulation piece k of the case.
     Insulation(usize),
 }
@@ -170,6 +172,15 @@ impl Section {
             z1: slab_bot,
             part: Part::Slab,
         };
+        if let Some((bw, bd, _)) = case.basement.as_ref().and_then(|b| b.backfill.as_ref()) {
+            rects.push(Rect {
+                x0: 0.0,
+                x1: *bw,
+                z0: 0.0,
+                z1: *bd,
+                part: Part::Backfill,
+            });
+        }
         rects.extend([footing, wall, slab]);
         // Insulation must not overlap concrete or other insulation.
         let err = |k: usize, what: &str| Error::Input {
@@ -279,6 +290,11 @@ impl Section {
             .iter()
             .map(|i| mesh.add_material(i.material.clone()))
             .collect();
+        let backfill_m = case
+            .basement
+            .as_ref()
+            .and_then(|b| b.backfill.as_ref())
+            .map(|(_, _, m)| mesh.add_material(m.clone()));
         mesh.add_zone(Zone {
             name: "indoor".into(),
             r_horizontal: case.building.r_si_floor + case.slab.finish_r,
@@ -294,11 +310,11 @@ impl Section {
             let zc = mesh.grid.zc(j);
             for i in 0..nx {
                 let xc = mesh.grid.xc(i);
-                let cell = if zc < 0.0 {
+                let cell = if xc < -w && zc < case.floor_z() {
+                    Cell::Zone(INDOOR)
+                } else if zc < 0.0 {
                     if xc > 0.0 {
                         Cell::Zone(OUTDOOR)
-                    } else if xc < -w && zc < case.floor_z() {
-                        Cell::Zone(INDOOR)
                     } else {
                         Cell::Solid(fill_m)
                     }
@@ -320,6 +336,7 @@ impl Section {
                 Part::Wall => wall_m,
                 Part::Footing => foot_m,
                 Part::Fill => fill_m,
+                Part::Backfill => backfill_m.unwrap_or(strata_idx[0]),
                 Part::Insulation(k) => ins_m[k],
             };
             mesh.paint(r.x0, r.x1, r.z0, r.z1, Cell::Solid(m));

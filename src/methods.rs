@@ -55,6 +55,42 @@ pub fn iso13370_edge_psi(lambda: f64, d_t: f64, r_n: f64, d_n: f64, edge: EdgeIn
     -(lambda / PI) * ((d / d_t + 1.0).ln() - (d / (d_t + d_prime) + 1.0).ln())
 }
 
+/// ISO 13370 heated basement: floor U_bf, wall U_bw and effective U′ (W/(m²·K)) for a floor at
+/// depth z (m) below ground, λ the ground conductivity, B′ the characteristic dimension, w the
+/// wall thickness, R_f and R_w the floor and wall resistances (m²·K/W):
+/// d_t = w + λ(R_si + R_f + R_se); U_bf = 2λ/(πB′ + d_t + z/2) ln(πB′/(d_t + z/2) + 1) if
+/// d_t + z/2 < B′, else λ/(0.457B′ + d_t + z/2); d_w = λ(R_si + R_w + R_se);
+/// U_bw = (2λ/(πz))(1 + ½ d_t/(d_t + z)) ln(z/d_w + 1);
+/// U′ = (A U_bf + z P U_bw)/(A + z P). (R_si: the floor's 0.17 in d_t, the wall's 0.13 in d_w.)
+#[allow(clippy::too_many_arguments)]
+pub fn iso13370_basement(
+    lambda: f64,
+    area_m2: f64,
+    perimeter_m: f64,
+    wall_m: f64,
+    depth_m: f64,
+    r_f: f64,
+    r_w: f64,
+    r_si_floor: f64,
+    r_si_wall: f64,
+    r_se: f64,
+) -> (f64, f64, f64) {
+    let b = characteristic_dimension(area_m2, perimeter_m);
+    let d_t = wall_m + lambda * (r_si_floor + r_f + r_se);
+    let e = d_t + 0.5 * depth_m;
+    let u_bf = if e < b {
+        2.0 * lambda / (PI * b + e) * (PI * b / e + 1.0).ln()
+    } else {
+        lambda / (0.457 * b + e)
+    };
+    let d_w = lambda * (r_si_wall + r_w + r_se);
+    let u_bw = 2.0 * lambda / (PI * depth_m)
+        * (1.0 + 0.5 * d_t / (d_t + depth_m))
+        * (depth_m / d_w + 1.0).ln();
+    let u = (area_m2 * u_bf + depth_m * perimeter_m * u_bw) / (area_m2 + depth_m * perimeter_m);
+    (u_bf, u_bw, u)
+}
+
 /// Periodic penetration depth δ = sqrt(λ t_p /(π ρc)), m, for a period t_p (s).
 pub fn periodic_penetration_depth(lambda: f64, rho_c: f64, period_s: f64) -> f64 {
     (lambda * period_s / (PI * rho_c)).sqrt()
@@ -237,6 +273,22 @@ mod tests {
         assert!((v(0.5) + 0.3955).abs() < 1e-4);
         assert!((h(1.0) + 0.3955).abs() < 1e-4);
         assert!((v(1.0) + 0.5602).abs() < 1e-4);
+    }
+
+    #[test]
+    fn iso13370_basement_check_values() {
+        // A 100, P 40, z 2, w 0.3, λ 2 (methods notes §1.4, derived from the formulas), with
+        // R_si 0.17 in d_t and 0.13 in d_w: d_t 0.72, d_w 0.34.
+        let (f, w, u) = iso13370_basement(2.0, 100.0, 40.0, 0.3, 2.0, 0.0, 0.0, 0.17, 0.13, 0.04);
+        assert!(
+            (f - 0.5315).abs() < 1e-4 && (w - 1.3905).abs() < 1e-4 && (u - 0.9133).abs() < 1e-4,
+            "{f} {w} {u}"
+        );
+        let (f, w, u) = iso13370_basement(2.0, 100.0, 40.0, 0.3, 2.0, 2.0, 2.0, 0.17, 0.13, 0.04);
+        assert!(
+            (f - 0.2498).abs() < 1e-4 && (w - 0.3260).abs() < 1e-4 && (u - 0.2837).abs() < 1e-4,
+            "{f} {w} {u}"
+        );
     }
 
     #[test]

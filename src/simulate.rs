@@ -8,6 +8,31 @@ use crate::mesh::Mesh;
 use crate::methods;
 use crate::solver::{Network, Solver, SolverParams, SolverStats};
 
+/// Boundary-face reporting group: the indoor faces of the floor.
+pub const GROUP_FLOOR: usize = 1;
+/// … the indoor faces of the wall below ground level.
+pub const GROUP_WALL_BELOW: usize = 2;
+/// … the indoor faces of the wall above ground level.
+pub const GROUP_WALL_ABOVE: usize = 3;
+
+/// Assign the indoor boundary faces to the floor / wall groups (others stay in group 0).
+pub fn assign_groups(net: &mut Network, mesh: &Mesh) {
+    use crate::solver::network::Side;
+    let nx = mesh.grid.nx();
+    for b in net.bfaces.iter_mut() {
+        if b.zone != INDOOR {
+            continue;
+        }
+        let id = net.cell_of[b.p];
+        let zc = mesh.grid.zc(id / nx);
+        b.group = match b.side {
+            Side::Top | Side::Bottom => GROUP_FLOOR,
+            _ if zc >= 0.0 => GROUP_WALL_BELOW,
+            _ => GROUP_WALL_ABOVE,
+        };
+    }
+}
+
 /// Spin-up stops when the annual heat loss changes less than this fraction between years.
 pub const SPIN_UP_HEAT_TOL: f64 = 0.005;
 /// … and the maximum frost depths change less than this, m.
@@ -37,6 +62,8 @@ pub struct Day {
     pub frost_open_m: f64,
     /// Frost depth under the footing, end of day, m.
     pub frost_footing_m: f64,
+    /// Frost depth within 0.5 m of the wall's exterior face, end of day, m.
+    pub frost_beside_wall_m: f64,
 }
 
 /// One simulated year.
@@ -44,6 +71,14 @@ pub struct Day {
 pub struct Year {
     /// Ground heat loss of the whole building over the year, kWh.
     pub heat_loss_kwh: f64,
+    /// Of which through the floor, kWh.
+    pub floor_heat_loss_kwh: f64,
+    /// Of which through the wall's inside face below ground level, kWh.
+    pub wall_heat_loss_kwh: f64,
+    /// Of which through the wall's inside face above ground level, kWh.
+    pub wall_above_ground_heat_loss_kwh: f64,
+    /// Deepest frost within 0.5 m of the wall's exterior face, m.
+    pub max_frost_beside_wall_m: f64,
     /// Deepest frost in open ground, m.
     pub max_frost_open_m: f64,
     /// Deepest frost under the footing, m.
@@ -84,6 +119,21 @@ pub struct CrossCheck {
     pub stefan_frost_depth_m: f64,
     /// Modified Berggren open-ground frost depth (n = 1, top stratum), m.
     pub modified_berggren_frost_depth_m: f64,
+    /// ISO 13370 heated-basement values, for basement cases.
+    pub basement: Option<BasementCheck>,
+}
+
+/// ISO 13370 heated-basement U-values for the same inputs.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct BasementCheck {
+    /// Basement floor U_bf, W/(m²·K).
+    pub iso13370_basement_floor_u_value_w_per_m2k: f64,
+    /// Basement wall U_bw, W/(m²·K).
+    pub iso13370_wall_u_value_w_per_m2k: f64,
+    /// Effective U′ = (A U_bf + z P U_bw)/(A + z P), W/(m²·K).
+    pub iso13370_effective_u_value_w_per_m2k: f64,
+    /// 1/U_bw of the wall as computed (height-weighted U for partly insulated walls), m²·K/W.
+    pub wall_resistance_m2k_per_w: f64,
 }
 
 /// Everything a run produces.
@@ -138,6 +188,13 @@ pub struct Progress {
     pub day: usize,
     /// Most years the run can take.
     pub max_years: usize,
+}
+
+/// Cell columns whose centres lie within 0.5 m outside the wall's exterior face.
+pub fn beside_wall_columns(mesh: &Mesh, _case: &Case) -> Vec<usize> {
+    (0..mesh.grid.nx())
+        .filter(|&i| mesh.grid.xc(i) > 0.0 && mesh.grid.xc(i) <= 0.5)
+        .collect()
 }
 
 /// Cell columns whose centres lie under the footing.
@@ -219,15 +276,90 @@ pub fn cross_check(case: &Case) -> CrossCheck {
         0.5 * (soil.c_frozen + soil.c_unfrozen),
         soil.latent.max(1.0),
     );
+    let basement = case.basement.as_ref().map(|bm| {
+        let z = bm.floor_depth_m;
+        // Wall resistance: concrete plus insulation. Where insulation covers only part of the
+        // below-ground height, U_bw is the height-weighted mean of U_bw for each part (common
+        // practice for partly insulated walls; ISO 13370 gives one R_w).
+        let r_wall = case.wall.thickness_m / case.wall.material.k_unfrozen;
+        let mut cuts = vec![0.0, z];
+        let pieces: Vec<(f64, f64, f64)> = case
+            .insulation
+            .iter()
+            .filter_map(|ins| match ins.kind {
+                InsulationKind::VerticalOutside { top_m, bottom_m }
+                | InsulationKind::VerticalInside { top_m, bottom_m } => Some((
+                    top_m.max(0.0),
+                    bottom_m.min(z),
+                    ins.thickness_m / ins.material.k_unfrozen,
+                )),
+                _ => None,
+            })
+            .collect();
+        for &(t0, t1, _) in &pieces {
+            cuts.extend([t0.clamp(0.0, z), t1.clamp(0.0, z)]);
+        }
+        cuts.sort_by(f64::total_cmp);
+        cuts.dedup();
+        let iso = |r_w: f64| {
+            methods::iso13370_basement(
+                lambda,
+                b.floor_area_m2,
+                b.exposed_perimeter_m,
+                case.wall.thickness_m,
+                z,
+                r_f,
+                r_w,
+                b.r_si_floor,
+                b.r_si_wall,
+                case.climate.r_se,
+            )
+        };
+        let (f, _, _) = iso(r_wall);
+        let mut w = 0.0;
+        for seg in cuts.windows(2) {
+            let mid = 0.5 * (seg[0] + seg[1]);
+            let r_ins: f64 = pieces
+                .iter()
+                .filter(|p| p.0 <= mid && mid <= p.1)
+                .map(|p| p.2)
+                .sum();
+            w += (seg[1] - seg[0]) / z * iso(r_wall + r_ins).1;
+        }
+        let (a, p) = (b.floor_area_m2, b.exposed_perimeter_m);
+        let e = (a * f + z * p * w) / (a + z * p);
+        let r_w = 1.0 / w;
+        BasementCheck {
+            iso13370_basement_floor_u_value_w_per_m2k: f,
+            iso13370_wall_u_value_w_per_m2k: w,
+            iso13370_effective_u_value_w_per_m2k: e,
+            wall_resistance_m2k_per_w: r_w,
+        }
+    });
+    // For a basement the headline ISO values are the heated-basement ones: U′ (A + zP)/A per
+    // floor area (the model's floor_u_value has the same definition) and U′ (A + zP) Δθ.
+    let (u, mean_loss) = match (&basement, &case.basement) {
+        (Some(bc), Some(bm)) => {
+            let area = b.floor_area_m2 + bm.floor_depth_m * b.exposed_perimeter_m;
+            let ue = bc.iso13370_effective_u_value_w_per_m2k;
+            (
+                ue * area / b.floor_area_m2,
+                ue * area * (case.indoor_mean_c() - case.climate.mean_c),
+            )
+        }
+        _ => (
+            u,
+            u * b.floor_area_m2 * (case.indoor_mean_c() - case.climate.mean_c),
+        ),
+    };
     CrossCheck {
+        basement,
         iso13370_u_value_w_per_m2k: u,
         iso13370_u0_w_per_m2k: u0,
         iso13370_edge_psi_w_per_mk: psi,
         iso13370_dt_m: d_t,
         iso13370_lambda_w_per_mk: lambda,
-        iso13370_mean_heat_loss_w: u
-            * b.floor_area_m2
-            * (case.indoor_mean_c() - case.climate.mean_c),
+        iso13370_mean_heat_loss_w: mean_loss,
         freezing_index_c_days: fi,
         freezing_season_days: season,
         stefan_frost_depth_m: stefan,
@@ -240,7 +372,9 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     let start = std::time::Instant::now();
     let section = Section::from_case(case)?;
     let mesh = section.mesh(case);
-    let net = Network::new(&mesh);
+    let mut net = Network::new(&mesh);
+    assign_groups(&mut net, &mesh);
+    let net = net;
     let mut solver = Solver::new(&net, SolverParams::default())?;
     let perimeter = case.building.exposed_perimeter_m;
     let n_zones = net.n_zones;
@@ -262,13 +396,15 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     let cols = footing_columns(&mesh, case);
     let open_col = mesh.grid.nx() - 1;
     let t_line = frost_line_c(case);
+    let beside = beside_wall_columns(&mesh, case);
+    let deepest = |cols: &[usize], t: &[f64]| {
+        cols.iter()
+            .filter_map(|&i| frost_depth_column(&mesh, &net, t, i, 0.0, t_line))
+            .fold(0.0, f64::max)
+    };
     let frost = |t: &[f64]| {
         let open = frost_depth_column(&mesh, &net, t, open_col, 0.0, t_line).unwrap_or(0.0);
-        let foot = cols
-            .iter()
-            .filter_map(|&i| frost_depth_column(&mesh, &net, t, i, 0.0, t_line))
-            .fold(0.0, f64::max);
-        (open, foot)
+        (open, deepest(&cols, t), deepest(&beside, t))
     };
 
     let dt = case.simulation.dt_s;
@@ -299,9 +435,12 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         };
         let (mut sum_in, mut sum_abs, mut sum_stored) = (0.0, 0.0, 0.0);
         let mut loss_j = 0.0;
+        let mut groups_j = [0.0; 4];
+        let mut best_wall = 0.0f64;
         for d in 0..365 {
             let cal = day0 + d as f64;
             let mut day_in = 0.0;
+            let mut day_groups = [0.0; 4];
             let mut out_mean = 0.0;
             let indoor = case.building.indoor_monthly_c[month_of(cal + 0.5)];
             for s in 0..steps_per_day {
@@ -313,14 +452,21 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
                 sim_time += dt;
                 time_steps += 1;
                 day_in += e.from_zone[INDOOR];
+                for (g, v) in e.by_group.iter().enumerate().take(4) {
+                    day_groups[g] += v;
+                }
                 sum_in += e.from_zone.iter().sum::<f64>();
                 sum_abs += e.from_zone.iter().map(|v| v.abs()).sum::<f64>();
                 sum_stored += e.stored;
                 let _ = OUTDOOR;
             }
             loss_j += day_in;
+            for g in 0..4 {
+                groups_j[g] += day_groups[g];
+            }
             net.temperatures(&h, &mut t);
-            let (fo, ff) = frost(&t);
+            let (fo, ff, fw) = frost(&t);
+            best_wall = best_wall.max(fw);
             let doy = (cal as usize % 365) + 1;
             days.push(Day {
                 day_of_year: doy,
@@ -329,6 +475,7 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
                 heat_loss_w: day_in / 86400.0 * perimeter,
                 frost_open_m: fo,
                 frost_footing_m: ff,
+                frost_beside_wall_m: fw,
             });
             daily_fields.push(
                 grid_field(&mesh, &net, &t)
@@ -387,6 +534,10 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         }
         let year = Year {
             heat_loss_kwh: loss_j * perimeter / 3.6e6,
+            floor_heat_loss_kwh: groups_j[GROUP_FLOOR] * perimeter / 3.6e6,
+            wall_heat_loss_kwh: groups_j[GROUP_WALL_BELOW] * perimeter / 3.6e6,
+            wall_above_ground_heat_loss_kwh: groups_j[GROUP_WALL_ABOVE] * perimeter / 3.6e6,
+            max_frost_beside_wall_m: best_wall,
             max_frost_open_m: best_open.max(0.0),
             max_frost_footing_m: best_foot.max(0.0),
             energy_balance_error: if sum_abs > 0.0 {
@@ -428,15 +579,30 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
 /// Steady heat flow from the indoor air into the ground per metre of section (W/m) with constant
 /// indoor and outdoor temperatures (°C): the ISO 13370 steady-state quantity Q' = U B'/2 ΔT.
 pub fn steady_heat_flow(case: &Case, indoor_c: f64, outdoor_c: f64) -> Result<f64> {
+    Ok(steady_flows(case, indoor_c, outdoor_c)?.iter().sum())
+}
+
+/// Steady indoor heat flows per metre of section (W/m) split into [other, floor, wall below
+/// ground, wall above ground] (see [`GROUP_FLOOR`] …).
+pub fn steady_flows(case: &Case, indoor_c: f64, outdoor_c: f64) -> Result<[f64; 4]> {
     let section = Section::from_case(case)?;
     let mesh = section.mesh(case);
-    let net = Network::new(&mesh);
+    let mut net = Network::new(&mesh);
+    assign_groups(&mut net, &mesh);
+    let net = net;
     let mut solver = Solver::new(&net, SolverParams::default())?;
     let mut zt = vec![indoor_c, outdoor_c];
     if let Some(tb) = case.simulation.bottom_temperature_c {
         zt.push(tb);
     }
-    Ok(solver.steady(&zt, None)?.from_zone[INDOOR])
+    let st = solver.steady(&zt, None)?;
+    let mut out = [0.0; 4];
+    for (g, v) in st.by_group.iter().enumerate().take(4) {
+        out[g] = *v;
+    }
+    // Group 0 also holds the other zones' faces: keep only the indoor total there.
+    out[0] = st.from_zone[INDOOR] - out[1] - out[2] - out[3];
+    Ok(out)
 }
 
 /// Temperatures of the unknowns spread onto the grid (NaN for air cells).

@@ -192,3 +192,43 @@ fn marrow_flats_depot_shortened() {
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(num(&s, "spin_up_years") <= 2.0);
 }
+
+/// The heated-basement demo (2.4 m, exterior insulation on the upper half), shortened to two
+/// spin-up years. Ranges: effective U between the ISO 13370 value for the same inputs (0.33, with
+/// the partly insulated wall taken as a height-weighted U) and twice it, since the model includes
+/// the lower, uninsulated wall's bypass; wall loss above floor loss (the uninsulated lower wall);
+/// frost beside the wall shallower than open ground (the building warms it); energy balance.
+#[test]
+fn birch_lane_basement_shortened() {
+    let (s, out, stdout) = run_example(
+        "birch-lane-basement",
+        &["--quiet", "--max-spin-up-years", "2"],
+    );
+    for k in [
+        "wall_heat_loss_kwh",
+        "floor_heat_loss_kwh",
+        "wall_u_value_w_per_m2k",
+        "basement_floor_u_value_w_per_m2k",
+        "effective_u_value_w_per_m2k",
+        "frost_depth_beside_wall_m",
+    ] {
+        assert!(s[k].is_number(), "basement key {k}");
+    }
+    let iso = s["cross_check"]["basement"]["iso13370_effective_u_value_w_per_m2k"]
+        .as_f64()
+        .unwrap();
+    let ue = num(&s, "effective_u_value_w_per_m2k");
+    assert!(ue > iso && ue < 2.0 * iso, "effective U {ue} vs ISO {iso}");
+    assert!(num(&s, "wall_heat_loss_kwh") > num(&s, "floor_heat_loss_kwh"));
+    let parts = num(&s, "wall_heat_loss_kwh")
+        + num(&s, "floor_heat_loss_kwh")
+        + num(&s, "wall_above_ground_heat_loss_kwh");
+    assert!(
+        (parts - num(&s, "annual_heat_loss_kwh")).abs() < 1e-6 * parts,
+        "the parts add up"
+    );
+    assert!(num(&s, "frost_depth_beside_wall_m") < num(&s, "frost_depth_open_ground_m"));
+    assert!(num(&s, "energy_balance_error").abs() < 1e-3);
+    assert!(stdout.contains("Heated basement"));
+    crate::plots::check_plots(&out, &s);
+}

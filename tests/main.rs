@@ -1,5 +1,6 @@
 //! The integration-test binary: verification against published references, the CLI, the bundled
 //! examples and regression checks.
+mod basement;
 mod cli;
 mod common;
 mod examples;

@@ -137,6 +137,7 @@ impl PlotData {
                 heat_loss_w: num(&r[3]),
                 frost_open_m: num(&r[4]),
                 frost_footing_m: num(&r[5]),
+                frost_beside_wall_m: r.get(6).map_or(f64::NAN, |v| num(v)),
             })
             .collect();
         let (_, monthly) = rows(&read(dir, "monthly.csv")?);

@@ -75,12 +75,32 @@ pub fn headline(case: &Case, r: &RunResult) -> Headline {
     }
 }
 
+/// Basement results: (floor U, wall U, effective U, frost beside the wall), W/(m²·K) and m.
+pub fn basement_values(case: &Case, r: &RunResult) -> Option<(f64, f64, f64, f64)> {
+    let b = case.basement.as_ref()?;
+    let y = r.final_year();
+    let dtemp = case.indoor_mean_c() - case.climate.mean_c;
+    let (a, p, z) = (
+        case.building.floor_area_m2,
+        case.building.exposed_perimeter_m,
+        b.floor_depth_m,
+    );
+    let floor_w = y.floor_heat_loss_kwh * 1000.0 / 8760.0;
+    let wall_w = y.wall_heat_loss_kwh * 1000.0 / 8760.0;
+    Some((
+        floor_w / (a * dtemp),
+        wall_w / (z * p * dtemp),
+        (floor_w + wall_w) / ((a + z * p) * dtemp),
+        y.max_frost_beside_wall_m,
+    ))
+}
+
 /// The summary.json document.
 pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
     let h = headline(case, r);
     let y = r.final_year();
     let st = r.stats;
-    json!({
+    let mut doc = json!({
         "case_name": case.name,
         "caution": CAUTION,
         "coordinates": COORDINATES,
@@ -120,7 +140,28 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
         "wall_time_s": r.wall_time_s,
         "years": r.years,
         "cross_check": r.cross_check,
-    })
+    });
+    if let Some((uf, uw, ue, fw)) = basement_values(case, r) {
+        let b = case
+            .basement
+            .as_ref()
+            .expect("basement values imply a basement");
+        let extra = json!({
+            "basement_floor_depth_m": b.floor_depth_m,
+            "wall_heat_loss_kwh": y.wall_heat_loss_kwh,
+            "floor_heat_loss_kwh": y.floor_heat_loss_kwh,
+            "wall_above_ground_heat_loss_kwh": y.wall_above_ground_heat_loss_kwh,
+            "wall_u_value_w_per_m2k": uw,
+            "basement_floor_u_value_w_per_m2k": uf,
+            "effective_u_value_w_per_m2k": ue,
+            "frost_depth_beside_wall_m": fw,
+            "basement_note": "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported separately.",
+        });
+        if let (Some(d), Some(e)) = (doc.as_object_mut(), extra.as_object()) {
+            d.extend(e.clone());
+        }
+    }
+    doc
 }
 
 /// Write `bytes` to `dir/name` through a temporary file and a rename.
@@ -178,9 +219,9 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
     let hdr = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
     let daily = csv_bytes(
         &format!("{head}\nReported (final) year, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
-        &hdr(&["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_under_footing_m"]),
+        &hdr(&["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m"]),
         r.days.iter().map(|d| {
-            vec![d.day_of_year.to_string(), f(d.outdoor_c, 3), f(d.indoor_c, 2), f(d.heat_loss_w, 2), f(d.frost_open_m, 4), f(d.frost_footing_m, 4)]
+            vec![d.day_of_year.to_string(), f(d.outdoor_c, 3), f(d.indoor_c, 2), f(d.heat_loss_w, 2), f(d.frost_open_m, 4), f(d.frost_footing_m, 4), f(d.frost_beside_wall_m, 4)]
         }),
     )?;
     files.push(write_atomic(dir, "daily.csv", &daily)?);
@@ -263,6 +304,7 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
                 Part::Wall => ("wall".to_string(), "concrete"),
                 Part::Footing => ("footing".to_string(), "concrete"),
                 Part::Fill => ("fill".to_string(), "fill"),
+                Part::Backfill => ("backfill".to_string(), "fill"),
                 Part::Insulation(k) => (format!("insulation[{k}]"), "insulation"),
             };
             PartOutline {
@@ -363,6 +405,26 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
         "    design air freezing index      °C·d  {:>10.0}\n",
         c.freezing_index_c_days
     );
+    if let (Some((uf, uw, ue, fw)), Some(bc)) = (basement_values(case, r), c.basement.as_ref()) {
+        s += "\n  Heated basement                             model      ISO 13370\n";
+        s += &format!(
+            "    floor U-value               W/(m²K)  {uf:>10.3}  {:>10.3}\n",
+            bc.iso13370_basement_floor_u_value_w_per_m2k
+        );
+        s += &format!(
+            "    wall U-value (below ground) W/(m²K)  {uw:>10.3}  {:>10.3}\n",
+            bc.iso13370_wall_u_value_w_per_m2k
+        );
+        s += &format!(
+            "    effective U-value           W/(m²K)  {ue:>10.3}  {:>10.3}\n",
+            bc.iso13370_effective_u_value_w_per_m2k
+        );
+        s += &format!(
+            "    wall / floor heat loss          kWh  {:>10.0}  {:>10.0}\n",
+            y.wall_heat_loss_kwh, y.floor_heat_loss_kwh
+        );
+        s += &format!("    frost beside the wall (0.5 m)     m  {fw:>10.2}\n");
+    }
     s += &format!("\n  Numerics: {} cells, {} steps, {} spin-up years ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
         r.mesh.solid_cells(), r.time_steps, r.spin_up_years(),
         if r.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },

@@ -89,6 +89,8 @@ pub struct SolverStats {
 pub struct StepEnergy {
     /// Heat into the solid from each zone, J/m.
     pub from_zone: Vec<f64>,
+    /// Heat into the solid through the boundary faces of each reporting group, J/m.
+    pub by_group: Vec<f64>,
     /// Increase of stored heat Σ V ΔH, J/m.
     pub stored: f64,
     /// Step length, s.
@@ -102,6 +104,8 @@ pub struct Steady {
     pub t: Vec<f64>,
     /// Heat flow into the solid from each zone, W/m.
     pub from_zone: Vec<f64>,
+    /// Heat flow into the solid through the boundary faces of each reporting group, W/m.
+    pub by_group: Vec<f64>,
     /// Picard iterations used.
     pub iterations: usize,
     /// Relative imbalance Σ flows / Σ |flows|.
@@ -244,14 +248,18 @@ impl<'a> Solver<'a> {
             }
         }
         let mut from_zone = vec![0.0; net.n_zones];
+        let mut by_group = vec![0.0; net.n_groups()];
         for (b, bf) in net.bfaces.iter().enumerate() {
-            from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - t[bf.p]);
+            let q = self.gb[b] * (zone_t[bf.zone] - t[bf.p]);
+            from_zone[bf.zone] += q;
+            by_group[bf.group] += q;
         }
         let sum: f64 = from_zone.iter().sum();
         let abs: f64 = from_zone.iter().map(|v| v.abs()).sum();
         Ok(Steady {
             t,
             from_zone,
+            by_group,
             iterations,
             balance_error: if abs > 0.0 { sum / abs } else { 0.0 },
         })
@@ -269,6 +277,7 @@ impl<'a> Solver<'a> {
         self.stats.steps += 1;
         let mut e = StepEnergy {
             from_zone: vec![0.0; self.net.n_zones],
+            by_group: vec![0.0; self.net.n_groups()],
             stored: 0.0,
             dt,
         };
@@ -382,7 +391,9 @@ impl<'a> Solver<'a> {
             return Err((0, last_res));
         }
         for (b, bf) in net.bfaces.iter().enumerate() {
-            e.from_zone[bf.zone] += self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
+            let q = self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
+            e.from_zone[bf.zone] += q;
+            e.by_group[bf.group] += q;
         }
         e.stored += (0..net.n)
             .map(|p| net.volume[p] * (h[p] - self.h_old[p]))

@@ -51,6 +51,9 @@ pub struct BFace {
     pub zone: usize,
     /// Direction of the face from the cell.
     pub side: Side,
+    /// Reporting group (0 unless the caller assigns groups): heat through the faces of each
+    /// group is summed separately.
+    pub group: usize,
 }
 
 /// Topology, geometry and matrix pattern of a mesh.
@@ -124,6 +127,7 @@ impl Network {
                 r,
                 zone,
                 side,
+                group: 0,
             }
         };
         for j in 0..nz {
@@ -155,6 +159,7 @@ impl Network {
                         r,
                         zone,
                         side: Side::Right,
+                        group: 0,
                     });
                 }
                 // Left neighbour (zone or edge only; solid pairs were added from the left cell).
@@ -170,6 +175,7 @@ impl Network {
                         r,
                         zone,
                         side: Side::Left,
+                        group: 0,
                     });
                 }
                 // Lower neighbour.
@@ -193,6 +199,7 @@ impl Network {
                         r,
                         zone,
                         side: Side::Bottom,
+                        group: 0,
                     });
                 }
                 // Upper neighbour.
@@ -208,6 +215,7 @@ impl Network {
                         r,
                         zone,
                         side: Side::Top,
+                        group: 0,
                     });
                 }
             }
@@ -254,6 +262,11 @@ impl Network {
             diag_slot,
             face_slot,
         }
+    }
+
+    /// Number of reporting groups of the boundary faces (at least 1).
+    pub fn n_groups(&self) -> usize {
+        self.bfaces.iter().map(|b| b.group + 1).max().unwrap_or(1)
     }
 
     /// Interior-face conductances G_f (W/(m·K)) for cell conductivities `k`.
