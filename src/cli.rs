@@ -32,6 +32,16 @@ pub enum Command {
         after_help = "Examples:\n  frostline plot out/kettle\n  frostline plot out/kettle --day 60 --zoom -1,2,-0.4,2.5 --animate"
     )]
     Plot(PlotArgs),
+    /// Statistics of a measured daily or hourly temperature series: mean, annual sinusoid,
+    /// freezing index of every winter, design freezing index.
+    #[command(
+        after_help = "Examples:\n  frostline climate climate/kettle-hollow.csv\n  \
+        frostline climate station.csv --return-period 50 --fit mle --out out/station\n\n\
+        File layout: comment lines start with #; a header with `date` and `temperature_c` (or\n\
+        `temperature_f`); ISO 8601 dates or date-times in time order. Gaps up to --max-gap-days\n\
+        are filled by linear interpolation."
+    )]
+    Climate(ClimateArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
     Check {
@@ -74,6 +84,34 @@ pub struct RunArgs {
     /// Also write soil_temperature.gif, the field through the year.
     #[arg(long)]
     pub animate: bool,
+}
+
+/// Gumbel fitting method on the command line.
+#[derive(ValueEnum, Clone, Copy, Debug)]
+pub enum FitArg {
+    /// L-moments (default; robust for short records).
+    Lmoments,
+    /// Maximum likelihood.
+    Mle,
+}
+
+/// Arguments of `climate`.
+#[derive(Args, Debug)]
+pub struct ClimateArgs {
+    /// The series file (CSV).
+    pub series: PathBuf,
+    /// Return period of the design freezing index, years.
+    #[arg(long, default_value_t = 100.0)]
+    pub return_period: f64,
+    /// Gumbel fitting method.
+    #[arg(long, value_enum, default_value_t = FitArg::Lmoments)]
+    pub fit: FitArg,
+    /// Longest gap (days) filled by interpolation.
+    #[arg(long, default_value_t = 3)]
+    pub max_gap_days: usize,
+    /// Write climate_summary.json into this directory.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
 }
 
 /// Arguments of `plot`.
@@ -119,6 +157,41 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Check { case } => {
             let case = load_case(&case)?;
             print!("{}", check_text(&case)?);
+            Ok(())
+        }
+        Command::Climate(a) => {
+            use crate::physics::climate::{read_series, summarize, FitMethod, ReadOptions};
+            if !(a.return_period > 1.0 && a.return_period <= 10_000.0) {
+                return Err(Error::Input {
+                    location: crate::error::Location::file_only("command line"),
+                    key: "--return-period".into(),
+                    message: format!(
+                        "{} is out of range; allowed: more than 1 and at most 10000 years",
+                        a.return_period
+                    ),
+                });
+            }
+            let opts = ReadOptions {
+                max_gap_days: a.max_gap_days,
+                ..Default::default()
+            };
+            let series = read_series(&a.series, &opts)?;
+            let method = match a.fit {
+                FitArg::Lmoments => FitMethod::LMoments,
+                FitArg::Mle => FitMethod::MaximumLikelihood,
+            };
+            let s = summarize(&series, a.return_period, method)?;
+            print!("{}", climate_text(&s));
+            if let Some(dir) = a.out {
+                std::fs::create_dir_all(&dir).map_err(|e| Error::Io {
+                    path: dir.clone(),
+                    source: e,
+                })?;
+                let json =
+                    serde_json::to_vec_pretty(&s).map_err(|e| Error::Output(e.to_string()))?;
+                let p = crate::report::write_atomic(&dir, "climate_summary.json", &json)?;
+                println!("\n  wrote {}", p.display());
+            }
             Ok(())
         }
         Command::Plot(a) => {
@@ -256,4 +329,42 @@ pub fn check_text(case: &Case) -> Result<String, Error> {
     s += &format!("  open-ground frost depth: Stefan {:.2} m, modified Berggren {:.2} m; footing base {:.2} m\n",
         c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m, case.footing.base_depth_m);
     Ok(s)
+}
+
+/// The table `climate` prints.
+pub fn climate_text(s: &crate::physics::climate::ClimateSummary) -> String {
+    let mut t = format!(
+        "{}: {} to {} ({:.1} years, {} days filled)\n",
+        s.source, s.first_date, s.last_date, s.years, s.filled_days
+    );
+    t += &format!(
+        "  mean annual temperature          {:>8.2} °C\n",
+        s.mean_annual_temperature_c
+    );
+    t += &format!(
+        "  annual sinusoid amplitude        {:>8.2} K, coldest on day {:.0}\n",
+        s.annual_amplitude_k, s.coldest_day_of_year
+    );
+    t += "  freezing index by winter (°C·d):\n";
+    for w in &s.freezing_index_by_winter_c_days {
+        t += &format!(
+            "    {}/{:02} {:>8.0}\n",
+            w.winter,
+            (w.winter + 1) % 100,
+            w.value
+        );
+    }
+    t += &format!(
+        "  design freezing index, {:.0}-year   {:>8.0} °C·d (Gumbel {:?}: location {:.1}, scale {:.1}; KS D {:.3}, p {:.2})\n",
+        s.return_period_years, s.design_freezing_index_c_days, s.fit_method, s.gumbel_location_c_days, s.gumbel_scale_c_days, s.ks_statistic, s.ks_p_value
+    );
+    t += &format!(
+        "  mean of the 3 coldest winters    {:>8.0} °C·d\n",
+        s.mean_of_three_coldest_c_days
+    );
+    t += &format!(
+        "  coldest winter                   {:>8.0} °C·d\n",
+        s.max_freezing_index_c_days
+    );
+    t
 }
