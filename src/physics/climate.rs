@@ -439,7 +439,7 @@ impl Gumbel {
             .sum::<f64>()
             / n as f64;
         let l2 = 2.0 * b1 - b0;
-        if !(l2 > 0.0) {
+        if l2.is_nan() || l2 <= 0.0 {
             return None;
         }
         let beta_l = l2 / std::f64::consts::LN_2;
