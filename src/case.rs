@@ -177,10 +177,19 @@ pub struct RawStratum {
 #[serde(deny_unknown_fields)]
 #[allow(missing_docs)]
 pub struct RawClimate {
-    pub mean_c: S<f64>,
-    pub amplitude_k: S<f64>,
-    pub coldest_day: S<f64>,
+    pub mean_c: Option<S<f64>>,
+    pub amplitude_k: Option<S<f64>>,
+    pub coldest_day: Option<S<f64>>,
+    pub series: Option<S<String>>,
+    pub design_from_series: Option<S<String>>,
+    pub return_period_years: Option<S<f64>>,
+    pub fit: Option<S<String>>,
+    pub max_gap_days: Option<S<i64>>,
     pub surface_resistance_m2k_per_w: Option<S<f64>>,
+    pub n_factor_freezing: Option<S<f64>>,
+    pub n_factor_thawing: Option<S<f64>>,
+    pub snow_depth_m: Option<S<Vec<f64>>>,
+    pub snow_conductivity_w_per_mk: Option<S<f64>>,
 }
 
 #[derive(Debug, Deserialize, Default)]
@@ -358,9 +367,47 @@ pub struct Stratum {
     pub material: Material,
 }
 
-/// Sinusoidal outdoor climate θ(t) = mean − amplitude · cos(2π (t − coldest_day)/365).
+/// Where the outdoor temperature comes from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ClimateSource {
+    /// The sinusoid of [`Climate`] (given, or a design year built from a series).
+    Sinusoid,
+    /// A measured series of daily means, run through in full after spin-up on its first season.
+    Series(crate::physics::climate::DailySeries),
+}
+
+/// A design year built from a measured series: the sinusoid with the series' mean whose freezing
+/// index is the design freezing index.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct DesignYear {
+    /// The series file.
+    pub series: String,
+    /// Return period, years.
+    pub return_period_years: f64,
+    /// Design air freezing index, °C·d.
+    pub design_freezing_index_c_days: f64,
+    /// Gumbel fit method.
+    pub fit_method: crate::physics::climate::FitMethod,
+}
+
+/// Outdoor climate: θ(t) = mean − amplitude · cos(2π (t − coldest_day)/365) for a design year,
+/// or a measured series; n-factors turn air into ground-surface temperature
+/// (θ_s = n_f θ below 0 °C, n_t θ above), and a monthly snow cover adds a resistance
+/// depth/k_snow on the ground surface.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Climate {
+    /// Source of the outdoor temperature.
+    pub source: ClimateSource,
+    /// Design-year provenance, when the sinusoid was built from a series.
+    pub design: Option<DesignYear>,
+    /// n-factor for freezing (surface / air freezing index). Default 1.
+    pub n_freezing: f64,
+    /// n-factor for thawing. Default 1.
+    pub n_thawing: f64,
+    /// Snow depth per calendar month, m. Default none.
+    pub snow_depth_m: [f64; 12],
+    /// Snow conductivity, W/(m·K). Default 0.2 (settled snow, common practice).
+    pub snow_k: f64,
     /// Annual mean air temperature, °C.
     pub mean_c: f64,
     /// Amplitude, K.
@@ -372,6 +419,20 @@ pub struct Climate {
 }
 
 impl Climate {
+    /// Ground-surface temperature for air temperature `t` (°C), by the n-factors.
+    pub fn surface(&self, t: f64) -> f64 {
+        if t < 0.0 {
+            self.n_freezing * t
+        } else {
+            self.n_thawing * t
+        }
+    }
+
+    /// Snow resistance on the ground in month `m` (0–11), m²·K/W.
+    pub fn snow_r(&self, m: usize) -> f64 {
+        self.snow_depth_m[m] / self.snow_k
+    }
+
     /// Mean air temperature over calendar time [d0, d1] (days since 1 January 00:00), °C.
     pub fn mean_over(&self, d0: f64, d1: f64) -> f64 {
         let w = 2.0 * std::f64::consts::PI / 365.0;
@@ -639,6 +700,14 @@ fn table_at(src: &str, offset: usize) -> String {
         .unwrap_or_default()
 }
 
+/// The directory that relative paths in a case file are resolved against.
+fn case_dir(file: &str) -> std::path::PathBuf {
+    std::path::Path::new(file)
+        .parent()
+        .map(|p| p.to_path_buf())
+        .unwrap_or_default()
+}
+
 /// Read, parse and validate a case file.
 pub fn load_case(path: &std::path::Path) -> Result<Case> {
     let src = std::fs::read_to_string(path).map_err(|e| Error::Io {
@@ -842,13 +911,185 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
 
     // Climate.
     let cl = &raw.climate;
+    let base = case_dir(c.file);
+    let gap = match &cl.max_gap_days {
+        None => 3,
+        Some(v) if (0..=30).contains(v.get_ref()) => *v.get_ref() as usize,
+        Some(v) => {
+            return Err(c.err(
+                v.span(),
+                "climate.max_gap_days",
+                format!("{} is out of range; allowed: 0 to 30 days", v.get_ref()),
+            ))
+        }
+    };
+    let read = |v: &S<String>, key: &str| -> Result<crate::physics::climate::DailySeries> {
+        let p = base.join(v.get_ref());
+        let opts = crate::physics::climate::ReadOptions {
+            max_gap_days: gap,
+            ..Default::default()
+        };
+        crate::physics::climate::read_series(&p, &opts).map_err(|e| match e {
+            Error::Io { source, .. } => c.err(
+                v.span(),
+                key,
+                format!("cannot read {}: {source}", p.display()),
+            ),
+            other => other,
+        })
+    };
+    let sinus_given = cl.mean_c.is_some() || cl.amplitude_k.is_some() || cl.coldest_day.is_some();
+    let kinds = usize::from(sinus_given)
+        + usize::from(cl.series.is_some())
+        + usize::from(cl.design_from_series.is_some());
+    if kinds != 1 {
+        return Err(c.err_file(
+            "climate",
+            "give exactly one of: mean_c + amplitude_k + coldest_day (a sinusoid), series = \"file.csv\" (a measured series), or design_from_series = \"file.csv\" (a design year)",
+        ));
+    }
+    let (mean_c, mut amplitude_k, coldest_day);
+    let (mut source, mut design) = (ClimateSource::Sinusoid, None);
+    if sinus_given {
+        let need = |v: &Option<S<f64>>, k: &str| {
+            v.clone().ok_or_else(|| {
+                c.err_file(
+                    &format!("climate.{k}"),
+                    "missing; a sinusoid needs mean_c, amplitude_k and coldest_day",
+                )
+            })
+        };
+        let (m, a, d) = (
+            need(&cl.mean_c, "mean_c")?,
+            need(&cl.amplitude_k, "amplitude_k")?,
+            need(&cl.coldest_day, "coldest_day")?,
+        );
+        mean_c = c.range_incl(&m, "climate.mean_c", 0.1, 30.0, "°C").map_err(|_| {
+            c.err(m.span(), "climate.mean_c", format!(
+                "{} °C is out of range; allowed: 0.1 to 30 °C (the model assumes ground that thaws every year: no permafrost)", m.get_ref()))
+        })?;
+        amplitude_k = c.range_incl(&a, "climate.amplitude_k", 0.0, 30.0, "K")?;
+        coldest_day = c.range_incl(&d, "climate.coldest_day", 1.0, 365.0, "day of year")?;
+    } else {
+        let (v, key) = cl
+            .series
+            .as_ref()
+            .map(|v| (v, "climate.series"))
+            .or(cl
+                .design_from_series
+                .as_ref()
+                .map(|v| (v, "climate.design_from_series")))
+            .expect("one source");
+        let series = read(v, key)?;
+        let (m, a, d) = crate::physics::climate::annual_sinusoid(&series);
+        if m <= 0.0 {
+            return Err(c.err(
+                v.span(),
+                key,
+                format!("the series' mean is {m:.2} °C; allowed: above 0 °C (no permafrost)"),
+            ));
+        }
+        mean_c = m;
+        amplitude_k = a;
+        coldest_day = d.clamp(1.0, 365.0);
+        if cl.series.is_some() {
+            source = ClimateSource::Series(series);
+        } else {
+            let t = cl.return_period_years.as_ref().map_or(Ok(100.0), |v| {
+                c.range(v, "climate.return_period_years", 1.0, 10_000.0, "years")
+            })?;
+            let method = match cl.fit.as_ref().map(|f| f.get_ref().as_str()) {
+                None | Some("lmoments") => crate::physics::climate::FitMethod::LMoments,
+                Some("mle") => crate::physics::climate::FitMethod::MaximumLikelihood,
+                Some(other) => {
+                    let f = cl.fit.as_ref().expect("given");
+                    return Err(c.err(
+                        f.span(),
+                        "climate.fit",
+                        format!("\"{other}\" is not a fit method; allowed: lmoments, mle"),
+                    ));
+                }
+            };
+            let s = crate::physics::climate::summarize(&series, t, method)?;
+            amplitude_k = crate::physics::climate::amplitude_for_freezing_index(
+                m,
+                s.design_freezing_index_c_days,
+            );
+            if amplitude_k > 40.0 {
+                return Err(c.err(v.span(), key, format!("the design year needs an amplitude of {amplitude_k:.1} K; allowed: at most 40 K")));
+            }
+            design = Some(DesignYear {
+                series: v.get_ref().clone(),
+                return_period_years: t,
+                design_freezing_index_c_days: s.design_freezing_index_c_days,
+                fit_method: method,
+            });
+        }
+    }
+    for (v, k) in [(&cl.return_period_years, "return_period_years")] {
+        if let (Some(v), None) = (v, &cl.design_from_series) {
+            return Err(c.err(
+                v.span(),
+                &format!("climate.{k}"),
+                "only used with design_from_series",
+            ));
+        }
+    }
+    let snow_depth_m = match &cl.snow_depth_m {
+        None => [0.0; 12],
+        Some(v) => {
+            let d = v.get_ref();
+            if d.len() != 12 || d.iter().any(|x| !(0.0..=3.0).contains(x)) {
+                return Err(c.err(
+                    v.span(),
+                    "climate.snow_depth_m",
+                    "allowed: 12 monthly snow depths (January first), each 0 to 3 m",
+                ));
+            }
+            let mut a = [0.0; 12];
+            a.copy_from_slice(d);
+            a
+        }
+    };
     let climate = Climate {
-        mean_c: c.range_incl(&cl.mean_c, "climate.mean_c", 0.1, 30.0, "°C")
-            .map_err(|_| c.err(cl.mean_c.span(), "climate.mean_c", format!(
-                "{} °C is out of range; allowed: 0.1 to 30 °C (the model assumes ground that thaws every year: no permafrost)", cl.mean_c.get_ref())))?,
-        amplitude_k: c.range_incl(&cl.amplitude_k, "climate.amplitude_k", 0.0, 30.0, "K")?,
-        coldest_day: c.range_incl(&cl.coldest_day, "climate.coldest_day", 1.0, 365.0, "day of year")?,
-        r_se: c.opt(&cl.surface_resistance_m2k_per_w, "climate.surface_resistance_m2k_per_w", 0.0, 5.0, "m²·K/W", 0.04)?,
+        mean_c,
+        amplitude_k,
+        coldest_day,
+        source,
+        design,
+        r_se: c.opt(
+            &cl.surface_resistance_m2k_per_w,
+            "climate.surface_resistance_m2k_per_w",
+            0.0,
+            5.0,
+            "m²·K/W",
+            0.04,
+        )?,
+        n_freezing: c.opt(
+            &cl.n_factor_freezing,
+            "climate.n_factor_freezing",
+            0.1,
+            1.5,
+            "",
+            1.0,
+        )?,
+        n_thawing: c.opt(
+            &cl.n_factor_thawing,
+            "climate.n_factor_thawing",
+            0.1,
+            2.5,
+            "",
+            1.0,
+        )?,
+        snow_depth_m,
+        snow_k: c.opt(
+            &cl.snow_conductivity_w_per_mk,
+            "climate.snow_conductivity_w_per_mk",
+            0.02,
+            1.0,
+            "W/(m·K)",
+            0.2,
+        )?,
     };
 
     // Simulation.

@@ -1,9 +1,9 @@
 //! A whole run of the foundation model: steady initialisation at the annual means, spin-up over
 //! repeated design years until the year is periodic, and the records of the reported (final) year.
 use crate::analysis::{frost_depth_column, point_temperature};
-use crate::case::{Case, InsulationKind};
+use crate::case::{Case, ClimateSource, InsulationKind};
 use crate::error::Result;
-use crate::geometry::{Section, DEEP, INDOOR, OUTDOOR};
+use crate::geometry::{Section, INDOOR, OUTDOOR};
 use crate::mesh::Mesh;
 use crate::methods;
 use crate::solver::{Network, Solver, SolverParams, SolverStats};
@@ -111,7 +111,8 @@ pub struct CrossCheck {
     pub iso13370_lambda_w_per_mk: f64,
     /// Annual mean heat loss by ISO 13370 steady U, W.
     pub iso13370_mean_heat_loss_w: f64,
-    /// Air freezing index of the design sinusoid, °C·d.
+    /// Surface freezing index used (n-factor × air index of the design sinusoid, or of the
+    /// coldest winter of a series), °C·d.
     pub freezing_index_c_days: f64,
     /// Freezing season length, d.
     pub freezing_season_days: f64,
@@ -149,8 +150,14 @@ pub struct RunResult {
     pub days: Vec<Day>,
     /// Probe temperatures per day of the reported year (probe-major), °C.
     pub probes: Vec<Vec<f64>>,
-    /// Every simulated year, spin-up first.
+    /// Every simulated year, spin-up first (for a series: then every season).
     pub years: Vec<Year>,
+    /// Index into `years` of the reported year (the last spin-up year, or the worst season).
+    pub reported: usize,
+    /// Years of spin-up before the reported year (for a series: before the first season).
+    pub spin_up_years: usize,
+    /// Per-winter results of a measured series (empty for a design year).
+    pub winters: Vec<WinterResult>,
     /// Whether the spin-up criterion was met.
     pub spin_up_converged: bool,
     /// Field on the day of maximum frost depth under the footing; if there is none, on the day of
@@ -171,11 +178,11 @@ pub struct RunResult {
 impl RunResult {
     /// The reported year.
     pub fn final_year(&self) -> &Year {
-        self.years.last().expect("at least one year")
+        &self.years[self.reported]
     }
     /// Spin-up years before the reported one.
     pub fn spin_up_years(&self) -> usize {
-        self.years.len() - 1
+        self.spin_up_years
     }
 }
 
@@ -367,109 +374,143 @@ pub fn cross_check(case: &Case) -> CrossCheck {
     }
 }
 
-/// Run `case`: steady state, spin-up, reported year.
-pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult> {
-    let start = std::time::Instant::now();
-    let section = Section::from_case(case)?;
-    let mesh = section.mesh(case);
-    let mut net = Network::new(&mesh);
-    assign_groups(&mut net, &mesh);
-    let net = net;
-    let mut solver = Solver::new(&net, SolverParams::default())?;
-    let perimeter = case.building.exposed_perimeter_m;
-    let n_zones = net.n_zones;
-    let zone_temps = |indoor: f64, outdoor: f64| -> Vec<f64> {
+/// One day of forcing.
+#[derive(Debug, Clone, Copy)]
+struct DayIn {
+    /// Calendar time of the day's start, days since 1 January of a 365-day year (sinusoid).
+    cal: f64,
+    /// Day of year for records.
+    doy: usize,
+    /// Month 0–11.
+    month: usize,
+    /// Measured daily mean air temperature, if the climate is a series.
+    measured_c: Option<f64>,
+}
+
+/// The records of one simulated period (a year or a season).
+struct Period {
+    days: Vec<Day>,
+    probes: Vec<Vec<f64>>,
+    fields: Vec<Vec<f32>>,
+    field: Field,
+    year: Year,
+}
+
+/// The state and fixed data of a run.
+struct Driver<'a> {
+    case: &'a Case,
+    mesh: &'a Mesh,
+    net: &'a Network,
+    solver: Solver<'a>,
+    h: Vec<f64>,
+    t: Vec<f64>,
+    cols: Vec<usize>,
+    beside: Vec<usize>,
+    open_col: usize,
+    t_line: f64,
+    sim_time: f64,
+    time_steps: usize,
+}
+
+impl Driver<'_> {
+    fn zone_temps(&self, indoor: f64, outdoor: f64) -> Vec<f64> {
         let mut z = vec![indoor, outdoor];
-        if let Some(tb) = case.simulation.bottom_temperature_c {
+        if let Some(tb) = self.case.simulation.bottom_temperature_c {
             z.push(tb);
         }
-        debug_assert_eq!(z.len(), n_zones);
-        let _ = DEEP;
         z
-    };
-    // Steady state at the annual means.
-    let steady = solver.steady(&zone_temps(case.indoor_mean_c(), case.climate.mean_c), None)?;
-    let steady_heat_loss_w = steady.from_zone[INDOOR] * perimeter;
-    let mut h = net.enthalpies(&steady.t);
-    let mut t = steady.t.clone();
+    }
 
-    let cols = footing_columns(&mesh, case);
-    let open_col = mesh.grid.nx() - 1;
-    let t_line = frost_line_c(case);
-    let beside = beside_wall_columns(&mesh, case);
-    let deepest = |cols: &[usize], t: &[f64]| {
-        cols.iter()
-            .filter_map(|&i| frost_depth_column(&mesh, &net, t, i, 0.0, t_line))
-            .fold(0.0, f64::max)
-    };
-    let frost = |t: &[f64]| {
-        let open = frost_depth_column(&mesh, &net, t, open_col, 0.0, t_line).unwrap_or(0.0);
-        (open, deepest(&cols, t), deepest(&beside, t))
-    };
-
-    let dt = case.simulation.dt_s;
-    let steps_per_day = (86400.0 / dt).round() as usize;
-    // Start at the beginning of the day holding the warmest time of the year.
-    let day0 = (case.climate.coldest_day - 0.5 + 182.5)
-        .rem_euclid(365.0)
-        .floor();
-    let max_years = case.simulation.max_spin_up_years + 1;
-    let mut years: Vec<Year> = Vec::new();
-    let mut converged = false;
-    let mut time_steps = 0;
-    let (mut days, mut probes, mut field, mut daily_fields);
-    let mut sim_time = 0.0;
-    loop {
-        let y = years.len();
-        days = Vec::with_capacity(365);
-        daily_fields = Vec::<Vec<f32>>::with_capacity(365);
-        probes = vec![Vec::with_capacity(365); case.probes.len()];
-        field = Field {
-            day_of_year: 0,
-            t: Vec::new(),
+    fn frost(&self) -> (f64, f64, f64) {
+        let deepest = |cols: &[usize]| {
+            cols.iter()
+                .filter_map(|&i| {
+                    frost_depth_column(self.mesh, self.net, &self.t, i, 0.0, self.t_line)
+                })
+                .fold(0.0, f64::max)
         };
-        let (mut best_foot, mut best_open, mut best_open_winter) = (-1.0f64, -1.0f64, -1.0f64);
+        let open = frost_depth_column(
+            self.mesh,
+            self.net,
+            &self.t,
+            self.open_col,
+            0.0,
+            self.t_line,
+        )
+        .unwrap_or(0.0);
+        (open, deepest(&self.cols), deepest(&self.beside))
+    }
+
+    /// Simulate `days`, recording everything.
+    fn period(
+        &mut self,
+        days: &[DayIn],
+        progress: &mut dyn FnMut(Progress),
+        year: usize,
+        max_years: usize,
+    ) -> Result<Period> {
+        let case = self.case;
+        let perimeter = case.building.exposed_perimeter_m;
+        let dt = case.simulation.dt_s;
+        let steps_per_day = (86400.0 / dt).round() as usize;
+        let mut rec = Period {
+            days: Vec::with_capacity(days.len()),
+            probes: vec![Vec::with_capacity(days.len()); case.probes.len()],
+            fields: Vec::with_capacity(days.len()),
+            field: Field {
+                day_of_year: 0,
+                t: Vec::new(),
+            },
+            year: Year {
+                heat_loss_kwh: 0.0,
+                floor_heat_loss_kwh: 0.0,
+                wall_heat_loss_kwh: 0.0,
+                wall_above_ground_heat_loss_kwh: 0.0,
+                max_frost_beside_wall_m: 0.0,
+                max_frost_open_m: 0.0,
+                max_frost_footing_m: 0.0,
+                energy_balance_error: 0.0,
+            },
+        };
+        let (mut best_foot, mut best_open_winter) = (-1.0f64, -1.0f64);
         let mut open_field = Field {
             day_of_year: 0,
             t: Vec::new(),
         };
         let (mut sum_in, mut sum_abs, mut sum_stored) = (0.0, 0.0, 0.0);
-        let mut loss_j = 0.0;
         let mut groups_j = [0.0; 4];
-        let mut best_wall = 0.0f64;
-        for d in 0..365 {
-            let cal = day0 + d as f64;
-            let mut day_in = 0.0;
-            let mut day_groups = [0.0; 4];
-            let mut out_mean = 0.0;
-            let indoor = case.building.indoor_monthly_c[month_of(cal + 0.5)];
+        let mut loss_j = 0.0;
+        for (d, day) in days.iter().enumerate() {
+            let indoor = case.building.indoor_monthly_c[day.month];
+            self.solver
+                .set_extra_horizontal_resistance(OUTDOOR, case.climate.snow_r(day.month));
+            let (mut day_in, mut out_mean) = (0.0, 0.0);
             for s in 0..steps_per_day {
-                let t0 = cal + s as f64 * dt / 86400.0;
-                let t1 = t0 + dt / 86400.0;
-                let outdoor = case.climate.mean_over(t0, t1);
-                out_mean += outdoor / steps_per_day as f64;
-                let e = solver.step(&mut h, &zone_temps(indoor, outdoor), dt, sim_time)?;
-                sim_time += dt;
-                time_steps += 1;
+                let air = match day.measured_c {
+                    Some(v) => v,
+                    None => {
+                        let t0 = day.cal + s as f64 * dt / 86400.0;
+                        case.climate.mean_over(t0, t0 + dt / 86400.0)
+                    }
+                };
+                out_mean += air / steps_per_day as f64;
+                let zt = self.zone_temps(indoor, case.climate.surface(air));
+                let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
+                self.sim_time += dt;
+                self.time_steps += 1;
                 day_in += e.from_zone[INDOOR];
                 for (g, v) in e.by_group.iter().enumerate().take(4) {
-                    day_groups[g] += v;
+                    groups_j[g] += v;
                 }
                 sum_in += e.from_zone.iter().sum::<f64>();
                 sum_abs += e.from_zone.iter().map(|v| v.abs()).sum::<f64>();
                 sum_stored += e.stored;
-                let _ = OUTDOOR;
             }
             loss_j += day_in;
-            for g in 0..4 {
-                groups_j[g] += day_groups[g];
-            }
-            net.temperatures(&h, &mut t);
-            let (fo, ff, fw) = frost(&t);
-            best_wall = best_wall.max(fw);
-            let doy = (cal as usize % 365) + 1;
-            days.push(Day {
-                day_of_year: doy,
+            self.net.temperatures(&self.h, &mut self.t);
+            let (fo, ff, fw) = self.frost();
+            rec.days.push(Day {
+                day_of_year: day.doy,
                 outdoor_c: out_mean,
                 indoor_c: indoor,
                 heat_loss_w: day_in / 86400.0 * perimeter,
@@ -477,29 +518,25 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
                 frost_footing_m: ff,
                 frost_beside_wall_m: fw,
             });
-            daily_fields.push(
-                grid_field(&mesh, &net, &t)
-                    .into_iter()
-                    .map(|v| v as f32)
-                    .collect(),
-            );
-            let zt = zone_temps(indoor, out_mean);
+            let grid = grid_field(self.mesh, self.net, &self.t);
+            let zt = self.zone_temps(indoor, case.climate.surface(out_mean));
             for (k, p) in case.probes.iter().enumerate() {
-                probes[k].push(
-                    point_temperature(&mesh, &net, &t, &zt, p.x_m, p.z_m).unwrap_or(f64::NAN),
+                rec.probes[k].push(
+                    point_temperature(self.mesh, self.net, &self.t, &zt, p.x_m, p.z_m)
+                        .unwrap_or(f64::NAN),
                 );
             }
+            let y = &mut rec.year;
+            y.max_frost_open_m = y.max_frost_open_m.max(fo);
+            y.max_frost_beside_wall_m = y.max_frost_beside_wall_m.max(fw);
             if ff > best_foot {
                 best_foot = ff;
                 if ff > 0.0 {
-                    field = Field {
-                        day_of_year: doy,
-                        t: grid_field(&mesh, &net, &t),
+                    rec.field = Field {
+                        day_of_year: day.doy,
+                        t: grid.clone(),
                     };
                 }
-            }
-            if fo > best_open {
-                best_open = fo;
             }
             // Without frost under the footing, the field shown is that of the deepest open-ground
             // frost while the air is still below freezing (the end of the freezing season), not
@@ -507,72 +544,225 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
             if out_mean < 0.0 && fo > best_open_winter {
                 best_open_winter = fo;
                 open_field = Field {
-                    day_of_year: doy,
-                    t: grid_field(&mesh, &net, &t),
+                    day_of_year: day.doy,
+                    t: grid.clone(),
                 };
             }
+            rec.fields
+                .push(grid.into_iter().map(|v| v as f32).collect());
             progress(Progress {
-                year: y,
+                year,
                 day: d + 1,
                 max_years,
             });
         }
-        if field.t.is_empty() {
-            field = open_field;
+        if rec.field.t.is_empty() {
+            rec.field = open_field;
         }
-        if field.t.is_empty() {
+        if rec.field.t.is_empty() {
             // No frost at all: show the coldest day's field.
-            let k = days
+            let k = rec
+                .days
                 .iter()
                 .enumerate()
                 .min_by(|a, b| a.1.outdoor_c.total_cmp(&b.1.outdoor_c))
                 .map_or(0, |(k, _)| k);
-            field = Field {
-                day_of_year: days[k].day_of_year,
-                t: daily_fields[k].iter().map(|&v| v as f64).collect(),
+            rec.field = Field {
+                day_of_year: rec.days[k].day_of_year,
+                t: rec.fields[k].iter().map(|&v| v as f64).collect(),
             };
         }
-        let year = Year {
-            heat_loss_kwh: loss_j * perimeter / 3.6e6,
-            floor_heat_loss_kwh: groups_j[GROUP_FLOOR] * perimeter / 3.6e6,
-            wall_heat_loss_kwh: groups_j[GROUP_WALL_BELOW] * perimeter / 3.6e6,
-            wall_above_ground_heat_loss_kwh: groups_j[GROUP_WALL_ABOVE] * perimeter / 3.6e6,
-            max_frost_beside_wall_m: best_wall,
-            max_frost_open_m: best_open.max(0.0),
-            max_frost_footing_m: best_foot.max(0.0),
-            energy_balance_error: if sum_abs > 0.0 {
-                (sum_in - sum_stored) / sum_abs
-            } else {
-                0.0
-            },
+        let y = &mut rec.year;
+        y.heat_loss_kwh = loss_j * perimeter / 3.6e6;
+        y.floor_heat_loss_kwh = groups_j[GROUP_FLOOR] * perimeter / 3.6e6;
+        y.wall_heat_loss_kwh = groups_j[GROUP_WALL_BELOW] * perimeter / 3.6e6;
+        y.wall_above_ground_heat_loss_kwh = groups_j[GROUP_WALL_ABOVE] * perimeter / 3.6e6;
+        y.max_frost_footing_m = best_foot.max(0.0);
+        y.energy_balance_error = if sum_abs > 0.0 {
+            (sum_in - sum_stored) / sum_abs
+        } else {
+            0.0
         };
+        Ok(rec)
+    }
+}
+
+/// Results of one winter of a measured series.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct WinterResult {
+    /// The season 1 July – 30 June, named by the year it starts.
+    pub winter: i64,
+    /// Air freezing index of the season, °C·d.
+    pub freezing_index_c_days: f64,
+    /// Deepest frost under the footing, m.
+    pub frost_depth_under_footing_m: f64,
+    /// Deepest frost in open ground, m.
+    pub frost_depth_open_ground_m: f64,
+    /// Deepest frost within 0.5 m of the wall, m.
+    pub frost_depth_beside_wall_m: f64,
+    /// Ground heat loss over the season, kWh.
+    pub heat_loss_kwh: f64,
+    /// Relative energy-balance error of the season.
+    pub energy_balance_error: f64,
+}
+
+/// Run `case`: steady state, spin-up, reported year (for a measured series: every complete
+/// season after spin-up on the first, the worst winter reported).
+pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult> {
+    let start = std::time::Instant::now();
+    let section = Section::from_case(case)?;
+    let mesh = section.mesh(case);
+    let mut net = Network::new(&mesh);
+    assign_groups(&mut net, &mesh);
+    let net = net;
+    let solver = Solver::new(&net, SolverParams::default())?;
+    let mut drv = Driver {
+        case,
+        mesh: &mesh,
+        net: &net,
+        solver,
+        h: Vec::new(),
+        t: Vec::new(),
+        cols: footing_columns(&mesh, case),
+        beside: beside_wall_columns(&mesh, case),
+        open_col: mesh.grid.nx() - 1,
+        t_line: frost_line_c(case),
+        sim_time: 0.0,
+        time_steps: 0,
+    };
+    // Steady state at the annual means.
+    let zt = drv.zone_temps(
+        case.indoor_mean_c(),
+        case.climate.surface(case.climate.mean_c),
+    );
+    let steady = drv.solver.steady(&zt, None)?;
+    let steady_heat_loss_w = steady.from_zone[INDOOR] * case.building.exposed_perimeter_m;
+    drv.h = net.enthalpies(&steady.t);
+    drv.t = steady.t.clone();
+
+    // The days of the spin-up year and of the seasons after it.
+    let (spin_days, seasons): (Vec<DayIn>, Vec<(i64, Vec<DayIn>)>) = match &case.climate.source {
+        ClimateSource::Sinusoid => {
+            // Start at the beginning of the day holding the warmest time of the year.
+            let day0 = (case.climate.coldest_day - 0.5 + 182.5)
+                .rem_euclid(365.0)
+                .floor();
+            let days = (0..365)
+                .map(|d| {
+                    let cal = day0 + d as f64;
+                    DayIn {
+                        cal,
+                        doy: (cal as usize % 365) + 1,
+                        month: month_of(cal + 0.5),
+                        measured_c: None,
+                    }
+                })
+                .collect();
+            (days, Vec::new())
+        }
+        ClimateSource::Series(s) => {
+            use crate::physics::climate::{civil_from_days, day_of_year, days_from_civil};
+            let day = |k: usize| {
+                let dn = s.day(k);
+                let (_, m, _) = civil_from_days(dn);
+                DayIn {
+                    cal: 0.0,
+                    doy: day_of_year(dn) as usize,
+                    month: m as usize - 1,
+                    measured_c: Some(s.values[k]),
+                }
+            };
+            let (y0, _, _) = civil_from_days(s.first_day);
+            let (y1, _, _) = civil_from_days(s.day(s.values.len() - 1));
+            let mut seasons = Vec::new();
+            for y in y0 - 1..=y1 {
+                let a = days_from_civil(y, 7, 1) - s.first_day;
+                let b = days_from_civil(y + 1, 7, 1) - s.first_day;
+                if a >= 0 && b as usize <= s.values.len() {
+                    seasons.push((y, (a as usize..b as usize).map(day).collect::<Vec<_>>()));
+                }
+            }
+            if seasons.is_empty() {
+                return Err(crate::error::Error::Input {
+                    location: crate::error::Location::file_only(&s.source),
+                    key: "climate.series".into(),
+                    message: "no complete season (1 July to 30 June) in the series; allowed: at least one".into(),
+                });
+            }
+            (seasons[0].1.clone(), seasons)
+        }
+    };
+
+    let max_years = case.simulation.max_spin_up_years + 1;
+    let total = max_years + seasons.len();
+    let mut years: Vec<Year> = Vec::new();
+    let mut converged = false;
+    let mut last;
+    loop {
+        let p = drv.period(&spin_days, progress, years.len(), total)?;
         if let Some(prev) = years.last() {
-            let dq = (year.heat_loss_kwh - prev.heat_loss_kwh).abs()
+            let dq = (p.year.heat_loss_kwh - prev.heat_loss_kwh).abs()
                 / prev.heat_loss_kwh.abs().max(1e-9);
-            let df = (year.max_frost_footing_m - prev.max_frost_footing_m)
+            let df = (p.year.max_frost_footing_m - prev.max_frost_footing_m)
                 .abs()
-                .max((year.max_frost_open_m - prev.max_frost_open_m).abs());
+                .max((p.year.max_frost_open_m - prev.max_frost_open_m).abs());
             converged = dq < SPIN_UP_HEAT_TOL && df < SPIN_UP_FROST_TOL_M;
         }
-        years.push(year);
+        years.push(p.year.clone());
+        last = p;
         if converged || years.len() >= max_years {
             break;
         }
     }
+    let mut spin_up_years = years.len() - 1;
+    let mut winters = Vec::new();
+    let mut reported = years.len() - 1;
+    if !seasons.is_empty() {
+        // The spin-up ends with the first season; the series then runs through from its start.
+        spin_up_years = years.len();
+        let mut worst: Option<(f64, f64, Period)> = None;
+        for (y, days) in &seasons {
+            let p = drv.period(days, progress, years.len(), total)?;
+            let fi = crate::physics::climate::max_rise(
+                days.iter().map(|d| -d.measured_c.unwrap_or(0.0)),
+            );
+            winters.push(WinterResult {
+                winter: *y,
+                freezing_index_c_days: fi,
+                frost_depth_under_footing_m: p.year.max_frost_footing_m,
+                frost_depth_open_ground_m: p.year.max_frost_open_m,
+                frost_depth_beside_wall_m: p.year.max_frost_beside_wall_m,
+                heat_loss_kwh: p.year.heat_loss_kwh,
+                energy_balance_error: p.year.energy_balance_error,
+            });
+            years.push(p.year.clone());
+            let key = (p.year.max_frost_footing_m, p.year.max_frost_open_m);
+            if worst.as_ref().is_none_or(|w| key > (w.0, w.1)) {
+                reported = years.len() - 1;
+                worst = Some((key.0, key.1, p));
+            }
+        }
+        last = worst.expect("at least one season").2;
+    }
+    let stats = drv.solver.stats();
+    let time_steps = drv.time_steps;
     Ok(RunResult {
-        days,
-        probes,
+        days: last.days,
+        probes: last.probes,
         years,
+        reported,
+        spin_up_years,
+        winters,
         spin_up_converged: converged,
-        field,
+        field: last.field,
         steady_heat_loss_w,
-        stats: solver.stats(),
+        stats,
         time_steps,
         cross_check: cross_check(case),
         wall_time_s: start.elapsed().as_secs_f64(),
-        mesh,
+        mesh: mesh.clone(),
         section,
-        daily_fields,
+        daily_fields: last.fields,
     })
 }
 

@@ -2,6 +2,7 @@
 //! examples and regression checks.
 mod basement;
 mod cli;
+mod climate;
 mod common;
 mod examples;
 mod iso13370;

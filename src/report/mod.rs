@@ -141,6 +141,39 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
         "years": r.years,
         "cross_check": r.cross_check,
     });
+    if let Some(d) = doc.as_object_mut() {
+        if !r.winters.is_empty() {
+            d.insert("winters".into(), json!(r.winters));
+            d.insert(
+                "reported_winter".into(),
+                json!(r.winters[r.reported - r.spin_up_years].winter),
+            );
+            d.insert(
+                "reported_period".into(),
+                json!("the worst winter of the measured series (deepest frost under the footing, then in open ground)"),
+            );
+        }
+        if let Some(dy) = &case.climate.design {
+            d.insert("design_year".into(), json!(dy));
+        }
+        let kind = match (&case.climate.source, &case.climate.design) {
+            (crate::case::ClimateSource::Series(_), _) => "measured series",
+            (_, Some(_)) => "design year from a series",
+            _ => "sinusoid",
+        };
+        d.insert(
+            "climate".into(),
+            json!({
+                "kind": kind,
+                "mean_c": case.climate.mean_c,
+                "amplitude_k": case.climate.amplitude_k,
+                "coldest_day": case.climate.coldest_day,
+                "n_factor_freezing": case.climate.n_freezing,
+                "n_factor_thawing": case.climate.n_thawing,
+                "snow_depth_m": case.climate.snow_depth_m,
+            }),
+        );
+    }
     if let Some((uf, uw, ue, fw)) = basement_values(case, r) {
         let b = case
             .basement
@@ -292,6 +325,17 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
         &format!("field_{:03}.csv", r.field.day_of_year),
         &field,
     )?);
+
+    if !r.winters.is_empty() {
+        let w = csv_bytes(
+            &format!("{head}\nEvery complete season (1 July - 30 June) of the measured series, named by the year it starts."),
+            &hdr(&["winter", "freezing_index_c_days", "frost_depth_under_footing_m", "frost_depth_open_ground_m", "frost_depth_beside_wall_m", "ground_heat_loss_kwh", "energy_balance_error"]),
+            r.winters.iter().map(|w| {
+                vec![w.winter.to_string(), f(w.freezing_index_c_days, 1), f(w.frost_depth_under_footing_m, 4), f(w.frost_depth_open_ground_m, 4), f(w.frost_depth_beside_wall_m, 4), f(w.heat_loss_kwh, 1), format!("{:.2e}", w.energy_balance_error)]
+            }),
+        )?;
+        files.push(write_atomic(dir, "winters.csv", &w)?);
+    }
 
     // Saved for plotting and `frostline plot DIR`.
     let parts = r

@@ -128,6 +128,7 @@ pub struct Solver<'a> {
     r: Vec<f64>,
     h_old: Vec<f64>,
     k_valid: bool,
+    extra_r: Vec<f64>,
     /// Enthalpy change of the last accepted step and its length (predictor).
     dh_prev: Vec<f64>,
     dt_prev: f64,
@@ -155,12 +156,28 @@ impl<'a> Solver<'a> {
             r: vec![0.0; net.n],
             h_old: vec![0.0; net.n],
             k_valid: false,
+            extra_r: vec![0.0; net.bfaces.len()],
             dh_prev: vec![0.0; net.n],
             dt_prev: 0.0,
             stats: SolverStats::default(),
             net,
             params,
         })
+    }
+
+    /// Add resistance `r` (m²·K/W) to every horizontal boundary face of `zone` (for example a
+    /// snow cover on the ground); takes effect from the next step.
+    pub fn set_extra_horizontal_resistance(&mut self, zone: usize, r: f64) {
+        use network::Side;
+        for (b, bf) in self.net.bfaces.iter().enumerate() {
+            if bf.zone == zone
+                && matches!(bf.side, Side::Top | Side::Bottom)
+                && self.extra_r[b] != r
+            {
+                self.extra_r[b] = r;
+                self.k_valid = false;
+            }
+        }
     }
 
     /// Work counters so far.
@@ -187,6 +204,11 @@ impl<'a> Solver<'a> {
         if changed {
             self.net.face_conductances(&self.k, &mut self.gf);
             self.net.boundary_conductances(&self.k, &mut self.gb);
+            for (b, bf) in self.net.bfaces.iter().enumerate() {
+                if self.extra_r[b] > 0.0 {
+                    self.gb[b] = bf.area / (bf.d / self.k[bf.p] + bf.r + self.extra_r[b]);
+                }
+            }
             self.k_valid = true;
         }
     }
