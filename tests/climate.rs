@@ -400,3 +400,21 @@ fn colder_return_period_never_shallower() {
         last = (fi, depth);
     }
 }
+
+/// Surface conditions: a freezing n-factor of 0.5 halves the surface freezing index used by the
+/// closed-form cross-checks (n = surface/air index, its definition) and makes the frost shallower;
+/// a winter snow cover (an added surface resistance) does too. Both only reduce frost (common
+/// practice: snow and low n-factors insulate).
+#[test]
+fn n_factor_and_snow_reduce_frost() {
+    let dir = scratch("surface");
+    let base = "mean_c = 3.0\namplitude_k = 14.0\ncoldest_day = 20";
+    let bare = run_case(&dir, "bare", base);
+    let half = run_case(&dir, "nf", &format!("{base}\nn_factor_freezing = 0.5"));
+    let snow = run_case(&dir, "snow", &format!("{base}\nsnow_depth_m = [0.3, 0.35, 0.3, 0.1, 0, 0, 0, 0, 0, 0, 0.05, 0.2]\nsnow_conductivity_w_per_mk = 0.2"));
+    let fi = |s: &serde_json::Value| s["cross_check"]["freezing_index_c_days"].as_f64().unwrap();
+    let depth = |s: &serde_json::Value| s["frost_depth_open_ground_m"].as_f64().unwrap();
+    assert!((fi(&half) / fi(&bare) - 0.5).abs() < 1e-9);
+    assert!(depth(&half) < 0.85 * depth(&bare), "n 0.5: {} vs {}", depth(&half), depth(&bare));
+    assert!(depth(&snow) < 0.9 * depth(&bare), "snow: {} vs {}", depth(&snow), depth(&bare));
+}

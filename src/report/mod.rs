@@ -446,7 +446,7 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
         h.date_of_max_frost_depth
     );
     s += &format!(
-        "    design air freezing index      °C·d  {:>10.0}\n",
+        "    surface freezing index (n × air) °C·d  {:>10.0}\n",
         c.freezing_index_c_days
     );
     if let (Some((uf, uw, ue, fw)), Some(bc)) = (basement_values(case, r), c.basement.as_ref()) {
