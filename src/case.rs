@@ -158,6 +158,8 @@ pub struct RawFill {
 #[allow(missing_docs)]
 pub struct RawStratum {
     pub library: Option<S<String>>,
+    pub soil_file: Option<S<String>>,
+    pub method: Option<S<String>>,
     pub name: Option<String>,
     pub bottom_depth_m: Option<S<f64>>,
     pub dry_density_kg_per_m3: Option<S<f64>>,
@@ -1478,8 +1480,8 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
 
 fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
     let r = st.get_ref();
-    let lib = match &r.library {
-        Some(n) => Some(bundled_soil(n.get_ref()).ok_or_else(|| {
+    let lib = match (&r.library, &r.soil_file) {
+        (Some(n), None) => Some(bundled_soil(n.get_ref()).ok_or_else(|| {
             let names: Vec<&str> = SOILS.iter().map(|(n, _)| *n).collect();
             c.err(
                 n.span(),
@@ -1491,7 +1493,39 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
                 ),
             )
         })?),
-        None => None,
+        (None, Some(p)) => {
+            let path = case_dir(c.file).join(p.get_ref());
+            let src = std::fs::read_to_string(&path).map_err(|e| {
+                c.err(
+                    p.span(),
+                    &format!("{key}.soil_file"),
+                    format!("cannot read {}: {e}", path.display()),
+                )
+            })?;
+            Some(crate::physics::library::parse_soil_file(
+                &path.display().to_string(),
+                &src,
+            )?)
+        }
+        (Some(n), Some(_)) => {
+            return Err(c.err(
+                n.span(),
+                &format!("{key}.library"),
+                "give library or soil_file, not both",
+            ))
+        }
+        (None, None) => None,
+    };
+    let method = match r.method.as_ref().map(|m| (m, m.get_ref().as_str())) {
+        None | Some((_, "johansen")) => crate::physics::library::KMethod::Johansen,
+        Some((_, "kersten")) => crate::physics::library::KMethod::Kersten,
+        Some((m, other)) => {
+            return Err(c.err(
+                m.span(),
+                &format!("{key}.method"),
+                format!("\"{other}\" is not a conductivity method; allowed: johansen, kersten"),
+            ))
+        }
     };
     let f = |v: &Option<S<f64>>, name: &str, lo: f64, hi: f64, unit: &str| -> Result<Option<f64>> {
         v.as_ref()
@@ -1537,18 +1571,50 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
         }),
         _ => None,
     };
-    let (ku0, kf0, cu0, cf0, l0) = match &index {
-        Some(ix) => {
-            let (ku, kf) = ix.johansen();
-            let (cu, cf) = ix.heat_capacities();
-            (
-                Some(ku),
-                Some(kf),
-                Some(cu),
-                Some(cf),
-                Some(ix.latent_heat()),
-            )
+    let derived = match (&index, &lib) {
+        (Some(ix), lib) => {
+            // A library soil keeps its explicit properties unless its index properties were changed.
+            let changed = rd.is_some() || w.is_some() || q.is_some() || r.texture.is_some();
+            let file = match lib {
+                Some(l) if !changed => l.clone(),
+                Some(l) => crate::physics::library::SoilFile {
+                    dry_density_kg_per_m3: ix.dry_density,
+                    water_content: ix.water_content,
+                    quartz_fraction: ix.quartz,
+                    texture: ix.texture,
+                    k_unfrozen_w_per_mk: None,
+                    k_frozen_w_per_mk: None,
+                    c_unfrozen_j_per_m3k: None,
+                    c_frozen_j_per_m3k: None,
+                    latent_heat_j_per_m3: None,
+                    ..l.clone()
+                },
+                None => crate::physics::library::SoilFile {
+                    name: String::new(),
+                    description: String::new(),
+                    source: String::new(),
+                    dry_density_kg_per_m3: ix.dry_density,
+                    water_content: ix.water_content,
+                    quartz_fraction: ix.quartz,
+                    texture: ix.texture,
+                    frost_susceptibility: String::new(),
+                    k_unfrozen_w_per_mk: None,
+                    k_frozen_w_per_mk: None,
+                    c_unfrozen_j_per_m3k: None,
+                    c_frozen_j_per_m3k: None,
+                    latent_heat_j_per_m3: None,
+                },
+            };
+            Some(crate::physics::library::soil_properties(&file, method).ok_or_else(|| {
+                c.err(st.span(), &format!("{key}.method"), format!(
+                    "Kersten's fits hold for water contents of at least 7 % (fine) or 1 % (coarse); this soil has {:.1} %; allowed: method = \"johansen\", or explicit conductivities",
+                    100.0 * ix.water_content))
+            })?)
         }
+        (None, _) => None,
+    };
+    let (ku0, kf0, cu0, cf0, l0) = match derived {
+        Some((a, b, cc, d, e)) => (Some(a), Some(b), Some(cc), Some(d), Some(e)),
         None => (None, None, None, None, None),
     };
     let missing = |name: &str| {

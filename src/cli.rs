@@ -42,6 +42,11 @@ pub enum Command {
         are filled by linear interpolation."
     )]
     Climate(ClimateArgs),
+    /// Thermal properties of a library soil (or list the library).
+    #[command(
+        after_help = "Examples:\n  frostline soil --list\n  frostline soil silty-sand\n  frostline soil silt --water-content 0.28 --method kersten"
+    )]
+    Soil(SoilArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
     Check {
@@ -114,6 +119,37 @@ pub struct ClimateArgs {
     pub out: Option<PathBuf>,
 }
 
+/// Arguments of `soil`.
+#[derive(Args, Debug)]
+pub struct SoilArgs {
+    /// Library name (see --list).
+    pub name: Option<String>,
+    /// List the library.
+    #[arg(long)]
+    pub list: bool,
+    /// Override the dry density, kg/m³.
+    #[arg(long)]
+    pub dry_density: Option<f64>,
+    /// Override the water content, fraction of dry mass.
+    #[arg(long)]
+    pub water_content: Option<f64>,
+    /// Override the quartz fraction of the solids.
+    #[arg(long)]
+    pub quartz: Option<f64>,
+    /// Conductivity method.
+    #[arg(long, value_enum, default_value_t = MethodArg::Johansen)]
+    pub method: MethodArg,
+}
+
+/// Soil conductivity method on the command line.
+#[derive(ValueEnum, Clone, Copy, Debug)]
+pub enum MethodArg {
+    /// Johansen (1975).
+    Johansen,
+    /// Kersten (1949).
+    Kersten,
+}
+
 /// Arguments of `plot`.
 #[derive(Args, Debug)]
 pub struct PlotArgs {
@@ -157,6 +193,10 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Check { case } => {
             let case = load_case(&case)?;
             print!("{}", check_text(&case)?);
+            Ok(())
+        }
+        Command::Soil(a) => {
+            print!("{}", soil_text(&a)?);
             Ok(())
         }
         Command::Climate(a) => {
@@ -367,4 +407,108 @@ pub fn climate_text(s: &crate::physics::climate::ClimateSummary) -> String {
         s.max_freezing_index_c_days
     );
     t
+}
+
+/// The text `soil` prints.
+pub fn soil_text(a: &SoilArgs) -> Result<String, Error> {
+    use crate::physics::library::{bundled_soil, soil_properties, KMethod, SOILS};
+    let bad = |key: &str, message: String| Error::Input {
+        location: crate::error::Location::file_only("command line"),
+        key: key.into(),
+        message,
+    };
+    if a.list || a.name.is_none() {
+        let mut t =
+            String::from("Soil library (typical values per class; replace with site data):\n");
+        for (n, _) in SOILS {
+            if let Some(s) = bundled_soil(n) {
+                t += &format!(
+                    "  {n:<16} {:<58} frost: {}\n",
+                    s.description, s.frost_susceptibility
+                );
+            }
+        }
+        return Ok(t);
+    }
+    let name = a.name.as_deref().unwrap_or("");
+    let mut s = bundled_soil(name).ok_or_else(|| {
+        let names: Vec<&str> = SOILS.iter().map(|(n, _)| *n).collect();
+        bad(
+            "NAME",
+            format!(
+                "no soil \"{name}\" in the library; known: {}",
+                names.join(", ")
+            ),
+        )
+    })?;
+    let changed = a.dry_density.is_some() || a.water_content.is_some() || a.quartz.is_some();
+    if let Some(v) = a.dry_density {
+        if !(100.0..=2700.0).contains(&v) {
+            return Err(bad(
+                "--dry-density",
+                format!("{v} kg/m³ is out of range; allowed: 100 to 2700"),
+            ));
+        }
+        s.dry_density_kg_per_m3 = v;
+    }
+    if let Some(v) = a.water_content {
+        if !(0.0..=5.0).contains(&v) {
+            return Err(bad(
+                "--water-content",
+                format!("{v} is out of range; allowed: 0 to 5 (fraction of dry mass)"),
+            ));
+        }
+        s.water_content = v;
+    }
+    if let Some(v) = a.quartz {
+        if !(0.0..=1.0).contains(&v) {
+            return Err(bad(
+                "--quartz",
+                format!("{v} is out of range; allowed: 0 to 1"),
+            ));
+        }
+        s.quartz_fraction = v;
+    }
+    if changed {
+        s.k_unfrozen_w_per_mk = None;
+        s.k_frozen_w_per_mk = None;
+        s.c_unfrozen_j_per_m3k = None;
+        s.c_frozen_j_per_m3k = None;
+        s.latent_heat_j_per_m3 = None;
+    }
+    let method = match a.method {
+        MethodArg::Johansen => KMethod::Johansen,
+        MethodArg::Kersten => KMethod::Kersten,
+    };
+    let (ku, kf, cu, cf, l) = soil_properties(&s, method)
+        .ok_or_else(|| bad("--method", "Kersten's fits need at least 7 % water (fine soils) or 1 % (coarse); allowed: --method johansen".into()))?;
+    let explicit = s.k_unfrozen_w_per_mk.is_some();
+    let mut t = format!(
+        "{} ({name}): {}\n  source: {}\n",
+        s.name, s.description, s.source
+    );
+    t += &format!("  dry density {:.0} kg/m³, water content {:.1} % of dry mass, quartz {:.0} %, texture {:?}, saturation {:.0} %\n",
+        s.dry_density_kg_per_m3, 100.0 * s.water_content, 100.0 * s.quartz_fraction, s.texture, 100.0 * s.index().saturation());
+    t += &format!("  frost susceptibility: {}\n", s.frost_susceptibility);
+    t += &format!(
+        "  conductivity ({}):  unfrozen {ku:.3} W/(m·K), frozen {kf:.3} W/(m·K)\n",
+        if explicit {
+            "explicit in the soil file"
+        } else if matches!(method, KMethod::Kersten) {
+            "Kersten 1949"
+        } else {
+            "Johansen 1975"
+        }
+    );
+    t += &format!(
+        "  volumetric heat capacity: unfrozen {:.3} MJ/(m³·K), frozen {:.3} MJ/(m³·K)\n",
+        cu / 1e6,
+        cf / 1e6
+    );
+    t += &format!(
+        "  volumetric latent heat: {:.1} MJ/m³ (ρd · w · 333.7 kJ/kg)\n",
+        l / 1e6
+    );
+    t += &format!("  diffusivity (unfrozen): {:.3e} m²/s\n", ku / cu);
+    Ok(t)
 }

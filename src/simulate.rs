@@ -270,11 +270,13 @@ pub fn cross_check(case: &Case) -> CrossCheck {
     let u = u0 + 2.0 * psi / b.b_prime_m;
     // Surface freezing index: the n-factor times the air index of the design sinusoid, or of the
     // coldest winter of a measured series.
-    let (fi_air, season) = methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
+    let (fi_air, season) =
+        methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
     let fi_air = match &case.climate.source {
-        ClimateSource::Series(s) => {
-            crate::physics::climate::freezing_indices(s).iter().map(|w| w.value).fold(0.0, f64::max)
-        }
+        ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s)
+            .iter()
+            .map(|w| w.value)
+            .fold(0.0, f64::max),
         ClimateSource::Sinusoid => fi_air,
     };
     let fi = case.climate.n_freezing * fi_air;

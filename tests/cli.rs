@@ -207,7 +207,7 @@ fn missing_soil_name() {
         &src,
         23,
         "soil[0].library",
-        &["moon-dust", "known: sand"],
+        &["moon-dust", "known: gravel, sand"],
     );
 }
 
@@ -250,4 +250,75 @@ fn help_has_examples_and_usage_errors_exit_2() {
     assert_eq!(out.status.code(), Some(2));
     let out = bin().args(["frobnicate"]).output().unwrap();
     assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn soil_command_lists_and_derives() {
+    let out = bin().args(["soil", "--list"]).output().unwrap();
+    let s = String::from_utf8_lossy(&out.stdout);
+    for n in [
+        "gravel",
+        "sand",
+        "silty-sand",
+        "silt",
+        "lean-clay",
+        "fat-clay",
+        "glacial-till",
+        "peat",
+    ] {
+        assert!(s.contains(n), "{n} in the list");
+    }
+    let out = bin()
+        .args(["soil", "lean-clay", "--method", "kersten"])
+        .output()
+        .unwrap();
+    let s = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        s.contains("Kersten 1949") && s.contains("W/(m·K)") && s.contains("MJ/m³"),
+        "{s}"
+    );
+    // lean clay 1500 kg/m³, w 25 %: Kersten silt-clay unfrozen 0.1442(0.9 log 25 − 0.2)·10^(0.6243·1.5).
+    let k = 0.1442 * (0.9 * 25f64.log10() - 0.2) * 10f64.powf(0.6243 * 1.5);
+    assert!(s.contains(&format!("unfrozen {k:.3} W/(m·K)")), "{s}");
+    let out = bin().args(["soil", "moondust"]).output().unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let out = bin()
+        .args([
+            "soil",
+            "sand",
+            "--water-content",
+            "0.005",
+            "--method",
+            "kersten",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn soil_file_and_method_in_a_case() {
+    let dir = scratch("soilfile");
+    std::fs::write(
+        dir.join("site.toml"),
+        "name = \"site clay\"\ndescription = \"d\"\nsource = \"site report\"\ndry_density_kg_per_m3 = 1480.0\nwater_content = 0.27\nquartz_fraction = 0.25\ntexture = \"fine\"\nfrost_susceptibility = \"F3\"\n",
+    )
+    .unwrap();
+    let src = VALID.replace(
+        "library = \"sand\"",
+        "soil_file = \"site.toml\"\nmethod = \"kersten\"",
+    );
+    let path = dir.join("case.toml");
+    std::fs::write(&path, &src).unwrap();
+    let out = bin().arg("check").arg(&path).output().unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    std::fs::write(dir.join("site.toml"), "name = \"x\"\n").unwrap();
+    let out = bin().arg("check").arg(&path).output().unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("site.toml"));
 }

@@ -415,6 +415,16 @@ fn n_factor_and_snow_reduce_frost() {
     let fi = |s: &serde_json::Value| s["cross_check"]["freezing_index_c_days"].as_f64().unwrap();
     let depth = |s: &serde_json::Value| s["frost_depth_open_ground_m"].as_f64().unwrap();
     assert!((fi(&half) / fi(&bare) - 0.5).abs() < 1e-9);
-    assert!(depth(&half) < 0.85 * depth(&bare), "n 0.5: {} vs {}", depth(&half), depth(&bare));
-    assert!(depth(&snow) < 0.9 * depth(&bare), "snow: {} vs {}", depth(&snow), depth(&bare));
+    assert!(
+        depth(&half) < 0.85 * depth(&bare),
+        "n 0.5: {} vs {}",
+        depth(&half),
+        depth(&bare)
+    );
+    assert!(
+        depth(&snow) < 0.9 * depth(&bare),
+        "snow: {} vs {}",
+        depth(&snow),
+        depth(&bare)
+    );
 }

@@ -50,6 +50,28 @@ impl SoilIndex {
     pub fn saturation(&self) -> f64 {
         (self.water_content * self.dry_density / (1000.0 * self.porosity())).min(1.0)
     }
+    /// Kersten (1949) (unfrozen, frozen) conductivities, W/(m·K), in the SI form with ρd in Mg/m³
+    /// and w in % (Farouki 1981): silt-clay ("fine") unfrozen 0.1442(0.9 log w − 0.2)·10^(0.6243 ρd)
+    /// (w ≥ 7 %), frozen 0.001442·10^(1.373 ρd) + 0.01226·10^(0.4994 ρd)·w; sand ("coarse")
+    /// unfrozen 0.1442(0.7 log w + 0.4)·10^(0.6243 ρd) (w ≥ 1 %), frozen
+    /// 0.01096·10^(0.8116 ρd) + 0.004614·10^(0.9115 ρd)·w. `None` outside the water-content range
+    /// of the fits.
+    pub fn kersten(&self) -> Option<(f64, f64)> {
+        let rd = self.dry_density / 1000.0;
+        let w = 100.0 * self.water_content;
+        match self.texture {
+            Texture::Fine if w >= 7.0 => Some((
+                0.1442 * (0.9 * w.log10() - 0.2) * 10f64.powf(0.6243 * rd),
+                0.001442 * 10f64.powf(1.373 * rd) + 0.01226 * 10f64.powf(0.4994 * rd) * w,
+            )),
+            Texture::Coarse if w >= 1.0 => Some((
+                0.1442 * (0.7 * w.log10() + 0.4) * 10f64.powf(0.6243 * rd),
+                0.01096 * 10f64.powf(0.8116 * rd) + 0.004614 * 10f64.powf(0.9115 * rd) * w,
+            )),
+            _ => None,
+        }
+    }
+
     /// Johansen (unfrozen, frozen) conductivities, W/(m·K).
     pub fn johansen(&self) -> (f64, f64) {
         let rd = self.dry_density;
@@ -86,7 +108,7 @@ impl SoilIndex {
     pub fn latent_heat(&self) -> f64 {
         self.dry_density * self.water_content * L_WATER
     }
-    /// A freezing material with these properties.
+    /// A freezing material with these properties (Johansen conductivities).
     pub fn material(&self, name: &str, t_freeze: f64, interval: f64) -> Material {
         let (ku, kf) = self.johansen();
         let (cu, cf) = self.heat_capacities();
@@ -106,6 +128,46 @@ impl SoilIndex {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Kersten check values [DERIVED from the published equations] of the project's methods notes
+    /// (§6.1); tolerance = printed precision.
+    #[test]
+    fn kersten_check_values() {
+        let rows = [
+            (1500.0, 0.20, 1.209, 1.541, 1.633, 2.330),
+            (1600.0, 0.15, 1.235, 1.385, 1.759, 2.207),
+            (1800.0, 0.10, 1.342, 1.398, 2.109, 2.334),
+        ];
+        for (rd, w, fu, ff, su, sf) in rows {
+            let fine = SoilIndex {
+                dry_density: rd,
+                water_content: w,
+                quartz: 0.3,
+                texture: Texture::Fine,
+            };
+            let coarse = SoilIndex {
+                texture: Texture::Coarse,
+                ..fine
+            };
+            let (a, b) = fine.kersten().unwrap();
+            let (c, d) = coarse.kersten().unwrap();
+            assert!(
+                (a - fu).abs() < 1.5e-3 && (b - ff).abs() < 1.5e-3,
+                "fine {rd} {w}: {a} {b}"
+            );
+            assert!(
+                (c - su).abs() < 1.5e-3 && (d - sf).abs() < 1.5e-3,
+                "coarse {rd} {w}: {c} {d}"
+            );
+        }
+        let dry = SoilIndex {
+            dry_density: 1500.0,
+            water_content: 0.05,
+            quartz: 0.3,
+            texture: Texture::Fine,
+        };
+        assert!(dry.kersten().is_none(), "silt-clay fit valid from 7 % only");
+    }
 
     /// Johansen check values [DERIVED from the published equations] of the project's methods notes
     /// (§6.2) and the heat-capacity/latent-heat values of §6.3; tolerance = printed precision.

@@ -188,11 +188,11 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
     );
     row(
         &mut h,
-        "design air freezing index",
+        "surface freezing index (n-factor × air index)",
         "°C·d",
         "–".into(),
         f(num(cc, "freezing_index_c_days"), 0),
-        "sinusoidal design year",
+        "design year, or the coldest winter of a series",
     );
     h.push_str("</table>\n");
     if num(&s, "frost_margin_m") < 0.0 {
