@@ -173,6 +173,16 @@ pub struct RawStratum {
     pub latent_heat_j_per_m3: Option<S<f64>>,
     pub freezing_point_c: Option<S<f64>>,
     pub freezing_interval_k: Option<S<f64>>,
+    pub unfrozen_water: Option<S<RawUnfrozenWater>>,
+}
+
+/// Power-law unfrozen water content w_u = alpha θ^beta (fractions of dry mass).
+#[derive(Debug, Deserialize, Clone)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawUnfrozenWater {
+    pub alpha: f64,
+    pub beta: f64,
 }
 
 #[derive(Debug, Deserialize)]
@@ -1672,7 +1682,7 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
         .clone()
         .or(lib.map(|l| l.name))
         .unwrap_or_else(|| format!("soil {key}"));
-    Ok(Material {
+    let m = Material {
         name,
         k_unfrozen: ku,
         k_frozen: kf,
@@ -1691,5 +1701,37 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
             "K",
         )?
         .unwrap_or(0.5),
-    })
+        curve: None,
+    };
+    match &r.unfrozen_water {
+        None => Ok(m),
+        Some(u) => {
+            let uw = u.get_ref();
+            let w_total = index
+                .map(|ix| ix.water_content)
+                .filter(|w| *w > 0.0)
+                .ok_or_else(|| {
+                    c.err(
+                        u.span(),
+                        &format!("{key}.unfrozen_water"),
+                        "needs the water content: give water_content (or a library soil)",
+                    )
+                })?;
+            if !(uw.alpha > 0.0 && uw.alpha <= 2.0) || !(uw.beta < 0.0 && uw.beta > -5.0) {
+                return Err(c.err(
+                    u.span(),
+                    &format!("{key}.unfrozen_water"),
+                    format!("alpha {} and beta {}; allowed: alpha (fraction of dry mass at 1 K below freezing) in (0, 2], beta in (−5, 0)", uw.alpha, uw.beta),
+                ));
+            }
+            if r.freezing_interval_k.is_some() {
+                return Err(c.err(
+                    u.span(),
+                    &format!("{key}.freezing_interval_k"),
+                    "give freezing_interval_k or unfrozen_water, not both",
+                ));
+            }
+            Ok(m.with_unfrozen_water(w_total, uw.alpha, uw.beta))
+        }
+    }
 }

@@ -55,3 +55,23 @@ fn every_year_conserves_energy() {
         "the check must include freezing"
     );
 }
+
+/// A fine soil with a power-law unfrozen-water curve (Anderson & Tice 1972 form) runs through the
+/// enthalpy-Newton solver with its energy conserved to round-off, and its frost line lies colder
+/// than the freezing point.
+#[test]
+fn unfrozen_water_curve_runs_and_conserves_energy() {
+    let mut case = demo();
+    let m = case.strata[0].material.clone();
+    case.strata[0].material = m.with_unfrozen_water(0.15, 0.06, -0.5);
+    let r = run(&case, &mut |_| {}).unwrap();
+    for y in &r.years {
+        assert!(
+            y.energy_balance_error.abs() < 1e-10,
+            "{}",
+            y.energy_balance_error
+        );
+    }
+    assert!(r.final_year().max_frost_open_m > 0.3);
+    assert_eq!(r.stats.halvings, 0, "Newton converged without step halving");
+}

@@ -373,6 +373,7 @@ fn neumann_run(dz: f64, dt: f64, days: &[f64]) -> Vec<f64> {
         latent: n.latent,
         t_freeze: 0.5 * eps,
         freezing_interval: eps,
+        curve: None,
     };
     let ze = graded_edges(
         &[

@@ -30,6 +30,7 @@ pub fn named_material(name: &str) -> Option<Material> {
             latent: 2000.0 * 0.05 * 333.7e3,
             t_freeze: 0.0,
             freezing_interval: 0.5,
+            curve: None,
         },
         _ => return None,
     };

@@ -121,6 +121,7 @@ impl SoilIndex {
             latent: self.latent_heat(),
             t_freeze,
             freezing_interval: interval,
+            curve: None,
         }
     }
 }
