@@ -1717,7 +1717,8 @@ fn stratum(c: &Ctx, st: &S<RawStratum>, key: &str) -> Result<Material> {
                         "needs the water content: give water_content (or a library soil)",
                     )
                 })?;
-            if !(uw.alpha > 0.0 && uw.alpha <= 2.0) || !(uw.beta < 0.0 && uw.beta > -5.0) {
+            let valid = uw.alpha > 0.0 && uw.alpha <= 2.0 && uw.beta < 0.0 && uw.beta > -5.0;
+            if !valid {
                 return Err(c.err(
                     u.span(),
                     &format!("{key}.unfrozen_water"),
