@@ -258,3 +258,107 @@ pub fn probes(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> 
     render_both!(dir, "probes", SIZE, files, draw_probes(d));
     Ok(())
 }
+
+/// Per-winter results of a measured series, read from `winters.csv`:
+/// (winter, frost under footing m, frost open ground m).
+pub fn read_winters(dir: &Path) -> Option<Vec<(i64, f64, f64)>> {
+    let text = std::fs::read_to_string(dir.join("winters.csv")).ok()?;
+    let rows = text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with("winter"))
+        .filter_map(|l| {
+            let v: Vec<&str> = l.split(',').collect();
+            Some((
+                v.first()?.parse().ok()?,
+                v.get(2)?.parse().ok()?,
+                v.get(3)?.parse().ok()?,
+            ))
+        })
+        .collect::<Vec<_>>();
+    (!rows.is_empty()).then_some(rows)
+}
+
+fn draw_winters<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    d: &PlotData,
+    w: &[(i64, f64, f64)],
+) -> Result<()> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let zmax = w
+        .iter()
+        .map(|x| x.1.max(x.2))
+        .fold(d.footing_base_depth_m, f64::max)
+        * 1.15;
+    let (y0, y1) = (w[0].0 as f64 - 0.5, w[w.len() - 1].0 as f64 + 0.5);
+    let mut chart = ChartBuilder::on(root)
+        .caption(
+            format!(
+                "{} — deepest frost of every winter of the series",
+                d.case_name
+            ),
+            ("sans-serif", 18),
+        )
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(y0..y1, zmax..0.0)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .x_desc("winter (named by the year it starts)")
+        .y_desc("frost depth below ground (m)")
+        .x_label_formatter(&|x: &f64| format!("{:.0}", x))
+        .label_style(("sans-serif", 13))
+        .light_line_style(RGBColor(235, 235, 235))
+        .draw()
+        .map_err(out_err)?;
+    chart
+        .draw_series(
+            w.iter().map(|x| {
+                Rectangle::new([(x.0 as f64 - 0.4, 0.0), (x.0 as f64, x.2)], OPEN.filled())
+            }),
+        )
+        .map_err(out_err)?
+        .label("open ground")
+        .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], OPEN.filled()));
+    chart
+        .draw_series(
+            w.iter().map(|x| {
+                Rectangle::new([(x.0 as f64, 0.0), (x.0 as f64 + 0.4, x.1)], FOOT.filled())
+            }),
+        )
+        .map_err(out_err)?
+        .label("under the footing")
+        .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], FOOT.filled()));
+    let base = d.footing_base_depth_m;
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(y0, base), (y1, base)],
+            8,
+            6,
+            BLACK.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label(format!("footing base ({base:.2} m)"))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 13))
+        .position(SeriesLabelPosition::LowerRight)
+        .draw()
+        .map_err(out_err)?;
+    root.present().map_err(out_err)
+}
+
+/// `winters.png/svg` for a run on a measured series.
+pub fn winters(
+    dir: &Path,
+    d: &PlotData,
+    w: &[(i64, f64, f64)],
+    files: &mut Vec<PathBuf>,
+) -> Result<()> {
+    render_both!(dir, "winters", SIZE, files, draw_winters(d, w));
+    Ok(())
+}

@@ -396,6 +396,10 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     if !d.probe_names.is_empty() {
         charts::probes(dir, &d, &mut files)?;
     }
+    if let Some(w) = charts::read_winters(dir) {
+        charts::winters(dir, &d, &w, &mut files)?;
+        sizes.push(("winters", charts::SIZE));
+    }
     // The plot index: every image and its size in pixels.
     let mut index = Vec::new();
     for f in &files {

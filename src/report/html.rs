@@ -59,6 +59,7 @@ pub const FIGURES: &[(&str, &str)] = &[
     ("frost_depth", "Frost depth in open ground and under the footing over the reported year, with the footing base."),
     ("heat_loss", "Monthly ground heat loss of the whole building and the monthly mean outdoor temperature."),
     ("probes", "Temperatures at the named probe points."),
+    ("winters", "Deepest frost of every winter of the measured series."),
 ];
 
 /// Write `dir/report.html` from the run's files; returns its path.
