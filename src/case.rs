@@ -39,6 +39,30 @@ pub struct RawCase {
     pub simulation: RawSimulation,
     #[serde(default)]
     pub probe: Vec<S<RawProbe>>,
+    #[serde(default)]
+    pub sizing: Option<RawSizing>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawSizing {
+    pub margin_m: Option<S<f64>>,
+    pub vary: S<Vec<S<RawVary>>>,
+    #[serde(default)]
+    pub cost_per_m3: std::collections::BTreeMap<String, f64>,
+    pub excavation_cost_per_m3: Option<S<f64>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawVary {
+    pub insulation: Option<S<i64>>,
+    pub dimension: S<String>,
+    pub min: S<f64>,
+    pub max: S<f64>,
+    pub step: S<f64>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -48,7 +72,8 @@ pub struct RawBuilding {
     pub floor_area_m2: Option<S<f64>>,
     pub exposed_perimeter_m: Option<S<f64>>,
     pub characteristic_dimension_m: Option<S<f64>>,
-    pub indoor_temperature_c: S<Temps>,
+    pub indoor_temperature_c: Option<S<Temps>>,
+    pub unheated: Option<bool>,
     pub floor_surface_resistance_m2k_per_w: Option<S<f64>>,
     pub wall_surface_resistance_m2k_per_w: Option<S<f64>>,
 }
@@ -270,6 +295,8 @@ pub struct Building {
     pub b_prime_m: f64,
     /// Indoor air temperature per calendar month, °C.
     pub indoor_monthly_c: [f64; 12],
+    /// An unheated building: the indoor air follows the outdoor air.
+    pub unheated: bool,
     /// Indoor surface resistance of the floor (heat flow down), m²·K/W. Default 0.17 (ISO 6946).
     pub r_si_floor: f64,
     /// Indoor surface resistance of the wall (horizontal flow), m²·K/W. Default 0.13 (ISO 6946).
@@ -486,6 +513,60 @@ pub struct Probe {
     pub z_m: f64,
 }
 
+/// A dimension the sizing may vary.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Dimension {
+    /// Insulation thickness.
+    ThicknessM,
+    /// Wing width (outer end x).
+    WidthM,
+    /// Wing depth (top face z).
+    DepthM,
+    /// Vertical insulation bottom depth.
+    BottomDepthM,
+    /// Under-slab band width.
+    BandWidthM,
+    /// Footing base depth.
+    FootingBaseDepthM,
+}
+
+/// One varied dimension of a sizing.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Vary {
+    /// Insulation piece index (None for the footing).
+    pub insulation: Option<usize>,
+    /// Which dimension.
+    pub dimension: Dimension,
+    /// Smallest value, m.
+    pub min: f64,
+    /// Largest value, m.
+    pub max: f64,
+    /// Step, m.
+    pub step: f64,
+}
+
+impl Vary {
+    /// The candidate values min, min + step, …, max.
+    pub fn values(&self) -> Vec<f64> {
+        let n = ((self.max - self.min) / self.step + 1e-9).floor() as usize;
+        (0..=n).map(|k| self.min + k as f64 * self.step).collect()
+    }
+}
+
+/// Sizing settings.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Sizing {
+    /// Required frost margin (footing base depth − frost depth under the footing), m.
+    pub margin_m: f64,
+    /// Varied dimensions (one or two).
+    pub vary: Vec<Vary>,
+    /// Cost weight per m³ of each insulation material by name.
+    pub cost_per_m3: std::collections::BTreeMap<String, f64>,
+    /// Cost weight per m³ of excavation.
+    pub excavation_cost_per_m3: f64,
+}
+
 /// A validated case in SI units.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Case {
@@ -517,6 +598,8 @@ pub struct Case {
     pub simulation: Simulation,
     /// Probes.
     pub probes: Vec<Probe>,
+    /// Insulation sizing settings, if the case has a `[sizing]` table.
+    pub sizing: Option<Sizing>,
 }
 
 impl Case {
@@ -539,6 +622,9 @@ impl Case {
     }
     /// Mean indoor temperature, °C.
     pub fn indoor_mean_c(&self) -> f64 {
+        if self.building.unheated {
+            return self.climate.mean_c;
+        }
         self.building.indoor_monthly_c.iter().sum::<f64>() / 12.0
     }
     /// Soil material at depth z (m).
@@ -758,7 +844,16 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             ))
         }
     };
-    let indoor = match b.indoor_temperature_c.get_ref() {
+    let unheated = b.unheated.unwrap_or(false);
+    let indoor_given = match (&b.indoor_temperature_c, unheated) {
+        (Some(t), false) => t,
+        (None, true) => &serde_spanned::Spanned::new(0..0, Temps::One(0.0)),
+        (Some(t), true) => {
+            return Err(c.err(t.span(), "building.indoor_temperature_c", "not used for an unheated building (the indoor air follows the outdoor air)"))
+        }
+        (None, false) => return Err(c.err_file("building.indoor_temperature_c", "missing; give the indoor temperature (°C), 12 monthly values, or unheated = true")),
+    };
+    let indoor = match indoor_given.get_ref() {
         Temps::One(t) => [*t; 12],
         Temps::Monthly(v) if v.len() == 12 => {
             let mut a = [0.0; 12];
@@ -767,7 +862,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         }
         Temps::Monthly(v) => {
             return Err(c.err(
-                b.indoor_temperature_c.span(),
+                indoor_given.span(),
                 "building.indoor_temperature_c",
                 format!(
                     "{} values given; allowed: one temperature or 12 monthly values (°C)",
@@ -778,7 +873,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     };
     if let Some(t) = indoor.iter().find(|t| !(-30.0..=40.0).contains(*t)) {
         return Err(c.err(
-            b.indoor_temperature_c.span(),
+            indoor_given.span(),
             "building.indoor_temperature_c",
             format!("{t} °C is out of range; allowed: −30 to 40 °C"),
         ));
@@ -788,6 +883,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         exposed_perimeter_m: perim,
         b_prime_m: bp,
         indoor_monthly_c: indoor,
+        unheated,
         r_si_floor: c.opt(
             &b.floor_surface_resistance_m2k_per_w,
             "building.floor_surface_resistance_m2k_per_w",
@@ -1470,7 +1566,12 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         });
     }
 
+    let sizing = match &raw.sizing {
+        None => None,
+        Some(s) => Some(sizing(c, s, &insulation)?),
+    };
     Ok(Case {
+        sizing,
         file: c.file.to_string(),
         source: c.src.to_string(),
         name: raw.name,
@@ -1485,6 +1586,79 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         climate,
         simulation,
         probes,
+    })
+}
+
+fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
+    let n = s.vary.get_ref().len();
+    if !(1..=2).contains(&n) {
+        return Err(c.err(s.vary.span(), "sizing.vary", format!("{n} dimensions given; allowed: one or two [[sizing.vary]] tables")));
+    }
+    let mut vary = Vec::new();
+    for (k, v) in s.vary.get_ref().iter().enumerate() {
+        let key = format!("sizing.vary[{k}]");
+        let r = v.get_ref();
+        let dim = match r.dimension.get_ref().as_str() {
+            "thickness_m" => Dimension::ThicknessM,
+            "width_m" => Dimension::WidthM,
+            "depth_m" => Dimension::DepthM,
+            "bottom_depth_m" => Dimension::BottomDepthM,
+            "band_width_m" => Dimension::BandWidthM,
+            "footing.base_depth_m" => Dimension::FootingBaseDepthM,
+            other => {
+                return Err(c.err(r.dimension.span(), &format!("{key}.dimension"), format!(
+                    "\"{other}\" is not a sizing dimension; allowed: thickness_m, width_m, depth_m, bottom_depth_m, band_width_m, footing.base_depth_m")))
+            }
+        };
+        let piece = match (&r.insulation, dim) {
+            (None, Dimension::FootingBaseDepthM) => None,
+            (Some(i), Dimension::FootingBaseDepthM) => {
+                return Err(c.err(i.span(), &format!("{key}.insulation"), "not used with footing.base_depth_m; remove it"))
+            }
+            (None, _) => return Err(c.err(v.span(), &format!("{key}.insulation"), "missing: the index of the insulation piece (0 = the first [[insulation]])")),
+            (Some(i), _) => {
+                let idx = *i.get_ref();
+                if idx < 0 || idx as usize >= insulation.len() {
+                    return Err(c.err(i.span(), &format!("{key}.insulation"), format!("{idx} is not a piece; allowed: 0 to {}", insulation.len() as i64 - 1)));
+                }
+                let kind = insulation[idx as usize].kind;
+                let fits = match dim {
+                    Dimension::ThicknessM => true,
+                    Dimension::WidthM | Dimension::DepthM => matches!(kind, InsulationKind::Wing { .. }),
+                    Dimension::BottomDepthM => matches!(kind, InsulationKind::VerticalOutside { .. } | InsulationKind::VerticalInside { .. }),
+                    Dimension::BandWidthM => matches!(kind, InsulationKind::UnderSlab { band_width_m: Some(_) }),
+                    Dimension::FootingBaseDepthM => false,
+                };
+                if !fits {
+                    return Err(c.err(r.dimension.span(), &format!("{key}.dimension"), format!("{} does not apply to insulation[{idx}]", r.dimension.get_ref())));
+                }
+                Some(idx as usize)
+            }
+        };
+        let min = c.range_incl(&r.min, &format!("{key}.min"), 0.0, 20.0, "m")?;
+        let max = c.range(&r.max, &format!("{key}.max"), min, 20.0, "m")?;
+        let step = c.range(&r.step, &format!("{key}.step"), 0.0, max - min, "m")?;
+        if (max - min) / step > 200.0 {
+            return Err(c.err(r.step.span(), &format!("{key}.step"), "more than 200 steps; allowed: a coarser step"));
+        }
+        if dim == Dimension::ThicknessM && min <= 0.0 {
+            return Err(c.err(r.min.span(), &format!("{key}.min"), "a thickness of 0 m; allowed: greater than 0 (the uninsulated foundation is evaluated separately)"));
+        }
+        vary.push(Vary { insulation: piece, dimension: dim, min, max, step });
+    }
+    let mut cost: std::collections::BTreeMap<String, f64> =
+        [("xps", 250.0), ("eps", 150.0), ("eps-ii", 120.0), ("insulation", 250.0)].iter().map(|(k, v)| (k.to_string(), *v)).collect();
+    for (k, v) in &s.cost_per_m3 {
+        if !(*v >= 0.0 && v.is_finite()) {
+            return Err(c.err_file(&format!("sizing.cost_per_m3.{k}"), format!("{v} is not a cost; allowed: 0 or more")));
+        }
+        cost.insert(k.clone(), *v);
+    }
+    Ok(Sizing {
+        margin_m: c.opt(&s.margin_m, "sizing.margin_m", -1.0, 2.0, "m", 0.0)?,
+        vary,
+        cost_per_m3: cost,
+        excavation_cost_per_m3: c.opt(&s.excavation_cost_per_m3, "sizing.excavation_cost_per_m3", 0.0, 1e6, "per m³", 40.0)?,
     })
 }
 

@@ -47,6 +47,12 @@ pub enum Command {
         after_help = "Examples:\n  frostline soil --list\n  frostline soil silty-sand\n  frostline soil silt --water-content 0.28 --method kersten"
     )]
     Soil(SoilArgs),
+    /// Size frost-protection insulation: the least insulation (the case's [sizing] dimensions)
+    /// keeping frost above the footing base with a margin.
+    #[command(after_help = "Examples:\n  frostline size examples/kettle-hollow-sizing.toml --out out/sizing\n  \
+        frostline size case.toml --margin 0.1 --out out/sizing -j 2\n\n\
+        Writes sizing.json, sizing.csv and chosen_case.toml (a complete case that `frostline run` accepts).")]
+    Size(SizeArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
     Check {
@@ -117,6 +123,29 @@ pub struct ClimateArgs {
     /// Write climate_summary.json into this directory.
     #[arg(long)]
     pub out: Option<PathBuf>,
+}
+
+/// Arguments of `size`.
+#[derive(Args, Debug)]
+pub struct SizeArgs {
+    /// The case file with a [sizing] table.
+    pub case: PathBuf,
+    /// Required frost margin, m (footing base depth − frost depth under the footing); overrides
+    /// sizing.margin_m.
+    #[arg(long, allow_hyphen_values = true)]
+    pub margin: Option<f64>,
+    /// Output directory.
+    #[arg(long, short)]
+    pub out: PathBuf,
+    /// Worker threads (default: all cores).
+    #[arg(short = 'j', long)]
+    pub jobs: Option<usize>,
+    /// Override the case's mesh fineness.
+    #[arg(long, value_enum)]
+    pub mesh: Option<MeshArg>,
+    /// No progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 /// Arguments of `soil`.
@@ -193,6 +222,42 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Check { case } => {
             let case = load_case(&case)?;
             print!("{}", check_text(&case)?);
+            Ok(())
+        }
+        Command::Size(a) => {
+            let mut case = load_case(&a.case)?;
+            if let Some(m) = a.mesh {
+                case.simulation.mesh = match m {
+                    MeshArg::Coarse => Fineness::Coarse,
+                    MeshArg::Normal => Fineness::Normal,
+                    MeshArg::Fine => Fineness::Fine,
+                };
+            }
+            if let (Some(m), Some(s)) = (a.margin, case.sizing.as_mut()) {
+                if !(-1.0..=2.0).contains(&m) {
+                    return Err(Error::Input {
+                        location: crate::error::Location::file_only("command line"),
+                        key: "--margin".into(),
+                        message: format!("{m} m is out of range; allowed: -1 to 2 m"),
+                    });
+                }
+                s.margin_m = m;
+            }
+            if let Some(j) = a.jobs {
+                let _ = rayon::ThreadPoolBuilder::new().num_threads(j.max(1)).build_global();
+            }
+            let bar = if a.quiet { indicatif::ProgressBar::hidden() } else { indicatif::ProgressBar::new_spinner() };
+            bar.set_message("model runs");
+            let cb = |n: usize| bar.set_message(format!("{n} model runs"));
+            let result = crate::design::size(&case, &cb);
+            bar.finish_and_clear();
+            let result = result?;
+            let files = crate::report::sizing::write(&case, &result, &a.out)?;
+            print!("{}", crate::report::sizing::text(&case, &result));
+            println!("\n  Files in {}:", a.out.display());
+            for f in files {
+                println!("    {}", f.file_name().map(|s| s.to_string_lossy()).unwrap_or_default());
+            }
             Ok(())
         }
         Command::Soil(a) => {

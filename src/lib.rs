@@ -11,6 +11,7 @@
 pub mod analysis;
 pub mod case;
 pub mod cli;
+pub mod design;
 pub mod error;
 pub mod geometry;
 pub mod mesh;

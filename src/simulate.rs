@@ -491,7 +491,7 @@ impl Driver<'_> {
         let mut groups_j = [0.0; 4];
         let mut loss_j = 0.0;
         for (d, day) in days.iter().enumerate() {
-            let indoor = case.building.indoor_monthly_c[day.month];
+            let heated_indoor = case.building.indoor_monthly_c[day.month];
             self.solver
                 .set_extra_horizontal_resistance(OUTDOOR, case.climate.snow_r(day.month));
             let (mut day_in, mut out_mean) = (0.0, 0.0);
@@ -504,6 +504,8 @@ impl Driver<'_> {
                     }
                 };
                 out_mean += air / steps_per_day as f64;
+                // An unheated building's indoor air follows the outdoor air.
+                let indoor = if case.building.unheated { air } else { heated_indoor };
                 let zt = self.zone_temps(indoor, case.climate.surface(air));
                 let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
                 self.sim_time += dt;
@@ -519,6 +521,7 @@ impl Driver<'_> {
             loss_j += day_in;
             self.net.temperatures(&self.h, &mut self.t);
             let (fo, ff, fw) = self.frost();
+            let indoor = if case.building.unheated { out_mean } else { heated_indoor };
             rec.days.push(Day {
                 day_of_year: day.doy,
                 outdoor_c: out_mean,

@@ -2,6 +2,7 @@
 //! the short result table. Every file is written to a temporary name and renamed, so a failed run
 //! never leaves a half-written file.
 pub mod html;
+pub mod sizing;
 
 use crate::case::Case;
 use crate::error::{Error, Result};
