@@ -845,14 +845,22 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         }
     };
     let unheated = b.unheated.unwrap_or(false);
-    let indoor_given = match (&b.indoor_temperature_c, unheated) {
-        (Some(t), false) => t,
-        (None, true) => &serde_spanned::Spanned::new(0..0, Temps::One(0.0)),
-        (Some(t), true) => {
-            return Err(c.err(t.span(), "building.indoor_temperature_c", "not used for an unheated building (the indoor air follows the outdoor air)"))
-        }
-        (None, false) => return Err(c.err_file("building.indoor_temperature_c", "missing; give the indoor temperature (°C), 12 monthly values, or unheated = true")),
-    };
+    let indoor_given =
+        match (&b.indoor_temperature_c, unheated) {
+            (Some(t), false) => t,
+            (None, true) => &serde_spanned::Spanned::new(0..0, Temps::One(0.0)),
+            (Some(t), true) => {
+                return Err(c.err(
+                    t.span(),
+                    "building.indoor_temperature_c",
+                    "not used for an unheated building (the indoor air follows the outdoor air)",
+                ))
+            }
+            (None, false) => return Err(c.err_file(
+                "building.indoor_temperature_c",
+                "missing; give the indoor temperature (°C), 12 monthly values, or unheated = true",
+            )),
+        };
     let indoor = match indoor_given.get_ref() {
         Temps::One(t) => [*t; 12],
         Temps::Monthly(v) if v.len() == 12 => {
@@ -1592,7 +1600,11 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
 fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
     let n = s.vary.get_ref().len();
     if !(1..=2).contains(&n) {
-        return Err(c.err(s.vary.span(), "sizing.vary", format!("{n} dimensions given; allowed: one or two [[sizing.vary]] tables")));
+        return Err(c.err(
+            s.vary.span(),
+            "sizing.vary",
+            format!("{n} dimensions given; allowed: one or two [[sizing.vary]] tables"),
+        ));
     }
     let mut vary = Vec::new();
     for (k, v) in s.vary.get_ref().iter().enumerate() {
@@ -1613,24 +1625,59 @@ fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
         let piece = match (&r.insulation, dim) {
             (None, Dimension::FootingBaseDepthM) => None,
             (Some(i), Dimension::FootingBaseDepthM) => {
-                return Err(c.err(i.span(), &format!("{key}.insulation"), "not used with footing.base_depth_m; remove it"))
+                return Err(c.err(
+                    i.span(),
+                    &format!("{key}.insulation"),
+                    "not used with footing.base_depth_m; remove it",
+                ))
             }
-            (None, _) => return Err(c.err(v.span(), &format!("{key}.insulation"), "missing: the index of the insulation piece (0 = the first [[insulation]])")),
+            (None, _) => {
+                return Err(c.err(
+                    v.span(),
+                    &format!("{key}.insulation"),
+                    "missing: the index of the insulation piece (0 = the first [[insulation]])",
+                ))
+            }
             (Some(i), _) => {
                 let idx = *i.get_ref();
                 if idx < 0 || idx as usize >= insulation.len() {
-                    return Err(c.err(i.span(), &format!("{key}.insulation"), format!("{idx} is not a piece; allowed: 0 to {}", insulation.len() as i64 - 1)));
+                    return Err(c.err(
+                        i.span(),
+                        &format!("{key}.insulation"),
+                        format!(
+                            "{idx} is not a piece; allowed: 0 to {}",
+                            insulation.len() as i64 - 1
+                        ),
+                    ));
                 }
                 let kind = insulation[idx as usize].kind;
                 let fits = match dim {
                     Dimension::ThicknessM => true,
-                    Dimension::WidthM | Dimension::DepthM => matches!(kind, InsulationKind::Wing { .. }),
-                    Dimension::BottomDepthM => matches!(kind, InsulationKind::VerticalOutside { .. } | InsulationKind::VerticalInside { .. }),
-                    Dimension::BandWidthM => matches!(kind, InsulationKind::UnderSlab { band_width_m: Some(_) }),
+                    Dimension::WidthM | Dimension::DepthM => {
+                        matches!(kind, InsulationKind::Wing { .. })
+                    }
+                    Dimension::BottomDepthM => matches!(
+                        kind,
+                        InsulationKind::VerticalOutside { .. }
+                            | InsulationKind::VerticalInside { .. }
+                    ),
+                    Dimension::BandWidthM => matches!(
+                        kind,
+                        InsulationKind::UnderSlab {
+                            band_width_m: Some(_)
+                        }
+                    ),
                     Dimension::FootingBaseDepthM => false,
                 };
                 if !fits {
-                    return Err(c.err(r.dimension.span(), &format!("{key}.dimension"), format!("{} does not apply to insulation[{idx}]", r.dimension.get_ref())));
+                    return Err(c.err(
+                        r.dimension.span(),
+                        &format!("{key}.dimension"),
+                        format!(
+                            "{} does not apply to insulation[{idx}]",
+                            r.dimension.get_ref()
+                        ),
+                    ));
                 }
                 Some(idx as usize)
             }
@@ -1639,18 +1686,38 @@ fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
         let max = c.range(&r.max, &format!("{key}.max"), min, 20.0, "m")?;
         let step = c.range(&r.step, &format!("{key}.step"), 0.0, max - min, "m")?;
         if (max - min) / step > 200.0 {
-            return Err(c.err(r.step.span(), &format!("{key}.step"), "more than 200 steps; allowed: a coarser step"));
+            return Err(c.err(
+                r.step.span(),
+                &format!("{key}.step"),
+                "more than 200 steps; allowed: a coarser step",
+            ));
         }
         if dim == Dimension::ThicknessM && min <= 0.0 {
             return Err(c.err(r.min.span(), &format!("{key}.min"), "a thickness of 0 m; allowed: greater than 0 (the uninsulated foundation is evaluated separately)"));
         }
-        vary.push(Vary { insulation: piece, dimension: dim, min, max, step });
+        vary.push(Vary {
+            insulation: piece,
+            dimension: dim,
+            min,
+            max,
+            step,
+        });
     }
-    let mut cost: std::collections::BTreeMap<String, f64> =
-        [("xps", 250.0), ("eps", 150.0), ("eps-ii", 120.0), ("insulation", 250.0)].iter().map(|(k, v)| (k.to_string(), *v)).collect();
+    let mut cost: std::collections::BTreeMap<String, f64> = [
+        ("xps", 250.0),
+        ("eps", 150.0),
+        ("eps-ii", 120.0),
+        ("insulation", 250.0),
+    ]
+    .iter()
+    .map(|(k, v)| (k.to_string(), *v))
+    .collect();
     for (k, v) in &s.cost_per_m3 {
         if !(*v >= 0.0 && v.is_finite()) {
-            return Err(c.err_file(&format!("sizing.cost_per_m3.{k}"), format!("{v} is not a cost; allowed: 0 or more")));
+            return Err(c.err_file(
+                &format!("sizing.cost_per_m3.{k}"),
+                format!("{v} is not a cost; allowed: 0 or more"),
+            ));
         }
         cost.insert(k.clone(), *v);
     }
@@ -1658,7 +1725,14 @@ fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
         margin_m: c.opt(&s.margin_m, "sizing.margin_m", -1.0, 2.0, "m", 0.0)?,
         vary,
         cost_per_m3: cost,
-        excavation_cost_per_m3: c.opt(&s.excavation_cost_per_m3, "sizing.excavation_cost_per_m3", 0.0, 1e6, "per m³", 40.0)?,
+        excavation_cost_per_m3: c.opt(
+            &s.excavation_cost_per_m3,
+            "sizing.excavation_cost_per_m3",
+            0.0,
+            1e6,
+            "per m³",
+            40.0,
+        )?,
     })
 }
 

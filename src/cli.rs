@@ -49,9 +49,11 @@ pub enum Command {
     Soil(SoilArgs),
     /// Size frost-protection insulation: the least insulation (the case's [sizing] dimensions)
     /// keeping frost above the footing base with a margin.
-    #[command(after_help = "Examples:\n  frostline size examples/kettle-hollow-sizing.toml --out out/sizing\n  \
+    #[command(
+        after_help = "Examples:\n  frostline size examples/kettle-hollow-sizing.toml --out out/sizing\n  \
         frostline size case.toml --margin 0.1 --out out/sizing -j 2\n\n\
-        Writes sizing.json, sizing.csv and chosen_case.toml (a complete case that `frostline run` accepts).")]
+        Writes sizing.json, sizing.csv and chosen_case.toml (a complete case that `frostline run` accepts)."
+    )]
     Size(SizeArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
@@ -244,9 +246,15 @@ fn execute(cli: Cli) -> Result<(), Error> {
                 s.margin_m = m;
             }
             if let Some(j) = a.jobs {
-                let _ = rayon::ThreadPoolBuilder::new().num_threads(j.max(1)).build_global();
+                let _ = rayon::ThreadPoolBuilder::new()
+                    .num_threads(j.max(1))
+                    .build_global();
             }
-            let bar = if a.quiet { indicatif::ProgressBar::hidden() } else { indicatif::ProgressBar::new_spinner() };
+            let bar = if a.quiet {
+                indicatif::ProgressBar::hidden()
+            } else {
+                indicatif::ProgressBar::new_spinner()
+            };
             bar.set_message("model runs");
             let cb = |n: usize| bar.set_message(format!("{n} model runs"));
             let result = crate::design::size(&case, &cb);
@@ -256,7 +264,12 @@ fn execute(cli: Cli) -> Result<(), Error> {
             print!("{}", crate::report::sizing::text(&case, &result));
             println!("\n  Files in {}:", a.out.display());
             for f in files {
-                println!("    {}", f.file_name().map(|s| s.to_string_lossy()).unwrap_or_default());
+                println!(
+                    "    {}",
+                    f.file_name()
+                        .map(|s| s.to_string_lossy())
+                        .unwrap_or_default()
+                );
             }
             Ok(())
         }

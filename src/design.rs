@@ -79,8 +79,12 @@ pub fn apply(case: &Case, vary: &[Vary], values: &[f64]) -> Case {
                     (Dimension::WidthM, InsulationKind::Wing { width_m, .. }) => *width_m = x,
                     (Dimension::DepthM, InsulationKind::Wing { depth_m, .. }) => *depth_m = x,
                     (Dimension::BottomDepthM, InsulationKind::VerticalOutside { bottom_m, .. })
-                    | (Dimension::BottomDepthM, InsulationKind::VerticalInside { bottom_m, .. }) => *bottom_m = x,
-                    (Dimension::BandWidthM, InsulationKind::UnderSlab { band_width_m }) => *band_width_m = Some(x),
+                    | (Dimension::BottomDepthM, InsulationKind::VerticalInside { bottom_m, .. }) => {
+                        *bottom_m = x
+                    }
+                    (Dimension::BandWidthM, InsulationKind::UnderSlab { band_width_m }) => {
+                        *band_width_m = Some(x)
+                    }
                     _ => {}
                 }
             }
@@ -109,14 +113,25 @@ pub fn cost_per_m(case: &Case) -> f64 {
     let mut dig = case.footing.base_depth_m * case.footing.width_m;
     for ins in &case.insulation {
         let len = match ins.kind {
-            InsulationKind::UnderSlab { band_width_m } => band_width_m.unwrap_or(0.5 * case.building.b_prime_m),
-            InsulationKind::VerticalOutside { top_m, bottom_m } | InsulationKind::VerticalInside { top_m, bottom_m } => bottom_m - top_m,
-            InsulationKind::Wing { depth_m, x_start_m, width_m } => {
+            InsulationKind::UnderSlab { band_width_m } => {
+                band_width_m.unwrap_or(0.5 * case.building.b_prime_m)
+            }
+            InsulationKind::VerticalOutside { top_m, bottom_m }
+            | InsulationKind::VerticalInside { top_m, bottom_m } => bottom_m - top_m,
+            InsulationKind::Wing {
+                depth_m,
+                x_start_m,
+                width_m,
+            } => {
                 dig += (depth_m + ins.thickness_m) * (width_m - x_start_m).max(0.0);
                 width_m - x_start_m
             }
         };
-        let weight = s.cost_per_m3.get(&ins.material.name).copied().unwrap_or(250.0);
+        let weight = s
+            .cost_per_m3
+            .get(&ins.material.name)
+            .copied()
+            .unwrap_or(250.0);
         cost += ins.thickness_m * len.max(0.0) * weight;
     }
     let _ = w;
@@ -124,13 +139,20 @@ pub fn cost_per_m(case: &Case) -> f64 {
 }
 
 fn err(case: &Case, message: String) -> Error {
-    Error::Input { location: Location::file_only(&case.file), key: "sizing".into(), message }
+    Error::Input {
+        location: Location::file_only(&case.file),
+        key: "sizing".into(),
+        message,
+    }
 }
 
 /// Size the case's `[sizing]` dimensions. `progress` is called after every run with the count.
 pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResult> {
     let start = std::time::Instant::now();
-    let s = case.sizing.as_ref().ok_or_else(|| err(case, "the case has no [sizing] table".into()))?;
+    let s = case
+        .sizing
+        .as_ref()
+        .ok_or_else(|| err(case, "the case has no [sizing] table".into()))?;
     let runs = AtomicUsize::new(0);
     let times = std::sync::Mutex::new(Vec::new());
     let run_one = |c: &Case| -> Result<(f64, f64, f64)> {
@@ -141,12 +163,22 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
             t.push(t0.elapsed().as_secs_f64());
         }
         progress(runs.fetch_add(1, Ordering::SeqCst) + 1);
-        Ok((h.frost_margin_m, h.frost_depth_under_footing_m, h.annual_heat_loss_kwh))
+        Ok((
+            h.frost_margin_m,
+            h.frost_depth_under_footing_m,
+            h.annual_heat_loss_kwh,
+        ))
     };
     // Baseline: the varied insulation pieces removed (the footing as given).
     let mut base_case = case.clone();
     let varied: Vec<usize> = s.vary.iter().filter_map(|v| v.insulation).collect();
-    base_case.insulation = case.insulation.iter().enumerate().filter(|(k, _)| !varied.contains(k)).map(|(_, i)| i.clone()).collect();
+    base_case.insulation = case
+        .insulation
+        .iter()
+        .enumerate()
+        .filter(|(k, _)| !varied.contains(k))
+        .map(|(_, i)| i.clone())
+        .collect();
     base_case.sizing = None;
     let (bm, bf, bq) = run_one(&base_case)?;
     let baseline = Design {
@@ -205,7 +237,10 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
     }
     // Outer values (first dimension, or a single dummy) and the bisected dimension.
     let (outer, inner): (Vec<Option<f64>>, &Vary) = if s.vary.len() == 2 {
-        (s.vary[0].values().into_iter().map(Some).collect(), &s.vary[1])
+        (
+            s.vary[0].values().into_iter().map(Some).collect(),
+            &s.vary[1],
+        )
     } else {
         (vec![None], &s.vary[0])
     };

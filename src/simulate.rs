@@ -505,7 +505,11 @@ impl Driver<'_> {
                 };
                 out_mean += air / steps_per_day as f64;
                 // An unheated building's indoor air follows the outdoor air.
-                let indoor = if case.building.unheated { air } else { heated_indoor };
+                let indoor = if case.building.unheated {
+                    air
+                } else {
+                    heated_indoor
+                };
                 let zt = self.zone_temps(indoor, case.climate.surface(air));
                 let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
                 self.sim_time += dt;
@@ -521,7 +525,11 @@ impl Driver<'_> {
             loss_j += day_in;
             self.net.temperatures(&self.h, &mut self.t);
             let (fo, ff, fw) = self.frost();
-            let indoor = if case.building.unheated { out_mean } else { heated_indoor };
+            let indoor = if case.building.unheated {
+                out_mean
+            } else {
+                heated_indoor
+            };
             rec.days.push(Day {
                 day_of_year: day.doy,
                 outdoor_c: out_mean,

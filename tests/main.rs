@@ -8,4 +8,5 @@ mod examples;
 mod iso13370;
 mod plots;
 mod regression;
+mod sizing;
 mod verification;

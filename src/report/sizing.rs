@@ -33,8 +33,13 @@ fn label(case: &Case, k: usize) -> String {
 /// index, or the coldest winter of a series, °C·d.
 fn design_fi(case: &Case) -> f64 {
     match &case.climate.source {
-        ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s).iter().map(|w| w.value).fold(0.0, f64::max),
-        ClimateSource::Sinusoid => crate::methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k).0,
+        ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s)
+            .iter()
+            .map(|w| w.value)
+            .fold(0.0, f64::max),
+        ClimateSource::Sinusoid => {
+            crate::methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k).0
+        }
     }
 }
 
@@ -44,10 +49,16 @@ fn cross_checks(case: &Case, r: &SizingResult) -> (serde_json::Value, Vec<String
     let cc = crate::simulate::cross_check(case);
     let guidance = fpsf_guidance(fi);
     let mut flags = Vec::new();
-    let chosen_case = r.chosen.as_ref().map(|d| crate::design::apply(case, &case.sizing.as_ref().expect("sizing").vary, &d.values));
+    let chosen_case = r.chosen.as_ref().map(|d| {
+        crate::design::apply(case, &case.sizing.as_ref().expect("sizing").vary, &d.values)
+    });
     let wing = chosen_case.as_ref().and_then(|c| {
         c.insulation.iter().find_map(|i| match i.kind {
-            InsulationKind::Wing { width_m, .. } => Some((i.thickness_m, width_m, i.thickness_m / i.material.k_unfrozen)),
+            InsulationKind::Wing { width_m, .. } => Some((
+                i.thickness_m,
+                width_m,
+                i.thickness_m / i.material.k_unfrozen,
+            )),
             _ => None,
         })
     });
@@ -65,7 +76,10 @@ fn cross_checks(case: &Case, r: &SizingResult) -> (serde_json::Value, Vec<String
                 flags.push("the simplified table needs no horizontal insulation at this freezing index; the model found a wing necessary".into());
             }
         }
-        (None, _) => flags.push(format!("the design freezing index ({:.0} °F·d) lies beyond the simplified table (4000 °F·d)", 1.8 * fi)),
+        (None, _) => flags.push(format!(
+            "the design freezing index ({:.0} °F·d) lies beyond the simplified table (4000 °F·d)",
+            1.8 * fi
+        )),
         _ => {}
     }
     let open = cc.modified_berggren_frost_depth_m;
@@ -85,13 +99,18 @@ fn cross_checks(case: &Case, r: &SizingResult) -> (serde_json::Value, Vec<String
 
 /// Write sizing.json, sizing.csv and (if a design was chosen) chosen_case.toml into `dir`.
 pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::Io { path: dir.to_path_buf(), source: e })?;
+    std::fs::create_dir_all(dir).map_err(|e| Error::Io {
+        path: dir.to_path_buf(),
+        source: e,
+    })?;
     let mut files = Vec::new();
     let (checks, flags) = cross_checks(case, r);
     let corner = r.chosen.as_ref().and_then(|d| {
         let c = crate::design::apply(case, &case.sizing.as_ref()?.vary, &d.values);
         c.insulation.iter().find_map(|i| match i.kind {
-            InsulationKind::Wing { width_m, x_start_m, .. } => Some(corner_rule(i.thickness_m, width_m - x_start_m)),
+            InsulationKind::Wing {
+                width_m, x_start_m, ..
+            } => Some(corner_rule(i.thickness_m, width_m - x_start_m)),
             _ => None,
         })
     });
@@ -117,7 +136,10 @@ pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> 
     });
     let bytes = serde_json::to_vec_pretty(&doc).map_err(|e| Error::Output(e.to_string()))?;
     files.push(crate::report::write_atomic(dir, "sizing.json", &bytes)?);
-    let mut csv = format!("# {}\n# {}\n# cost weights are per metre of exposed perimeter\n", case.name, SIZING_CAUTION);
+    let mut csv = format!(
+        "# {}\n# {}\n# cost weights are per metre of exposed perimeter\n",
+        case.name, SIZING_CAUTION
+    );
     csv += &format!("{},frost_margin_m,frost_depth_under_footing_m,annual_heat_loss_kwh,heat_loss_change_kwh,cost_per_m,feasible,on_tradeoff,note\n", labels.join(","));
     for d in &r.designs {
         let on = r.tradeoff.iter().any(|t| t.values == d.values);
@@ -135,9 +157,17 @@ pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> 
             d.note.clone().unwrap_or_default().replace(',', ";")
         );
     }
-    files.push(crate::report::write_atomic(dir, "sizing.csv", csv.as_bytes())?);
+    files.push(crate::report::write_atomic(
+        dir,
+        "sizing.csv",
+        csv.as_bytes(),
+    )?);
     if let Some(d) = &r.chosen {
-        files.push(crate::report::write_atomic(dir, "chosen_case.toml", chosen_case_toml(case, d)?.as_bytes())?);
+        files.push(crate::report::write_atomic(
+            dir,
+            "chosen_case.toml",
+            chosen_case_toml(case, d)?.as_bytes(),
+        )?);
     }
     Ok(files)
 }
@@ -145,7 +175,8 @@ pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> 
 /// The case file with the chosen values written in and the [sizing] table removed (relative
 /// paths made absolute so the file runs from anywhere).
 pub fn chosen_case_toml(case: &Case, d: &Design) -> Result<String> {
-    let mut t: toml::Table = toml::from_str(&case.source).map_err(|e| Error::Output(e.to_string()))?;
+    let mut t: toml::Table =
+        toml::from_str(&case.source).map_err(|e| Error::Output(e.to_string()))?;
     let s = case.sizing.as_ref().expect("sizing");
     for (v, &x) in s.vary.iter().zip(&d.values) {
         let x = (x * 1e6).round() / 1e6;
@@ -156,14 +187,22 @@ pub fn chosen_case_toml(case: &Case, d: &Design) -> Result<String> {
                 }
             }
             Some(k) => {
-                if let Some(p) = t.get_mut("insulation").and_then(|a| a.as_array_mut()).and_then(|a| a.get_mut(k)).and_then(|p| p.as_table_mut()) {
+                if let Some(p) = t
+                    .get_mut("insulation")
+                    .and_then(|a| a.as_array_mut())
+                    .and_then(|a| a.get_mut(k))
+                    .and_then(|p| p.as_table_mut())
+                {
                     p.insert(dim_name(v.dimension).into(), toml::Value::Float(x));
                 }
             }
         }
     }
     t.remove("sizing");
-    let base = std::path::Path::new(&case.file).parent().map(|p| p.to_path_buf()).unwrap_or_default();
+    let base = std::path::Path::new(&case.file)
+        .parent()
+        .map(|p| p.to_path_buf())
+        .unwrap_or_default();
     let abs = |v: &mut toml::Value| {
         if let Some(p) = v.as_str() {
             let pb = std::path::Path::new(p);
@@ -197,7 +236,10 @@ pub fn chosen_case_toml(case: &Case, d: &Design) -> Result<String> {
 /// The printed summary.
 pub fn text(case: &Case, r: &SizingResult) -> String {
     let labels: Vec<String> = (0..r.vary.len()).map(|k| label(case, k)).collect();
-    let mut s = format!("{} — frost-protection sizing\n  {}\n", case.name, r.margin_meaning);
+    let mut s = format!(
+        "{} — frost-protection sizing\n  {}\n",
+        case.name, r.margin_meaning
+    );
     s += &format!(
         "  without the varied insulation: frost under the footing {:.2} m, margin {:.2} m, heat loss {:.0} kWh/yr\n",
         r.baseline.frost_depth_under_footing_m, r.baseline.frost_margin_m, r.baseline.annual_heat_loss_kwh
@@ -205,7 +247,11 @@ pub fn text(case: &Case, r: &SizingResult) -> String {
     if let Some(why) = &r.no_insulation_needed {
         s += &format!("\n  No insulation needed: {why}.\n");
     } else {
-        s += &format!("\n  Trade-off (least {} for each {}):\n", labels.last().cloned().unwrap_or_default(), labels.first().cloned().unwrap_or_default());
+        s += &format!(
+            "\n  Trade-off (least {} for each {}):\n",
+            labels.last().cloned().unwrap_or_default(),
+            labels.first().cloned().unwrap_or_default()
+        );
         for d in &r.tradeoff {
             s += &format!(
                 "    {:<28} margin {:>6.2} m  heat loss {:>7.0} kWh/yr ({:+.0})  cost {:>7.1} per m\n",
@@ -225,8 +271,18 @@ pub fn text(case: &Case, r: &SizingResult) -> String {
         }
     }
     let (checks, flags) = cross_checks(case, r);
-    s += &format!("\n  Cross-check (design air freezing index {:.0} °C·d):\n", checks["design_air_freezing_index_c_days"].as_f64().unwrap_or(0.0));
-    s += &format!("    modified Berggren open-ground frost depth {:.2} m\n", checks["modified_berggren_open_ground_frost_depth_m"].as_f64().unwrap_or(0.0));
+    s += &format!(
+        "\n  Cross-check (design air freezing index {:.0} °C·d):\n",
+        checks["design_air_freezing_index_c_days"]
+            .as_f64()
+            .unwrap_or(0.0)
+    );
+    s += &format!(
+        "    modified Berggren open-ground frost depth {:.2} m\n",
+        checks["modified_berggren_open_ground_frost_depth_m"]
+            .as_f64()
+            .unwrap_or(0.0)
+    );
     if let Some(g) = checks["simplified_fpsf_guidance"].as_object() {
         s += &format!(
             "    simplified FPSF table (ASCE 32-01 / IRC; partly from memory, verify): vertical R {:.2}, wing R {:.2} m²·K/W over {:.2} m (corners R {:.2} over {:.2} m)\n",
@@ -243,7 +299,9 @@ pub fn text(case: &Case, r: &SizingResult) -> String {
     if let Some(d) = &r.chosen {
         let c = crate::design::apply(case, &case.sizing.as_ref().expect("sizing").vary, &d.values);
         if let Some((t, w)) = c.insulation.iter().find_map(|i| match i.kind {
-            InsulationKind::Wing { width_m, x_start_m, .. } => Some((i.thickness_m, width_m - x_start_m)),
+            InsulationKind::Wing {
+                width_m, x_start_m, ..
+            } => Some((i.thickness_m, width_m - x_start_m)),
             _ => None,
         }) {
             s += &format!(
@@ -253,7 +311,10 @@ pub fn text(case: &Case, r: &SizingResult) -> String {
             );
         }
     }
-    s += &format!("\n  {} runs, median {:.2} s per run, {:.1} s in all\n", r.runs, r.median_run_s, r.wall_time_s);
+    s += &format!(
+        "\n  {} runs, median {:.2} s per run, {:.1} s in all\n",
+        r.runs, r.median_run_s, r.wall_time_s
+    );
     s += &format!("\n  Caution: {SIZING_CAUTION}\n");
     s
 }
