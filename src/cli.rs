@@ -260,7 +260,16 @@ fn execute(cli: Cli) -> Result<(), Error> {
             let result = crate::design::size(&case, &cb);
             bar.finish_and_clear();
             let result = result?;
-            let files = crate::report::sizing::write(&case, &result, &a.out)?;
+            let mut files = crate::report::sizing::write(&case, &result, &a.out)?;
+            // The chosen design, run as the case file written for it: its full results, plots and
+            // report (with the sizing) in the same directory.
+            if result.chosen.is_some() {
+                let chosen = load_case(&a.out.join("chosen_case.toml"))?;
+                let r = simulate::run(&chosen, &mut |_| {})?;
+                files.extend(report::write_outputs(&chosen, &r, &a.out)?);
+                files.extend(crate::plot::render_dir(&a.out, &PlotOptions::default())?);
+                files.push(crate::report::html::write_report(&a.out)?);
+            }
             print!("{}", crate::report::sizing::text(&case, &result));
             println!("\n  Files in {}:", a.out.display());
             for f in files {

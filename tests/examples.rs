@@ -231,4 +231,7 @@ fn birch_lane_basement_shortened() {
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(stdout.contains("Heated basement"));
     crate::plots::check_plots(&out, &s);
+    crate::plots::check_report(&out, &s);
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("effective U-value") && html.contains("basement wall U-value"));
 }

@@ -195,7 +195,115 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         f(num(cc, "freezing_index_c_days"), 0),
         "design year, or the coldest winter of a series",
     );
+    if s["effective_u_value_w_per_m2k"].is_number() {
+        let b = &cc["basement"];
+        row(
+            &mut h,
+            "basement floor U-value",
+            "W/(m²·K)",
+            f(num(&s, "basement_floor_u_value_w_per_m2k"), 3),
+            f(num(b, "iso13370_basement_floor_u_value_w_per_m2k"), 3),
+            "ISO 13370 heated basement floor",
+        );
+        row(
+            &mut h,
+            "basement wall U-value (below ground)",
+            "W/(m²·K)",
+            f(num(&s, "wall_u_value_w_per_m2k"), 3),
+            f(num(b, "iso13370_wall_u_value_w_per_m2k"), 3),
+            "ISO 13370 basement wall (height-weighted for partial insulation)",
+        );
+        row(
+            &mut h,
+            "effective U-value",
+            "W/(m²·K)",
+            f(num(&s, "effective_u_value_w_per_m2k"), 3),
+            f(num(b, "iso13370_effective_u_value_w_per_m2k"), 3),
+            "ISO 13370 U′ over A + z·P",
+        );
+        row(
+            &mut h,
+            "wall / floor heat loss",
+            "kWh",
+            format!(
+                "{} / {}",
+                f(num(&s, "wall_heat_loss_kwh"), 0),
+                f(num(&s, "floor_heat_loss_kwh"), 0)
+            ),
+            "–".into(),
+            "",
+        );
+        row(
+            &mut h,
+            "frost depth beside the wall (0.5 m)",
+            "m",
+            f(num(&s, "frost_depth_beside_wall_m"), 2),
+            "–".into(),
+            "",
+        );
+    }
     h.push_str("</table>\n");
+    if let Ok(bytes) = std::fs::read(dir.join("sizing.json")) {
+        if let Ok(z) = serde_json::from_slice::<Value>(&bytes) {
+            h.push_str("<h2 id=\"sizing\">Insulation sizing</h2>\n");
+            h.push_str(&format!(
+                "<p>{}</p>\n",
+                escape(z["margin_meaning"].as_str().unwrap_or(""))
+            ));
+            if let Some(why) = z["no_insulation_needed"].as_str() {
+                h.push_str(&format!(
+                    "<p><strong>No insulation needed:</strong> {}.</p>\n",
+                    escape(why)
+                ));
+            }
+            let dims: Vec<String> = z["dimensions"]
+                .as_array()
+                .map(|a| a.iter().filter_map(|v| v.as_str().map(escape)).collect())
+                .unwrap_or_default();
+            h.push_str(&format!("<table>\n<tr><th>{}</th><th>frost margin (m)</th><th>annual heat loss (kWh)</th><th>change (kWh)</th><th>cost per m</th></tr>\n", dims.join(" (m)</th><th>") + " (m)"));
+            for d in z["tradeoff"].as_array().cloned().unwrap_or_default() {
+                let vals: Vec<String> = d["values"]
+                    .as_array()
+                    .map(|a| {
+                        a.iter()
+                            .map(|v| f(v.as_f64().unwrap_or(f64::NAN), 3))
+                            .collect()
+                    })
+                    .unwrap_or_default();
+                let mark = if d["values"] == z["chosen"]["values"] {
+                    " (chosen)"
+                } else {
+                    ""
+                };
+                h.push_str(&format!(
+                    "<tr><td class=n>{}{mark}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
+                    vals.join("</td><td class=n>"),
+                    f(num(&d, "frost_margin_m"), 2),
+                    f(num(&d, "annual_heat_loss_kwh"), 0),
+                    f(num(&d, "heat_loss_change_kwh"), 0),
+                    f(num(&d, "cost_per_m"), 1)
+                ));
+            }
+            h.push_str("</table>\n");
+            if let Some(c) = z["corner_requirement"].as_object() {
+                h.push_str(&format!(
+                    "<p><strong>Corners (not computed):</strong> {} — {}</p>\n",
+                    escape(c["rule"].as_str().unwrap_or("")),
+                    escape(c["basis"].as_str().unwrap_or(""))
+                ));
+            }
+            for flag in z["flags"].as_array().cloned().unwrap_or_default() {
+                h.push_str(&format!(
+                    "<p class=\"caution\">{}</p>\n",
+                    escape(flag.as_str().unwrap_or(""))
+                ));
+            }
+            h.push_str(&format!(
+                "<p class=\"caution\">{}</p>\n",
+                escape(z["caution"].as_str().unwrap_or(""))
+            ));
+        }
+    }
     if num(&s, "frost_margin_m") < 0.0 {
         h.push_str("<p class=\"caution\"><strong>Frost reaches below the footing base</strong> in this run.</p>\n");
     }
