@@ -69,4 +69,24 @@ fn main() {
         r.stats.solves
     );
     println!("  per time step: median {:.2} ms", 1e3 * median(per_step));
+
+    // Sizing of the sizing demo (two varied dimensions, coarse mesh, rayon over the first).
+    let spath = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-sizing.toml");
+    let scase = load_case(&spath).expect("sizing demo");
+    let mut walls = Vec::new();
+    let mut last = None;
+    for _ in 0..runs.min(3) {
+        let r = frostline::design::size(&scase, &|_| {}).unwrap();
+        walls.push(r.wall_time_s);
+        last = Some(r);
+    }
+    let r = last.unwrap();
+    println!(
+        "sizing demo: median {:.2} s over {} sizings; {} model runs each, median {:.2} s per run ({} threads)",
+        median(walls),
+        runs.min(3),
+        r.runs,
+        r.median_run_s,
+        rayon::current_num_threads()
+    );
 }
