@@ -71,7 +71,8 @@ fn main() {
     println!("  per time step: median {:.2} ms", 1e3 * median(per_step));
 
     // Sizing of the sizing demo (two varied dimensions, coarse mesh, rayon over the first).
-    let spath = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-sizing.toml");
+    let spath =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-sizing.toml");
     let scase = load_case(&spath).expect("sizing demo");
     let mut walls = Vec::new();
     let mut last = None;

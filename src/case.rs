@@ -235,6 +235,7 @@ pub struct RawClimate {
 pub struct RawSimulation {
     pub time_step_h: Option<S<f64>>,
     pub max_spin_up_years: Option<S<i64>>,
+    pub min_spin_up_years: Option<S<i64>>,
     pub mesh: Option<S<String>>,
     pub domain_width_m: Option<S<f64>>,
     pub domain_depth_m: Option<S<f64>>,
@@ -492,6 +493,8 @@ pub struct Simulation {
     pub dt_s: f64,
     /// Most years of spin-up before the reported year. Default 10.
     pub max_spin_up_years: usize,
+    /// Fewest years of spin-up, whatever the periodicity test says. Default 1.
+    pub min_spin_up_years: usize,
     /// Mesh fineness. Default normal.
     pub mesh: Fineness,
     /// Ground outside the wall, m. Default max(20, 2.5 B') (ISO 10211 cut-off planes).
@@ -1254,6 +1257,20 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let simulation = Simulation {
         dt_s: dt_h * 3600.0,
         max_spin_up_years: max_years,
+        min_spin_up_years: match &s.min_spin_up_years {
+            None => 1,
+            Some(v) if (1..=max_years as i64).contains(v.get_ref()) => *v.get_ref() as usize,
+            Some(v) => {
+                return Err(c.err(
+                    v.span(),
+                    "simulation.min_spin_up_years",
+                    format!(
+                        "{} is out of range; allowed: 1 to max_spin_up_years ({max_years})",
+                        v.get_ref()
+                    ),
+                ))
+            }
+        },
         mesh,
         domain_width_m: c.opt(
             &s.domain_width_m,
