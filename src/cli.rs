@@ -74,6 +74,16 @@ pub enum MeshArg {
     Fine,
 }
 
+impl From<MeshArg> for Fineness {
+    fn from(m: MeshArg) -> Self {
+        match m {
+            MeshArg::Coarse => Fineness::Coarse,
+            MeshArg::Normal => Fineness::Normal,
+            MeshArg::Fine => Fineness::Fine,
+        }
+    }
+}
+
 /// Arguments of `run`.
 #[derive(Args, Debug)]
 pub struct RunArgs {
@@ -229,11 +239,7 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Size(a) => {
             let mut case = load_case(&a.case)?;
             if let Some(m) = a.mesh {
-                case.simulation.mesh = match m {
-                    MeshArg::Coarse => Fineness::Coarse,
-                    MeshArg::Normal => Fineness::Normal,
-                    MeshArg::Fine => Fineness::Fine,
-                };
+                case.simulation.mesh = m.into();
             }
             if let (Some(m), Some(s)) = (a.margin, case.sizing.as_mut()) {
                 if !(-1.0..=2.0).contains(&m) {
@@ -356,11 +362,7 @@ fn execute(cli: Cli) -> Result<(), Error> {
         Command::Run(a) => {
             let mut case = load_case(&a.case)?;
             if let Some(m) = a.mesh {
-                case.simulation.mesh = match m {
-                    MeshArg::Coarse => Fineness::Coarse,
-                    MeshArg::Normal => Fineness::Normal,
-                    MeshArg::Fine => Fineness::Fine,
-                };
+                case.simulation.mesh = m.into();
             }
             if let Some(y) = a.max_spin_up_years {
                 if !(1..=100).contains(&y) {
@@ -529,31 +531,29 @@ pub fn soil_text(a: &SoilArgs) -> Result<String, Error> {
         )
     })?;
     let changed = a.dry_density.is_some() || a.water_content.is_some() || a.quartz.is_some();
-    if let Some(v) = a.dry_density {
-        if !(100.0..=2700.0).contains(&v) {
-            return Err(bad(
-                "--dry-density",
-                format!("{v} kg/m³ is out of range; allowed: 100 to 2700"),
-            ));
-        }
+    let check =
+        |v: Option<f64>, lo: f64, hi: f64, key: &str, unit: &str| -> Result<Option<f64>, Error> {
+            match v {
+                Some(x) if !(lo..=hi).contains(&x) => Err(bad(
+                    key,
+                    format!("{x} is out of range; allowed: {lo} to {hi} {unit}"),
+                )),
+                other => Ok(other),
+            }
+        };
+    if let Some(v) = check(a.dry_density, 100.0, 2700.0, "--dry-density", "kg/m³")? {
         s.dry_density_kg_per_m3 = v;
     }
-    if let Some(v) = a.water_content {
-        if !(0.0..=5.0).contains(&v) {
-            return Err(bad(
-                "--water-content",
-                format!("{v} is out of range; allowed: 0 to 5 (fraction of dry mass)"),
-            ));
-        }
+    if let Some(v) = check(
+        a.water_content,
+        0.0,
+        5.0,
+        "--water-content",
+        "(fraction of dry mass)",
+    )? {
         s.water_content = v;
     }
-    if let Some(v) = a.quartz {
-        if !(0.0..=1.0).contains(&v) {
-            return Err(bad(
-                "--quartz",
-                format!("{v} is out of range; allowed: 0 to 1"),
-            ));
-        }
+    if let Some(v) = check(a.quartz, 0.0, 1.0, "--quartz", "(fraction)")? {
         s.quartz_fraction = v;
     }
     if changed {
