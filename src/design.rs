@@ -108,7 +108,6 @@ pub fn apply(case: &Case, vary: &[Vary], values: &[f64]) -> Case {
 /// excavation for the footing (base depth × width) and for each wing (to its underside × width).
 pub fn cost_per_m(case: &Case) -> f64 {
     let Some(s) = &case.sizing else { return 0.0 };
-    let w = case.wall.thickness_m;
     let mut cost = 0.0;
     let mut dig = case.footing.base_depth_m * case.footing.width_m;
     for ins in &case.insulation {
@@ -134,7 +133,6 @@ pub fn cost_per_m(case: &Case) -> f64 {
             .unwrap_or(250.0);
         cost += ins.thickness_m * len.max(0.0) * weight;
     }
-    let _ = w;
     cost + dig * s.excavation_cost_per_m3
 }
 
