@@ -177,7 +177,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         "m",
         f(num(&s, "frost_margin_m"), 2),
         "–".into(),
-        "negative: frost below the footing base",
+        "a negative value would mean frost below the footing base",
     );
     row(
         &mut h,
