@@ -235,3 +235,32 @@ fn birch_lane_basement_shortened() {
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(html.contains("effective U-value") && html.contains("basement wall U-value"));
 }
+
+/// The measured-series demo (36 winters), on the coarse mesh: every winter in winters.csv, the
+/// worst reported, frost depths in a plausible band around modified Berggren for the coldest
+/// winter, energy balance.
+#[test]
+fn kettle_hollow_series_coarse() {
+    let (s, out, _) = run_example(
+        "kettle-hollow-series",
+        &["--quiet", "--mesh", "coarse", "--max-spin-up-years", "3"],
+    );
+    let winters = s["winters"].as_array().unwrap();
+    assert_eq!(winters.len(), 35);
+    let worst = winters
+        .iter()
+        .map(|w| w["frost_depth_open_ground_m"].as_f64().unwrap())
+        .fold(0.0, f64::max);
+    let reported = num(&s, "frost_depth_open_ground_m");
+    assert!(reported <= worst + 1e-9);
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"]
+        .as_f64()
+        .unwrap();
+    assert!(
+        worst > 0.6 * mb && worst < 1.4 * mb,
+        "worst winter {worst} vs ModBerg {mb} for the coldest winter"
+    );
+    assert!(num(&s, "energy_balance_error").abs() < 1e-3);
+    assert!(out.join("winters.csv").exists() && out.join("winters.png").exists());
+    crate::plots::check_plots(&out, &s);
+}
