@@ -47,7 +47,9 @@ pub struct Headline {
 /// Compute the headline numbers.
 pub fn headline(case: &Case, r: &RunResult) -> Headline {
     let y = r.final_year();
-    let mean_w = y.heat_loss_kwh * 1000.0 / 8760.0;
+    // Hours of the reported period (a season of a series may have 366 days).
+    let hours = 24.0 * r.days.len().max(1) as f64;
+    let mean_w = y.heat_loss_kwh * 1000.0 / hours;
     let peak = r
         .days
         .iter()
@@ -86,8 +88,9 @@ pub fn basement_values(case: &Case, r: &RunResult) -> Option<(f64, f64, f64, f64
         case.building.exposed_perimeter_m,
         b.floor_depth_m,
     );
-    let floor_w = y.floor_heat_loss_kwh * 1000.0 / 8760.0;
-    let wall_w = y.wall_heat_loss_kwh * 1000.0 / 8760.0;
+    let hours = 24.0 * r.days.len().max(1) as f64;
+    let floor_w = y.floor_heat_loss_kwh * 1000.0 / hours;
+    let wall_w = y.wall_heat_loss_kwh * 1000.0 / hours;
     Some((
         floor_w / (a * dtemp),
         wall_w / (z * p * dtemp),
@@ -266,7 +269,8 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
     let mut fo = [0.0f64; 12];
     let mut ff = [0.0f64; 12];
     for d in &r.days {
-        let m = month_of(d.day_of_year as f64 - 0.5);
+        // 365-day calendar months; day 366 of a leap year stays in December.
+        let m = month_of((d.day_of_year as f64 - 0.5).min(364.5));
         kwh[m] += d.heat_loss_w * 24.0 / 1000.0;
         tout[m] += d.outdoor_c;
         n[m] += 1;
