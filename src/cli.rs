@@ -444,10 +444,31 @@ pub fn check_text(case: &Case) -> Result<String, Error> {
     s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
         case.strata[0].material.k_unfrozen, case.strata[0].material.k_frozen,
         case.strata[0].material.c_unfrozen / 1e6, case.strata[0].material.c_frozen / 1e6, case.strata[0].material.latent / 1e6);
+    let kind = match (&case.climate.source, &case.climate.design) {
+        (crate::case::ClimateSource::Series(sr), _) => {
+            format!("measured series {} ({} days)", sr.source, sr.values.len())
+        }
+        (_, Some(d)) => format!(
+            "design year from {} ({:.0}-year index {:.0} °C·d)",
+            d.series, d.return_period_years, d.design_freezing_index_c_days
+        ),
+        _ => "sinusoid".into(),
+    };
     s += &format!(
-        "  design air freezing index {:.0} °C·d over {:.0} d\n",
+        "  climate: {kind}; mean {:.2} °C, amplitude {:.2} K, coldest day {:.0}\n",
+        case.climate.mean_c, case.climate.amplitude_k, case.climate.coldest_day
+    );
+    s += &format!(
+        "  surface freezing index {:.0} °C·d over {:.0} d\n",
         c.freezing_index_c_days, c.freezing_season_days
     );
+    if let Some(sz) = &case.sizing {
+        s += &format!(
+            "  sizing: margin {:.2} m, {} varied dimension(s)\n",
+            sz.margin_m,
+            sz.vary.len()
+        );
+    }
     s += &format!(
         "  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
         c.iso13370_dt_m,
