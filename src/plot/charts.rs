@@ -11,6 +11,45 @@ pub const SIZE: (u32, u32) = (1000, 560);
 const OPEN: RGBColor = RGBColor(33, 74, 160);
 const FOOT: RGBColor = RGBColor(196, 78, 52);
 
+/// The legend box every chart uses.
+fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTranslate>(
+    chart: &mut ChartContext<'a, DB, CT>,
+    position: SeriesLabelPosition,
+) -> Result<()> {
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 13))
+        .position(position)
+        .draw()
+        .map_err(out_err)
+}
+
+/// The dashed footing-base reference line from x0 to x1 at depth `base` (m), with its legend entry.
+fn footing_base_line<'a, DB: DrawingBackend + 'a>(
+    chart: &mut ChartContext<
+        'a,
+        DB,
+        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+    >,
+    x0: f64,
+    x1: f64,
+    base: f64,
+) -> Result<()> {
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(x0, base), (x1, base)],
+            8,
+            6,
+            BLACK.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label(format!("footing base ({base:.2} m)"))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
+    Ok(())
+}
+
 fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {
     move |x: &f64| {
         let k = (x.round().max(0.0) as usize).min(d.days.len().saturating_sub(1));
@@ -70,25 +109,8 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .map_err(out_err)?
         .label("under the footing")
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
-    let base = d.footing_base_depth_m;
-    chart
-        .draw_series(DashedLineSeries::new(
-            vec![(0.0, base), (n, base)],
-            8,
-            6,
-            BLACK.stroke_width(2),
-        ))
-        .map_err(out_err)?
-        .label(format!("footing base ({base:.2} m)"))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        .position(SeriesLabelPosition::LowerLeft)
-        .draw()
-        .map_err(out_err)?;
+    footing_base_line(&mut chart, 0.0, n, d.footing_base_depth_m)?;
+    legend(&mut chart, SeriesLabelPosition::LowerLeft)?;
     root.present().map_err(out_err)
 }
 
@@ -161,14 +183,7 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
         .map_err(out_err)?
         .label("mean outdoor temperature (°C)")
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], OPEN.stroke_width(3)));
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        .position(SeriesLabelPosition::UpperRight)
-        .draw()
-        .map_err(out_err)?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight)?;
     root.present().map_err(out_err)
 }
 
@@ -230,14 +245,7 @@ fn draw_probes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) 
             .label(name.trim_end_matches(" temperature_c").to_string())
             .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], c.stroke_width(2)));
     }
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        .position(SeriesLabelPosition::UpperRight)
-        .draw()
-        .map_err(out_err)?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight)?;
     root.present().map_err(out_err)
 }
 
@@ -330,25 +338,8 @@ fn draw_winters<DB: DrawingBackend>(
         .map_err(out_err)?
         .label("under the footing")
         .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], FOOT.filled()));
-    let base = d.footing_base_depth_m;
-    chart
-        .draw_series(DashedLineSeries::new(
-            vec![(y0, base), (y1, base)],
-            8,
-            6,
-            BLACK.stroke_width(2),
-        ))
-        .map_err(out_err)?
-        .label(format!("footing base ({base:.2} m)"))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        .position(SeriesLabelPosition::LowerRight)
-        .draw()
-        .map_err(out_err)?;
+    footing_base_line(&mut chart, y0, y1, d.footing_base_depth_m)?;
+    legend(&mut chart, SeriesLabelPosition::LowerRight)?;
     root.present().map_err(out_err)
 }
 
