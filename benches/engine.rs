@@ -70,6 +70,23 @@ fn main() {
     );
     println!("  per time step: median {:.2} ms", 1e3 * median(per_step));
 
+    // A/B: the same case without the 5-day first spin-up year, runs alternated with the default.
+    let mut plain_case = case.clone();
+    plain_case.simulation.coarse_year_step_days = 0;
+    let (mut with, mut without) = (Vec::new(), Vec::new());
+    for _ in 0..runs {
+        for (c, v) in [(&case, &mut with), (&plain_case, &mut without)] {
+            let t0 = Instant::now();
+            simulate::run(c, &mut |_| {}).unwrap();
+            v.push(t0.elapsed().as_secs_f64());
+        }
+    }
+    let (a, b) = (median(with), median(without));
+    println!(
+        "  5-day first spin-up year: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
+        a / b
+    );
+
     // Sizing of the sizing demo (two varied dimensions, coarse mesh, rayon over the first).
     let spath =
         std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-sizing.toml");

@@ -441,6 +441,17 @@ pub fn check_text(case: &Case) -> Result<String, Error> {
         mesh.grid.nz(),
         mesh.solid_cells()
     );
+    let sim = &case.simulation;
+    let coarse = match sim.coarse_year_step_days {
+        0 => String::new(),
+        d => format!("one year at {d}-day steps, then "),
+    };
+    s += &format!(
+        "  time: spin-up {coarse}{} to {} years in {} h steps\n",
+        sim.min_spin_up_years,
+        sim.max_spin_up_years,
+        sim.dt_s / 3600.0
+    );
     s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
         case.strata[0].material.k_unfrozen, case.strata[0].material.k_frozen,
         case.strata[0].material.c_unfrozen / 1e6, case.strata[0].material.c_frozen / 1e6, case.strata[0].material.latent / 1e6);

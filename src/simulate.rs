@@ -156,6 +156,9 @@ pub struct RunResult {
     pub reported: usize,
     /// Years of spin-up before the reported year (for a series: before the first season).
     pub spin_up_years: usize,
+    /// Extra first spin-up years run in steps of several days (0 or 1), not in `years` and not
+    /// counted in `spin_up_years`.
+    pub coarse_spin_up_years: usize,
     /// Per-winter results of a measured series (empty for a design year).
     pub winters: Vec<WinterResult>,
     /// Whether the spin-up criterion was met.
@@ -167,7 +170,7 @@ pub struct RunResult {
     pub steady_heat_loss_w: f64,
     /// Solver work.
     pub stats: SolverStats,
-    /// Time steps of the whole run.
+    /// Time steps of the whole run (the coarse spin-up year's included).
     pub time_steps: usize,
     /// Cross-checks.
     pub cross_check: CrossCheck,
@@ -466,6 +469,39 @@ impl Driver<'_> {
         (open, deepest(&self.cols), deepest(&self.beside))
     }
 
+    /// Simulate `days` in steps of `step_days` days, each with the forcing averaged over it
+    /// (air: the sinusoid's exact mean, or the mean of the measured days; indoor: the mean of the
+    /// days' monthly values; snow: that of the step's middle day), recording nothing.
+    fn coarse_period(&mut self, days: &[DayIn], step_days: usize) -> Result<()> {
+        let case = self.case;
+        for chunk in days.chunks(step_days.max(1)) {
+            let n = chunk.len() as f64;
+            let mid = chunk[chunk.len() / 2];
+            self.solver
+                .set_extra_horizontal_resistance(OUTDOOR, case.climate.snow_r(mid.month));
+            let air = match mid.measured_c {
+                Some(_) => chunk.iter().filter_map(|d| d.measured_c).sum::<f64>() / n,
+                None => case.climate.mean_over(chunk[0].cal, chunk[0].cal + n),
+            };
+            let indoor = if case.building.unheated {
+                air
+            } else {
+                chunk
+                    .iter()
+                    .map(|d| case.building.indoor_monthly_c[d.month])
+                    .sum::<f64>()
+                    / n
+            };
+            let zt = self.zone_temps(indoor, case.climate.surface(air));
+            let dt = n * 86400.0;
+            self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
+            self.sim_time += dt;
+            self.time_steps += 1;
+        }
+        self.net.temperatures(&self.h, &mut self.t);
+        Ok(())
+    }
+
     /// Simulate `days`, recording everything.
     fn period(
         &mut self,
@@ -743,6 +779,14 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         }
     };
 
+    // A first, cheap spin-up year in steps of several days: starting from the steady state, the
+    // first daily year is otherwise off by the missing annual wave (demo: 1.4 % in heat loss);
+    // after this year it is within 0.05 % of the periodic state, so the periodicity test can pass
+    // one daily year sooner. Its steps are counted in `time_steps`; it is not recorded.
+    let coarse_spin_up_years = usize::from(case.simulation.coarse_year_step_days > 0);
+    if coarse_spin_up_years > 0 {
+        drv.coarse_period(&spin_days, case.simulation.coarse_year_step_days)?;
+    }
     let max_years = case.simulation.max_spin_up_years + 1;
     let total = max_years + seasons.len();
     let mut years: Vec<Year> = Vec::new();
@@ -804,6 +848,7 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
         years,
         reported,
         spin_up_years,
+        coarse_spin_up_years,
         winters,
         spin_up_converged: converged,
         field: last.field,

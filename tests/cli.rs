@@ -322,3 +322,18 @@ fn soil_file_and_method_in_a_case() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("site.toml"));
 }
+
+#[test]
+fn coarse_year_step_out_of_range() {
+    let src = VALID.replace(
+        "coldest_day = 20\n",
+        "coldest_day = 20\n[simulation]\ncoarse_year_step_days = 45\n",
+    );
+    expect_input_error(
+        "coarse",
+        &src,
+        29,
+        "simulation.coarse_year_step_days",
+        &["45 is out of range", "0 (none) to 30 days"],
+    );
+}

@@ -130,6 +130,8 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
         "energy_balance_error": y.energy_balance_error,
         "spin_up_years": r.spin_up_years(),
         "spin_up_converged": r.spin_up_converged,
+        "coarse_spin_up_years": r.coarse_spin_up_years,
+        "coarse_year_step_days": case.simulation.coarse_year_step_days,
         "cells": r.mesh.solid_cells(),
         "grid": { "nx": r.mesh.grid.nx(), "nz": r.mesh.grid.nz() },
         "time_steps": r.time_steps,
@@ -474,7 +476,15 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
         );
         s += &format!("    frost beside the wall (0.5 m)     m  {fw:>10.2}\n");
     }
-    s += &format!("\n  Numerics: {} cells, {} steps, {} spin-up years ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
+    let coarse = if r.coarse_spin_up_years > 0 {
+        format!(
+            " after {} at {}-day steps",
+            r.coarse_spin_up_years, case.simulation.coarse_year_step_days
+        )
+    } else {
+        String::new()
+    };
+    s += &format!("\n  Numerics: {} cells, {} steps, spin-up {} year(s){coarse} ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
         r.mesh.solid_cells(), r.time_steps, r.spin_up_years(),
         if r.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
         r.stats.newton_iterations as f64 / r.time_steps.max(1) as f64, y.energy_balance_error, r.wall_time_s);
