@@ -277,15 +277,7 @@ fn execute(cli: Cli) -> Result<(), Error> {
                 files.push(crate::report::html::write_report(&a.out)?);
             }
             print!("{}", crate::report::sizing::text(&case, &result));
-            println!("\n  Files in {}:", a.out.display());
-            for f in files {
-                println!(
-                    "    {}",
-                    f.file_name()
-                        .map(|s| s.to_string_lossy())
-                        .unwrap_or_default()
-                );
-            }
+            print_files(&a.out, &files);
             Ok(())
         }
         Command::Soil(a) => {
@@ -406,15 +398,7 @@ fn execute(cli: Cli) -> Result<(), Error> {
                 files.push(crate::report::html::write_report(&a.out)?);
             }
             print!("{}", report::result_table(&case, &result));
-            println!("\n  Files in {}:", a.out.display());
-            for f in files {
-                println!(
-                    "    {}",
-                    f.file_name()
-                        .map(|s| s.to_string_lossy())
-                        .unwrap_or_default()
-                );
-            }
+            print_files(&a.out, &files);
             Ok(())
         }
     }
@@ -630,4 +614,17 @@ pub fn soil_text(a: &SoilArgs) -> Result<String, Error> {
     );
     t += &format!("  diffusivity (unfrozen): {:.3e} m²/s\n", ku / cu);
     Ok(t)
+}
+
+/// List the files written in `dir`, by name.
+fn print_files(dir: &std::path::Path, files: &[std::path::PathBuf]) {
+    println!("\n  Files in {}:", dir.display());
+    for f in files {
+        println!(
+            "    {}",
+            f.file_name()
+                .map(|s| s.to_string_lossy())
+                .unwrap_or_default()
+        );
+    }
 }

@@ -1,6 +1,7 @@
 //! Measured climate series: reading and its errors, statistics against their definitions, the
 //! Gumbel design index, and runs on series and design years.
-use crate::cli::{bin, scratch};
+use crate::cli::scratch;
+use crate::common::{read_json, run_ok};
 use frostline::physics::climate::{
     annual_sinusoid, days_from_civil, freezing_indices, read_series, read_series_from, summarize,
     FitMethod, Gumbel, ReadOptions,
@@ -225,21 +226,16 @@ fn gumbel_fit_and_return_level() {
 fn climate_command_writes_summary() {
     let out = scratch("climate");
     let csv = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("climate/kettle-hollow.csv");
-    let r = bin()
-        .arg("climate")
-        .arg(&csv)
-        .args(["--return-period", "50", "--out"])
-        .arg(&out)
-        .output()
-        .unwrap();
-    assert_eq!(
-        r.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&r.stderr)
-    );
-    let s: serde_json::Value =
-        serde_json::from_slice(&std::fs::read(out.join("climate_summary.json")).unwrap()).unwrap();
+    let out_s = out.as_os_str();
+    run_ok(&[
+        "climate".as_ref(),
+        csv.as_os_str(),
+        "--return-period".as_ref(),
+        "50".as_ref(),
+        "--out".as_ref(),
+        out_s,
+    ]);
+    let s = read_json(&out.join("climate_summary.json"));
     for k in [
         "years",
         "mean_annual_temperature_c",
@@ -302,21 +298,15 @@ max_spin_up_years = 2
     let case = dir.join(format!("{name}.toml"));
     std::fs::write(&case, src).unwrap();
     let out = dir.join(name);
-    let r = bin()
-        .arg("run")
-        .arg(&case)
-        .arg("--out")
-        .arg(&out)
-        .args(["--quiet", "--no-plots"])
-        .output()
-        .unwrap();
-    assert_eq!(
-        r.status.code(),
-        Some(0),
-        "{name}: {}",
-        String::from_utf8_lossy(&r.stderr)
-    );
-    serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap()
+    run_ok(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--quiet".as_ref(),
+        "--no-plots".as_ref(),
+    ]);
+    read_json(&out.join("summary.json"))
 }
 
 /// A run on a measured series and the same case on the series' fitted sinusoid give open-ground

@@ -27,3 +27,27 @@ pub fn column_value(ze: &[f64], t: &[f64], z: f64) -> f64 {
     let f = (z - zc[k - 1]) / (zc[k] - zc[k - 1]);
     t[k - 1] + f * (t[k] - t[k - 1])
 }
+
+/// Run the frostline binary with `args`; assert exit code 0 (showing stderr otherwise) and return
+/// its stdout.
+pub fn run_ok<S: AsRef<std::ffi::OsStr>>(args: &[S]) -> String {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_frostline"))
+        .args(args)
+        .output()
+        .unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "frostline {:?}: {}",
+        args.iter()
+            .map(|a| a.as_ref().to_owned())
+            .collect::<Vec<_>>(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+/// Parse the JSON file at `path`.
+pub fn read_json(path: &std::path::Path) -> serde_json::Value {
+    serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap()
+}

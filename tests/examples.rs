@@ -1,5 +1,6 @@
 //! Every bundled example runs (the large one shortened) with range assertions on its results.
 use crate::cli::{bin, scratch};
+use crate::common::{read_json, run_ok};
 use serde_json::Value;
 use std::path::Path;
 
@@ -29,23 +30,15 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
     let case = Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("examples")
         .join(format!("{name}.toml"));
-    let res = bin()
-        .arg("run")
-        .arg(&case)
-        .arg("--out")
-        .arg(&out)
-        .args(extra)
-        .output()
-        .unwrap();
-    let stdout = String::from_utf8_lossy(&res.stdout).to_string();
-    assert_eq!(
-        res.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&res.stderr)
-    );
-    let s: Value =
-        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    let mut args = vec![
+        "run".into(),
+        case.into_os_string(),
+        "--out".into(),
+        out.clone().into_os_string(),
+    ];
+    args.extend(extra.iter().map(std::ffi::OsString::from));
+    let stdout = run_ok(&args);
+    let s = read_json(&out.join("summary.json"));
     for k in KEYS {
         assert!(
             s[k].is_number(),
@@ -142,20 +135,17 @@ fn kettle_hollow_house() {
     crate::plots::check_plots(&out, &s);
     crate::plots::check_report(&out, &s);
     // Re-render from the saved results for another day and window, with the animation.
-    let res = bin()
-        .args(["plot"])
-        .arg(&out)
-        .args(["--day", "30", "--zoom", "-1.5,2.5,-0.3,2.2", "--animate"])
-        .output()
-        .unwrap();
-    assert_eq!(
-        res.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&res.stderr)
-    );
-    let index: Value =
-        serde_json::from_slice(&std::fs::read(out.join("plots.json")).unwrap()).unwrap();
+    let out_s = out.as_os_str();
+    run_ok(&[
+        "plot".as_ref(),
+        out_s,
+        "--day".as_ref(),
+        "30".as_ref(),
+        "--zoom".as_ref(),
+        "-1.5,2.5,-0.3,2.2".as_ref(),
+        "--animate".as_ref(),
+    ]);
+    let index = read_json(&out.join("plots.json"));
     assert_eq!(index["day_of_year"].as_u64(), Some(30));
     crate::plots::check_plots(&out, &s);
     assert!(out.join("soil_temperature.gif").exists());

@@ -1,6 +1,7 @@
 //! Frost-protection sizing: the example, the chosen design re-run, a step smaller, a mild climate,
 //! monotonicity, and an unheated building.
-use crate::cli::{bin, scratch};
+use crate::cli::scratch;
+use crate::common::{read_json, run_ok};
 use frostline::case::load_case;
 use frostline::design::apply;
 use frostline::simulate::run;
@@ -12,22 +13,15 @@ fn example() -> std::path::PathBuf {
 }
 
 fn size(case: &Path, out: &Path, extra: &[&str]) -> Value {
-    let r = bin()
-        .arg("size")
-        .arg(case)
-        .arg("--out")
-        .arg(out)
-        .arg("--quiet")
-        .args(extra)
-        .output()
-        .unwrap();
-    assert_eq!(
-        r.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&r.stderr)
-    );
-    let text = String::from_utf8_lossy(&r.stdout);
+    let mut args = vec![
+        "size".into(),
+        case.as_os_str().to_owned(),
+        "--out".into(),
+        out.as_os_str().to_owned(),
+        "--quiet".into(),
+    ];
+    args.extend(extra.iter().map(std::ffi::OsString::from));
+    let text = run_ok(&args);
     assert!(text.contains("licensed engineer"), "{text}");
     let s: Value =
         serde_json::from_slice(&std::fs::read(out.join("sizing.json")).unwrap()).unwrap();
@@ -64,22 +58,16 @@ fn sizing_example_and_its_chosen_design() {
     assert!(s["caution"].as_str().unwrap().contains("licensed engineer"));
     // Re-run the chosen design as a plain case.
     let rerun = out.join("rerun");
-    let r = bin()
-        .arg("run")
-        .arg(out.join("chosen_case.toml"))
-        .arg("--out")
-        .arg(&rerun)
-        .args(["--quiet", "--no-plots"])
-        .output()
-        .unwrap();
-    assert_eq!(
-        r.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&r.stderr)
-    );
-    let summary: Value =
-        serde_json::from_slice(&std::fs::read(rerun.join("summary.json")).unwrap()).unwrap();
+    let chosen_case = out.join("chosen_case.toml");
+    run_ok(&[
+        "run".as_ref(),
+        chosen_case.as_os_str(),
+        "--out".as_ref(),
+        rerun.as_os_str(),
+        "--quiet".as_ref(),
+        "--no-plots".as_ref(),
+    ]);
+    let summary = read_json(&rerun.join("summary.json"));
     let m = summary["frost_margin_m"].as_f64().unwrap();
     assert!(
         (m - chosen["frost_margin_m"].as_f64().unwrap()).abs() < 1e-6 && m >= margin,
