@@ -326,7 +326,12 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         ("cells", "solid cells"),
         ("time_steps", "time steps"),
         ("time_step_s", "time step (s)"),
-        ("spin_up_years", "spin-up years"),
+        ("spin_up_years", "spin-up years (at the time step)"),
+        (
+            "coarse_spin_up_years",
+            "extra first spin-up years (5-day steps by default)",
+        ),
+        ("coarse_year_step_days", "their step (days)"),
         ("spin_up_converged", "spin-up periodic"),
         ("newton_iterations_per_step", "Newton iterations per step"),
         ("factorizations", "Cholesky factorisations"),

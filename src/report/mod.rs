@@ -394,6 +394,17 @@ pub fn write_outputs(case: &Case, r: &RunResult, dir: &Path) -> Result<Vec<PathB
     Ok(files)
 }
 
+/// One row of the result table: label and unit in 35 characters, then each value in 10, with
+/// `prec` decimals.
+fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
+    let w = 35usize.saturating_sub(unit.chars().count());
+    let mut s = format!("    {label:<w$}{unit}");
+    for v in vals {
+        s += &format!("  {v:>10.prec$}");
+    }
+    s + "\n"
+}
+
 /// The short result table printed after a run.
 pub fn result_table(case: &Case, r: &RunResult) -> String {
     let h = headline(case, r);
@@ -406,75 +417,89 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
         case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m
     );
     s += "\n  Heat loss to the ground                     model      ISO 13370\n";
-    s += &format!(
-        "    annual                          kWh  {:>10.0}\n",
-        h.annual_heat_loss_kwh
+    s += &row("annual", "kWh", 0, &[h.annual_heat_loss_kwh]);
+    s += &row(
+        "mean",
+        "W",
+        1,
+        &[h.mean_heat_loss_w, c.iso13370_mean_heat_loss_w],
     );
-    s += &format!(
-        "    mean                              W  {:>10.1}  {:>10.1}\n",
-        h.mean_heat_loss_w, c.iso13370_mean_heat_loss_w
+    s += &row("peak (daily mean)", "W", 1, &[h.peak_heat_loss_w]);
+    s += &row(
+        "per metre of exposed perimeter",
+        "W/m",
+        2,
+        &[h.heat_loss_per_perimeter_w_per_m],
     );
-    s += &format!(
-        "    peak (daily mean)                 W  {:>10.1}\n",
-        h.peak_heat_loss_w
-    );
-    s += &format!(
-        "    per metre of exposed perimeter  W/m  {:>10.2}\n",
-        h.heat_loss_per_perimeter_w_per_m
-    );
-    s += &format!(
-        "    floor U-value               W/(m²K)  {:>10.3}  {:>10.3}\n",
-        h.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k
+    s += &row(
+        "floor U-value",
+        "W/(m²K)",
+        3,
+        &[h.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k],
     );
     s += "\n  Frost depth (below ground level)            model      Stefan  mod. Berggren\n";
-    s += &format!(
-        "    open ground                       m  {:>10.2}  {:>10.2}  {:>10.2}\n",
-        h.frost_depth_open_ground_m, c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m
+    s += &row(
+        "open ground",
+        "m",
+        2,
+        &[
+            h.frost_depth_open_ground_m,
+            c.stefan_frost_depth_m,
+            c.modified_berggren_frost_depth_m,
+        ],
     );
-    s += &format!(
-        "    under the footing                 m  {:>10.2}\n",
-        h.frost_depth_under_footing_m
+    s += &row(
+        "under the footing",
+        "m",
+        2,
+        &[h.frost_depth_under_footing_m],
     );
-    s += &format!(
-        "    footing base                      m  {:>10.2}\n",
-        case.footing.base_depth_m
+    s += &row("footing base", "m", 2, &[case.footing.base_depth_m]);
+    let margin = row("margin (base − frost)", "m", 2, &[h.frost_margin_m]);
+    s += &if h.frost_margin_m < 0.0 {
+        margin.replace('\n', "  FROST BELOW FOOTING BASE\n")
+    } else {
+        margin
+    };
+    s += &row(
+        "deepest on day of year",
+        "",
+        0,
+        &[h.date_of_max_frost_depth as f64],
     );
-    s += &format!(
-        "    margin (base − frost)             m  {:>10.2}  {}\n",
-        h.frost_margin_m,
-        if h.frost_margin_m < 0.0 {
-            "FROST BELOW FOOTING BASE"
-        } else {
-            ""
-        }
-    );
-    s += &format!(
-        "    deepest on day of year               {:>10}\n",
-        h.date_of_max_frost_depth
-    );
-    s += &format!(
-        "    surface freezing index (n × air) °C·d  {:>10.0}\n",
-        c.freezing_index_c_days
+    s += &row(
+        "freezing index (n × air)",
+        "°C·d",
+        0,
+        &[c.freezing_index_c_days],
     );
     if let (Some((uf, uw, ue, fw)), Some(bc)) = (basement_values(case, r), c.basement.as_ref()) {
         s += "\n  Heated basement                             model      ISO 13370\n";
-        s += &format!(
-            "    floor U-value               W/(m²K)  {uf:>10.3}  {:>10.3}\n",
-            bc.iso13370_basement_floor_u_value_w_per_m2k
+        s += &row(
+            "floor U-value",
+            "W/(m²K)",
+            3,
+            &[uf, bc.iso13370_basement_floor_u_value_w_per_m2k],
         );
-        s += &format!(
-            "    wall U-value (below ground) W/(m²K)  {uw:>10.3}  {:>10.3}\n",
-            bc.iso13370_wall_u_value_w_per_m2k
+        s += &row(
+            "wall U-value (below ground)",
+            "W/(m²K)",
+            3,
+            &[uw, bc.iso13370_wall_u_value_w_per_m2k],
         );
-        s += &format!(
-            "    effective U-value           W/(m²K)  {ue:>10.3}  {:>10.3}\n",
-            bc.iso13370_effective_u_value_w_per_m2k
+        s += &row(
+            "effective U-value",
+            "W/(m²K)",
+            3,
+            &[ue, bc.iso13370_effective_u_value_w_per_m2k],
         );
-        s += &format!(
-            "    wall / floor heat loss          kWh  {:>10.0}  {:>10.0}\n",
-            y.wall_heat_loss_kwh, y.floor_heat_loss_kwh
+        s += &row(
+            "wall / floor heat loss",
+            "kWh",
+            0,
+            &[y.wall_heat_loss_kwh, y.floor_heat_loss_kwh],
         );
-        s += &format!("    frost beside the wall (0.5 m)     m  {fw:>10.2}\n");
+        s += &row("frost beside the wall (0.5 m)", "m", 2, &[fw]);
     }
     let coarse = if r.coarse_spin_up_years > 0 {
         format!(
