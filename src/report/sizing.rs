@@ -172,7 +172,7 @@ pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> 
     Ok(files)
 }
 
-/// The case file with the chosen values written in and the [sizing] table removed (relative
+/// The case file with the chosen values written in and the `[sizing]` table removed (relative
 /// paths made absolute so the file runs from anywhere).
 pub fn chosen_case_toml(case: &Case, d: &Design) -> Result<String> {
     let mut t: toml::Table =
