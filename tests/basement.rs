@@ -1,4 +1,5 @@
 //! Heated basements: floor, wall and effective U-values against ISO 13370, and the limits.
+use crate::common::iso_ground;
 use frostline::case::parse_case;
 use frostline::methods;
 use frostline::simulate::{steady_flows, GROUP_FLOOR, GROUP_WALL_BELOW};
@@ -6,7 +7,7 @@ use frostline::simulate::{steady_flows, GROUP_FLOOR, GROUP_WALL_BELOW};
 /// A heated basement in ISO 13370's terms: floor at depth z, ground λ = 2 W/(m·K), wall and
 /// footing of the ground's properties (so the wall thickness acts as ground, as in d_t), a 10 mm
 /// floor layer of resistance R_f beyond the ground it replaces, the wall cut at ground level,
-/// optional full-height insulation on the wall's outside.
+/// optional full-height insulation on the wall's inside (room) face.
 fn basement_case(z: f64, r_f: f64, wall_ins_m: f64) -> String {
     let d = 0.01;
     let k_slab = d / (r_f + d / 2.0);
@@ -27,26 +28,8 @@ floor_depth_m = {z}
 [slab]
 thickness_m = {d}
 material = {{ conductivity_w_per_mk = {k_slab}, heat_capacity_j_per_m3k = 2.0e6 }}
-[wall]
-thickness_m = 0.3
-material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
-height_above_ground_m = 0.0
-[footing]
-width_m = 0.3
-thickness_m = 0.2
-base_depth_m = {base}
-material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
-{ins}
-[[soil]]
-k_unfrozen_w_per_mk = 2.0
-c_unfrozen_j_per_m3k = 2.0e6
-latent_heat_j_per_m3 = 0.0
-[climate]
-mean_c = 5.0
-amplitude_k = 10.0
-coldest_day = 20
-"#,
-        base = z + 0.3
+{tail}"#,
+        tail = iso_ground(z + 0.3, &ins)
     )
 }
 

@@ -51,3 +51,31 @@ pub fn run_ok<S: AsRef<std::ffi::OsStr>>(args: &[S]) -> String {
 pub fn read_json(path: &std::path::Path) -> serde_json::Value {
     serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap()
 }
+
+/// The ground part of the ISO 13370-style test cases: wall (0.3 m) and footing given the ground's
+/// properties (λ 2 W/(m·K), C 2 MJ/(m³·K)), so that the wall thickness acts as ground as in d_t;
+/// `extra` (insulation pieces) after the footing; one stratum of the same ground without latent
+/// heat; a sinusoidal climate (only its mean matters for the steady solves).
+pub fn iso_ground(footing_base_m: f64, extra: &str) -> String {
+    format!(
+        r#"[wall]
+thickness_m = 0.3
+material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
+height_above_ground_m = 0.0
+[footing]
+width_m = 0.3
+thickness_m = 0.2
+base_depth_m = {footing_base_m}
+material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
+{extra}
+[[soil]]
+k_unfrozen_w_per_mk = 2.0
+c_unfrozen_j_per_m3k = 2.0e6
+latent_heat_j_per_m3 = 0.0
+[climate]
+mean_c = 5.0
+amplitude_k = 10.0
+coldest_day = 20
+"#
+    )
+}

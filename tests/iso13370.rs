@@ -1,5 +1,6 @@
 //! Verification rungs 5 and 6: slab-on-ground steady U and edge-insulation Ψ against ISO 13370,
 //! and domain-size and mesh independence of the demo case.
+use crate::common::iso_ground;
 use frostline::case::{load_case, parse_case, Fineness};
 use frostline::methods::{self, EdgeInsulation};
 use frostline::simulate::steady_heat_flow;
@@ -15,6 +16,7 @@ fn iso_case(area: f64, perim: f64, r_f: f64, extra: &str) -> String {
     let k_slab = d / (r_f + d / lambda);
     let mesh = "normal";
     let bp = area / (0.5 * perim);
+    let tail = iso_ground(0.5, extra);
     format!(
         r#"
 name = "ISO 13370 strip"
@@ -26,25 +28,7 @@ indoor_temperature_c = 20.0
 thickness_m = {d}
 material = {{ conductivity_w_per_mk = {k_slab}, heat_capacity_j_per_m3k = 2.0e6 }}
 top_above_ground_m = 0.0
-[wall]
-thickness_m = 0.3
-material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
-height_above_ground_m = 0.0
-[footing]
-width_m = 0.3
-thickness_m = 0.2
-base_depth_m = 0.5
-material = {{ conductivity_w_per_mk = 2.0, heat_capacity_j_per_m3k = 2.0e6 }}
-{extra}
-[[soil]]
-k_unfrozen_w_per_mk = 2.0
-c_unfrozen_j_per_m3k = 2.0e6
-latent_heat_j_per_m3 = 0.0
-[climate]
-mean_c = 5.0
-amplitude_k = 10.0
-coldest_day = 20
-[simulation]
+{tail}[simulation]
 mesh = "{mesh}"
 "#
     )
