@@ -783,9 +783,17 @@ pub fn run(case: &Case, progress: &mut dyn FnMut(Progress)) -> Result<RunResult>
     // first daily year is otherwise off by the missing annual wave (demo: 1.4 % in heat loss);
     // after this year it is within 0.05 % of the periodic state, so the periodicity test can pass
     // one daily year sooner. Its steps are counted in `time_steps`; it is not recorded.
-    let coarse_spin_up_years = usize::from(case.simulation.coarse_year_step_days > 0);
+    // If its long steps do not converge, the run goes on from the start state without it.
+    let mut coarse_spin_up_years = usize::from(case.simulation.coarse_year_step_days > 0);
     if coarse_spin_up_years > 0 {
-        drv.coarse_period(&spin_days, case.simulation.coarse_year_step_days)?;
+        let (h0, t0, steps0, time0) = (drv.h.clone(), drv.t.clone(), drv.time_steps, drv.sim_time);
+        if drv
+            .coarse_period(&spin_days, case.simulation.coarse_year_step_days)
+            .is_err()
+        {
+            (drv.h, drv.t, drv.time_steps, drv.sim_time) = (h0, t0, steps0, time0);
+            coarse_spin_up_years = 0;
+        }
     }
     let max_years = case.simulation.max_spin_up_years + 1;
     let total = max_years + seasons.len();
