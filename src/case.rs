@@ -691,6 +691,26 @@ impl Ctx<'_> {
         }
         Ok(x)
     }
+    /// An optional whole number in `lo..=hi` (`default` when absent); `allowed` is the text
+    /// after "allowed: " in the error.
+    fn int_opt(
+        &self,
+        v: &Option<S<i64>>,
+        key: &str,
+        (lo, hi): (i64, i64),
+        allowed: &str,
+        default: usize,
+    ) -> Result<usize> {
+        match v {
+            None => Ok(default),
+            Some(v) if (lo..=hi).contains(v.get_ref()) => Ok(*v.get_ref() as usize),
+            Some(v) => Err(self.err(
+                v.span(),
+                key,
+                format!("{} is out of range; allowed: {allowed}", v.get_ref()),
+            )),
+        }
+    }
     fn opt(
         &self,
         v: &Option<S<f64>>,
@@ -1036,17 +1056,13 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     // Climate.
     let cl = &raw.climate;
     let base = case_dir(c.file);
-    let gap = match &cl.max_gap_days {
-        None => 3,
-        Some(v) if (0..=30).contains(v.get_ref()) => *v.get_ref() as usize,
-        Some(v) => {
-            return Err(c.err(
-                v.span(),
-                "climate.max_gap_days",
-                format!("{} is out of range; allowed: 0 to 30 days", v.get_ref()),
-            ))
-        }
-    };
+    let gap = c.int_opt(
+        &cl.max_gap_days,
+        "climate.max_gap_days",
+        (0, 30),
+        "0 to 30 days",
+        3,
+    )?;
     let read = |v: &S<String>, key: &str| -> Result<crate::physics::climate::DailySeries> {
         let p = base.join(v.get_ref());
         let opts = crate::physics::climate::ReadOptions {
@@ -1231,20 +1247,13 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
             return Err(c.err(v.span(), "simulation.time_step_h", format!("{dt_h} h does not divide a day; allowed: 24, 12, 8, 6, 4, 3, 2, 1, 0.5 or 0.25 h")));
         }
     }
-    let max_years = match &s.max_spin_up_years {
-        None => 10,
-        Some(v) => {
-            let y = *v.get_ref();
-            if !(1..=100).contains(&y) {
-                return Err(c.err(
-                    v.span(),
-                    "simulation.max_spin_up_years",
-                    format!("{y} is out of range; allowed: 1 to 100 years"),
-                ));
-            }
-            y as usize
-        }
-    };
+    let max_years = c.int_opt(
+        &s.max_spin_up_years,
+        "simulation.max_spin_up_years",
+        (1, 100),
+        "1 to 100 years",
+        10,
+    )?;
     let mesh = match &s.mesh {
         None => Fineness::Normal,
         Some(v) => Fineness::parse(v.get_ref()).ok_or_else(|| {
@@ -1262,34 +1271,20 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let simulation = Simulation {
         dt_s: dt_h * 3600.0,
         max_spin_up_years: max_years,
-        min_spin_up_years: match &s.min_spin_up_years {
-            None => 1,
-            Some(v) if (1..=max_years as i64).contains(v.get_ref()) => *v.get_ref() as usize,
-            Some(v) => {
-                return Err(c.err(
-                    v.span(),
-                    "simulation.min_spin_up_years",
-                    format!(
-                        "{} is out of range; allowed: 1 to max_spin_up_years ({max_years})",
-                        v.get_ref()
-                    ),
-                ))
-            }
-        },
-        coarse_year_step_days: match &s.coarse_year_step_days {
-            None => 5,
-            Some(v) if (0..=30).contains(v.get_ref()) => *v.get_ref() as usize,
-            Some(v) => {
-                return Err(c.err(
-                    v.span(),
-                    "simulation.coarse_year_step_days",
-                    format!(
-                        "{} is out of range; allowed: 0 (none) to 30 days",
-                        v.get_ref()
-                    ),
-                ))
-            }
-        },
+        min_spin_up_years: c.int_opt(
+            &s.min_spin_up_years,
+            "simulation.min_spin_up_years",
+            (1, max_years as i64),
+            &format!("1 to max_spin_up_years ({max_years})"),
+            1,
+        )?,
+        coarse_year_step_days: c.int_opt(
+            &s.coarse_year_step_days,
+            "simulation.coarse_year_step_days",
+            (0, 30),
+            "0 (none) to 30 days",
+            5,
+        )?,
         mesh,
         domain_width_m: c.opt(
             &s.domain_width_m,

@@ -441,6 +441,16 @@ struct Driver<'a> {
 }
 
 impl Driver<'_> {
+    /// Indoor air temperature in `month` (0–11) when the outdoor air is at `air`, °C: the case's
+    /// monthly value, or the outdoor air for an unheated building.
+    fn indoor_c(&self, month: usize, air: f64) -> f64 {
+        if self.case.building.unheated {
+            air
+        } else {
+            self.case.building.indoor_monthly_c[month]
+        }
+    }
+
     fn zone_temps(&self, indoor: f64, outdoor: f64) -> Vec<f64> {
         let mut z = vec![indoor, outdoor];
         if let Some(tb) = self.case.simulation.bottom_temperature_c {
@@ -483,15 +493,11 @@ impl Driver<'_> {
                 Some(_) => chunk.iter().filter_map(|d| d.measured_c).sum::<f64>() / n,
                 None => case.climate.mean_over(chunk[0].cal, chunk[0].cal + n),
             };
-            let indoor = if case.building.unheated {
-                air
-            } else {
-                chunk
-                    .iter()
-                    .map(|d| case.building.indoor_monthly_c[d.month])
-                    .sum::<f64>()
-                    / n
-            };
+            let indoor = chunk
+                .iter()
+                .map(|d| self.indoor_c(d.month, air))
+                .sum::<f64>()
+                / n;
             let zt = self.zone_temps(indoor, case.climate.surface(air));
             let dt = n * 86400.0;
             self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
@@ -542,7 +548,6 @@ impl Driver<'_> {
         let mut groups_j = [0.0; 4];
         let mut loss_j = 0.0;
         for (d, day) in days.iter().enumerate() {
-            let heated_indoor = case.building.indoor_monthly_c[day.month];
             self.solver
                 .set_extra_horizontal_resistance(OUTDOOR, case.climate.snow_r(day.month));
             let (mut day_in, mut out_mean) = (0.0, 0.0);
@@ -555,13 +560,7 @@ impl Driver<'_> {
                     }
                 };
                 out_mean += air / steps_per_day as f64;
-                // An unheated building's indoor air follows the outdoor air.
-                let indoor = if case.building.unheated {
-                    air
-                } else {
-                    heated_indoor
-                };
-                let zt = self.zone_temps(indoor, case.climate.surface(air));
+                let zt = self.zone_temps(self.indoor_c(day.month, air), case.climate.surface(air));
                 let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
                 self.sim_time += dt;
                 self.time_steps += 1;
@@ -576,11 +575,7 @@ impl Driver<'_> {
             loss_j += day_in;
             self.net.temperatures(&self.h, &mut self.t);
             let (fo, ff, fw) = self.frost();
-            let indoor = if case.building.unheated {
-                out_mean
-            } else {
-                heated_indoor
-            };
+            let indoor = self.indoor_c(day.month, out_mean);
             rec.days.push(Day {
                 day_of_year: day.doy,
                 outdoor_c: out_mean,

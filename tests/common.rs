@@ -31,10 +31,7 @@ pub fn column_value(ze: &[f64], t: &[f64], z: f64) -> f64 {
 /// Run the frostline binary with `args`; assert exit code 0 (showing stderr otherwise) and return
 /// its stdout.
 pub fn run_ok<S: AsRef<std::ffi::OsStr>>(args: &[S]) -> String {
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_frostline"))
-        .args(args)
-        .output()
-        .unwrap();
+    let out = crate::cli::bin().args(args).output().unwrap();
     assert_eq!(
         out.status.code(),
         Some(0),

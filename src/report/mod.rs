@@ -44,12 +44,15 @@ pub struct Headline {
     pub date_of_max_frost_depth: usize,
 }
 
+/// Hours of the reported period (a season of a series may have 366 days).
+fn reported_hours(r: &RunResult) -> f64 {
+    24.0 * r.days.len().max(1) as f64
+}
+
 /// Compute the headline numbers.
 pub fn headline(case: &Case, r: &RunResult) -> Headline {
     let y = r.final_year();
-    // Hours of the reported period (a season of a series may have 366 days).
-    let hours = 24.0 * r.days.len().max(1) as f64;
-    let mean_w = y.heat_loss_kwh * 1000.0 / hours;
+    let mean_w = y.heat_loss_kwh * 1000.0 / reported_hours(r);
     let peak = r
         .days
         .iter()
@@ -88,7 +91,7 @@ pub fn basement_values(case: &Case, r: &RunResult) -> Option<(f64, f64, f64, f64
         case.building.exposed_perimeter_m,
         b.floor_depth_m,
     );
-    let hours = 24.0 * r.days.len().max(1) as f64;
+    let hours = reported_hours(r);
     let floor_w = y.floor_heat_loss_kwh * 1000.0 / hours;
     let wall_w = y.wall_heat_loss_kwh * 1000.0 / hours;
     Some((
