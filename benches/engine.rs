@@ -41,6 +41,51 @@ fn main() {
         1e3 * median(setup)
     );
 
+    // Per step A/B, split factorisation (two halves side by side) against the whole one: 60 daily
+    // steps of freezing from the steady state (surface −10 °C), runs alternated.
+    let steps_ab = |split: bool| {
+        let params = SolverParams {
+            split_halves: split,
+            ..SolverParams::default()
+        };
+        let mut s = Solver::new(&net, params).unwrap();
+        let st = s.steady(&[20.0, 3.0], None).unwrap();
+        let mut h = net.enthalpies(&st.t);
+        let f0 = s.stats().factorizations;
+        let t0 = Instant::now();
+        for k in 0..60 {
+            s.step(&mut h, &[20.0, -10.0], 86400.0, k as f64 * 86400.0)
+                .unwrap();
+        }
+        let dt = t0.elapsed().as_secs_f64() / 60.0;
+        (dt, s.stats().factorizations - f0, h)
+    };
+    let (mut split_t, mut whole_t) = (Vec::new(), Vec::new());
+    let mut facts = (0, 0);
+    let mut max_dh: f64 = 0.0;
+    for _ in 0..runs.max(5) {
+        let (a, fa, ha) = steps_ab(true);
+        let (b, fb, hb) = steps_ab(false);
+        split_t.push(a);
+        whole_t.push(b);
+        facts = (fa, fb);
+        max_dh = ha
+            .iter()
+            .zip(&hb)
+            .map(|(x, y)| (x - y).abs())
+            .fold(max_dh, f64::max);
+    }
+    let (a, b) = (median(split_t), median(whole_t));
+    println!(
+        "freezing steps: split {:.2} ms, whole {:.2} ms per step (ratio {:.2}; {} / {} factorisations; max |ΔH| {:.1e} J/m³)",
+        1e3 * a,
+        1e3 * b,
+        a / b,
+        facts.0,
+        facts.1,
+        max_dh
+    );
+
     let mut total = Vec::new();
     let mut per_step = Vec::new();
     let mut last = None;
@@ -84,6 +129,28 @@ fn main() {
     let (a, b) = (median(with), median(without));
     println!(
         "  5-day first spin-up year: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
+        a / b
+    );
+
+    // A/B: the demo with the split factorisation against the whole one, runs alternated.
+    let (mut with, mut without) = (Vec::new(), Vec::new());
+    for _ in 0..runs {
+        for split in [true, false] {
+            let t0 = Instant::now();
+            if split {
+                simulate::run(&case, &mut |_| {}).unwrap();
+            } else {
+                std::env::set_var("FROSTLINE_NO_SPLIT", "1");
+                simulate::run(&case, &mut |_| {}).unwrap();
+                std::env::remove_var("FROSTLINE_NO_SPLIT");
+            }
+            let v = if split { &mut with } else { &mut without };
+            v.push(t0.elapsed().as_secs_f64());
+        }
+    }
+    let (a, b) = (median(with), median(without));
+    println!(
+        "  split factorisation: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
         a / b
     );
 

@@ -150,6 +150,7 @@ pub fn summary_json(case: &Case, r: &RunResult) -> serde_json::Value {
         "years": r.years,
         "cross_check": r.cross_check,
     });
+    doc["periodicity_error_heat_loss_kwh"] = json!(r.periodicity_heat_loss_kwh);
     if let Some(d) = doc.as_object_mut() {
         if !r.winters.is_empty() {
             d.insert("winters".into(), json!(r.winters));

@@ -47,6 +47,10 @@ pub struct SolverParams {
     /// solve costs about a quarter of a factorisation, so only small changes pay (measured with
     /// `cargo bench --bench engine`: 0 → 2.60 s, 4 → 2.35 s, 8 → 2.80 s medians).
     pub near_factor_cells: usize,
+    /// Factor and solve the two halves of the first nested-dissection bisection side by side
+    /// (two threads of rayon's pool; inside a pool already busy with other runs they share it).
+    /// Default true.
+    pub split_halves: bool,
 }
 
 impl Default for SolverParams {
@@ -57,6 +61,7 @@ impl Default for SolverParams {
             max_halvings: 8,
             max_picard: 100,
             near_factor_cells: 4,
+            split_halves: std::env::var_os("FROSTLINE_NO_SPLIT").is_none(),
         }
     }
 }
@@ -138,13 +143,16 @@ pub struct Solver<'a> {
 impl<'a> Solver<'a> {
     /// Set up (symbolic factorisation) for `net`.
     pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
-        let order = linsys::nested_dissection(net.nx, net.nz, &net.unk_of);
-        let lin = SpdSolver::new(
+        let (order, a, b) = linsys::nested_dissection_split(net.nx, net.nz, &net.unk_of);
+        let mut lin = SpdSolver::new(
             net.n,
             net.col_ptr.clone(),
             net.row_idx.clone(),
             Some(&order),
         )?;
+        if params.split_halves {
+            lin.use_split(a, b)?;
+        }
         Ok(Solver {
             lin,
             k: vec![0.0; net.n],
@@ -228,6 +236,23 @@ impl<'a> Solver<'a> {
         for (b, bf) in net.bfaces.iter().enumerate() {
             self.vals[net.diag_slot[bf.p]] += self.gb[b];
         }
+    }
+
+    /// Zone weights ψ: the steady temperatures with zone `zone` at 1 and every other zone at 0, with
+    /// the conductances of the state `t` (°C). ψ_p is the fraction of heat released in unknown p
+    /// that eventually leaves through the faces of `zone` (harmonic measure of the zone).
+    pub fn zone_weights(&mut self, t: &[f64], zone: usize) -> Result<Vec<f64>> {
+        let net = self.net;
+        self.update_conductances(t);
+        self.assemble(|_| 0.0);
+        let mut rhs = vec![0.0; net.n];
+        for (b, bf) in net.bfaces.iter().enumerate() {
+            if bf.zone == zone {
+                rhs[bf.p] += self.gb[b];
+            }
+        }
+        self.lin.solve(&self.vals, &mut rhs)?;
+        Ok(rhs)
     }
 
     /// Steady state for constant zone temperatures `zone_t` (°C), starting from `t0` (or a uniform
