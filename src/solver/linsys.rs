@@ -377,14 +377,18 @@ impl Half {
             &mut self.fbuf,
         )?;
         self.lay.trailing_block(&self.l_val, s, &mut self.lss);
-        let l = &self.lss;
-        for j in 0..s {
-            for i in j..s {
-                let mut acc = 0.0;
-                for k in 0..=j {
-                    acc += l[k * s + i] * l[k * s + j];
+        // schur = L Lᵀ (lower part) by rank-one updates over the columns k of L, contiguous in i.
+        let (l, sc) = (&self.lss, &mut self.schur);
+        sc.iter_mut().for_each(|v| *v = 0.0);
+        for k in 0..s {
+            let lk = &l[k * s..(k + 1) * s];
+            for j in k..s {
+                let ljk = lk[j];
+                if ljk != 0.0 {
+                    for (v, &lik) in sc[j * s + j..(j + 1) * s].iter_mut().zip(&lk[j..]) {
+                        *v += lik * ljk;
+                    }
                 }
-                self.schur[j * s + i] = acc;
             }
         }
         Ok(())
