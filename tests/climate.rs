@@ -361,6 +361,8 @@ fn series_run_and_its_sinusoid_agree_in_range() {
     );
     assert!(dir.join("series/winters.csv").exists());
     assert!(s_series["energy_balance_error"].as_f64().unwrap().abs() < 1e-3);
+    // The periodicity estimate is for a repeated design year only.
+    assert!(s_series["periodicity_error_heat_loss_kwh"].is_null());
 }
 
 /// A design year for a longer return period is colder, so its frost never goes shallower

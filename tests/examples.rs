@@ -105,6 +105,10 @@ fn kettle_hollow_house() {
     assert!(num(&s, "frost_margin_m") > 0.0);
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(s["spin_up_converged"].as_bool().unwrap());
+    // Periodic year reached: the reported year's estimated heat-loss error against the periodic
+    // year (RunResult::periodicity_heat_loss_kwh) is within the 0.5 % spin-up tolerance.
+    let per = num(&s, "periodicity_error_heat_loss_kwh");
+    assert!(per.abs() < 0.005 * num(&s, "annual_heat_loss_kwh"), "{per}");
     assert!(num(&s, "peak_heat_loss_w") > num(&s, "mean_heat_loss_w"));
     let kwh = num(&s, "annual_heat_loss_kwh");
     assert!((kwh - num(&s, "mean_heat_loss_w") * 8.76).abs() < 1e-6 * kwh);

@@ -333,6 +333,10 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         ),
         ("coarse_year_step_days", "their step (days)"),
         ("spin_up_converged", "spin-up periodic"),
+        (
+            "periodicity_error_heat_loss_kwh",
+            "reported-year heat loss minus the periodic year's (kWh, estimate)",
+        ),
         ("newton_iterations_per_step", "Newton iterations per step"),
         ("factorizations", "Cholesky factorisations"),
         (
@@ -344,7 +348,16 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         h.push_str(&format!(
             "<tr><td>{}</td><td class=n>{}</td></tr>\n",
             escape(label),
-            escape(&s[k].to_string())
+            escape(&match s[k].as_f64() {
+                Some(v) if !s[k].is_i64() && !s[k].is_u64() && v.fract() == 0.0 => {
+                    format!("{v:.0}")
+                }
+                Some(v) if !s[k].is_i64() && !s[k].is_u64() && v.abs() < 1e-3 => {
+                    format!("{v:.2e}")
+                }
+                Some(v) if !s[k].is_i64() && !s[k].is_u64() => format!("{v:.4}"),
+                _ => s[k].to_string(),
+            })
         ));
     }
     h.push_str("</table>\n");

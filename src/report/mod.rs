@@ -517,6 +517,12 @@ pub fn result_table(case: &Case, r: &RunResult) -> String {
         r.mesh.solid_cells(), r.time_steps, r.spin_up_years(),
         if r.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
         r.stats.newton_iterations as f64 / r.time_steps.max(1) as f64, y.energy_balance_error, r.wall_time_s);
+    if let Some(e) = r.periodicity_heat_loss_kwh {
+        s += &format!(
+            "  Periodicity: reported-year heat loss minus the periodic year's ≈ {e:+.2} kWh ({:+.3} %), estimated\n",
+            100.0 * e / y.heat_loss_kwh.abs().max(1e-9)
+        );
+    }
     s += &format!("\n  Caution: {CAUTION}\n");
     s
 }
