@@ -130,6 +130,8 @@ pub struct Solver<'a> {
     t: Vec<f64>,
     cap: Vec<f64>,
     vals: Vec<f64>,
+    kvals: Vec<f64>,
+    rhs: Vec<f64>,
     r: Vec<f64>,
     h_old: Vec<f64>,
     k_valid: bool,
@@ -161,6 +163,8 @@ impl<'a> Solver<'a> {
             t: vec![0.0; net.n],
             cap: vec![0.0; net.n],
             vals: vec![0.0; net.row_idx.len()],
+            kvals: vec![0.0; net.row_idx.len()],
+            rhs: vec![0.0; net.n],
             r: vec![0.0; net.n],
             h_old: vec![0.0; net.n],
             k_valid: false,
@@ -217,24 +221,33 @@ impl<'a> Solver<'a> {
                     self.gb[b] = bf.area / (bf.d / self.k[bf.p] + bf.r + self.extra_r[b]);
                 }
             }
+            self.assemble_k();
             self.k_valid = true;
         }
     }
 
-    /// Fill `vals` with diag(extra) + K.
-    fn assemble(&mut self, extra_diag: impl Fn(usize) -> f64) {
+    /// Fill `kvals` with the conductance matrix K from the face conductances.
+    fn assemble_k(&mut self) {
         let net = self.net;
-        for p in 0..net.n {
-            self.vals[net.diag_slot[p]] = extra_diag(p);
-        }
+        let kv = &mut self.kvals;
+        kv.iter_mut().for_each(|v| *v = 0.0);
         for (f, face) in net.faces.iter().enumerate() {
             let g = self.gf[f];
-            self.vals[net.diag_slot[face.p]] += g;
-            self.vals[net.diag_slot[face.q]] += g;
-            self.vals[net.face_slot[f]] = -g;
+            kv[net.diag_slot[face.p]] += g;
+            kv[net.diag_slot[face.q]] += g;
+            kv[net.face_slot[f]] = -g;
         }
         for (b, bf) in net.bfaces.iter().enumerate() {
-            self.vals[net.diag_slot[bf.p]] += self.gb[b];
+            kv[net.diag_slot[bf.p]] += self.gb[b];
+        }
+    }
+
+    /// Fill `vals` with K + diag(extra) (K assembled once per change of the conductances).
+    fn assemble(&mut self, extra_diag: impl Fn(usize) -> f64) {
+        let net = self.net;
+        self.vals.copy_from_slice(&self.kvals);
+        for (p, &slot) in net.diag_slot.iter().enumerate() {
+            self.vals[slot] += extra_diag(p);
         }
     }
 
@@ -386,24 +399,30 @@ impl<'a> Solver<'a> {
         }
         let mut last_res = f64::INFINITY;
         for iter in 0..=self.params.max_newton {
-            // T, C from the enthalpy state; residual.
-            for p in 0..net.n {
-                let (t, c) = net.materials[net.mat[p]].temperature(h[p]);
-                self.t[p] = t;
-                self.cap[p] = c;
-                self.r[p] = net.volume[p] * (h[p] - self.h_old[p]) / dt;
-            }
-            for (f, face) in net.faces.iter().enumerate() {
-                let q = self.gf[f] * (self.t[face.p] - self.t[face.q]);
-                self.r[face.p] += q;
-                self.r[face.q] -= q;
-            }
-            for (b, bf) in net.bfaces.iter().enumerate() {
-                self.r[bf.p] += self.gb[b] * (self.t[bf.p] - zone_t[bf.zone]);
-            }
-            let res = (0..net.n)
-                .map(|p| (self.r[p] * dt / (net.volume[p] * self.cap[p])).abs())
-                .fold(0.0, f64::max);
+            // T, C from the enthalpy state; residual (local slices: no reloads through `self`).
+            let res = {
+                let (t, cap, r) = (&mut self.t[..], &mut self.cap[..], &mut self.r[..]);
+                let (hold, vol, gf, gb) = (&self.h_old[..], &net.volume[..], &self.gf, &self.gb);
+                for p in 0..net.n {
+                    let (tp, c) = net.materials[net.mat[p]].temperature(h[p]);
+                    t[p] = tp;
+                    cap[p] = c;
+                    r[p] = vol[p] * (h[p] - hold[p]) / dt;
+                }
+                for (face, &g) in net.faces.iter().zip(gf) {
+                    let q = g * (t[face.p] - t[face.q]);
+                    r[face.p] += q;
+                    r[face.q] -= q;
+                }
+                for (bf, &g) in net.bfaces.iter().zip(gb) {
+                    r[bf.p] += g * (t[bf.p] - zone_t[bf.zone]);
+                }
+                r.iter()
+                    .zip(vol)
+                    .zip(cap.iter())
+                    .map(|((rp, v), c)| (rp * dt / (v * c)).abs())
+                    .fold(0.0, f64::max)
+            };
             last_res = res;
             if res < self.params.tol_k {
                 self.stats.max_residual_k = self.stats.max_residual_k.max(res);
@@ -417,7 +436,10 @@ impl<'a> Solver<'a> {
             // Newton step in H written in δT: (diag(V C/Δt) + K) δT = −R.
             let (vol, cap) = (&net.volume, std::mem::take(&mut self.cap));
             self.assemble(|p| vol[p] * cap[p] / dt);
-            let mut rhs: Vec<f64> = self.r.iter().map(|v| -v).collect();
+            let mut rhs = std::mem::take(&mut self.rhs);
+            for (x, v) in rhs.iter_mut().zip(&self.r) {
+                *x = -v;
+            }
             if self
                 .lin
                 .solve_near(&self.vals, &mut rhs, self.params.near_factor_cells)
@@ -425,12 +447,14 @@ impl<'a> Solver<'a> {
             {
                 h.copy_from_slice(&self.h_old);
                 self.cap = cap;
+                self.rhs = rhs;
                 return Err((iter, f64::NAN));
             }
             for p in 0..net.n {
                 h[p] += cap[p] * rhs[p];
             }
             self.cap = cap;
+            self.rhs = rhs;
             self.stats.newton_iterations += 1;
         }
         if !last_res.is_finite() {
