@@ -49,7 +49,8 @@ pub struct SolverParams {
     pub near_factor_cells: usize,
     /// Factor and solve the two halves of the first nested-dissection bisection side by side
     /// (two threads of rayon's pool; inside a pool already busy with other runs they share it).
-    /// Default true.
+    /// Default true, false when the environment variable `FROSTLINE_NO_SPLIT` is set (for A/B
+    /// benchmarks; results agree to rounding either way).
     pub split_halves: bool,
 }
 
