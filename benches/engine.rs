@@ -12,6 +12,24 @@ fn median(mut v: Vec<f64>) -> f64 {
     v[v.len() / 2]
 }
 
+/// Time `with` and `without` alternately `runs` times each and print both medians and their ratio.
+fn alternated(runs: usize, what: &str, mut with: impl FnMut(), mut without: impl FnMut()) {
+    let (mut a, mut b) = (Vec::new(), Vec::new());
+    for _ in 0..runs {
+        let t0 = Instant::now();
+        with();
+        a.push(t0.elapsed().as_secs_f64());
+        let t0 = Instant::now();
+        without();
+        b.push(t0.elapsed().as_secs_f64());
+    }
+    let (a, b) = (median(a), median(b));
+    println!(
+        "  {what}: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
+        a / b
+    );
+}
+
 fn main() {
     let path =
         std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
@@ -118,40 +136,29 @@ fn main() {
     // A/B: the same case without the 5-day first spin-up year, runs alternated with the default.
     let mut plain_case = case.clone();
     plain_case.simulation.coarse_year_step_days = 0;
-    let (mut with, mut without) = (Vec::new(), Vec::new());
-    for _ in 0..runs {
-        for (c, v) in [(&case, &mut with), (&plain_case, &mut without)] {
-            let t0 = Instant::now();
-            simulate::run(c, &mut |_| {}).unwrap();
-            v.push(t0.elapsed().as_secs_f64());
-        }
-    }
-    let (a, b) = (median(with), median(without));
-    println!(
-        "  5-day first spin-up year: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
-        a / b
+    alternated(
+        runs,
+        "5-day first spin-up year",
+        || {
+            simulate::run(&case, &mut |_| {}).unwrap();
+        },
+        || {
+            simulate::run(&plain_case, &mut |_| {}).unwrap();
+        },
     );
 
     // A/B: the demo with the split factorisation against the whole one, runs alternated.
-    let (mut with, mut without) = (Vec::new(), Vec::new());
-    for _ in 0..runs {
-        for split in [true, false] {
-            let t0 = Instant::now();
-            if split {
-                simulate::run(&case, &mut |_| {}).unwrap();
-            } else {
-                std::env::set_var("FROSTLINE_NO_SPLIT", "1");
-                simulate::run(&case, &mut |_| {}).unwrap();
-                std::env::remove_var("FROSTLINE_NO_SPLIT");
-            }
-            let v = if split { &mut with } else { &mut without };
-            v.push(t0.elapsed().as_secs_f64());
-        }
-    }
-    let (a, b) = (median(with), median(without));
-    println!(
-        "  split factorisation: median {a:.2} s with, {b:.2} s without (ratio {:.2}, alternated runs)",
-        a / b
+    alternated(
+        runs,
+        "split factorisation",
+        || {
+            simulate::run(&case, &mut |_| {}).unwrap();
+        },
+        || {
+            std::env::set_var("FROSTLINE_NO_SPLIT", "1");
+            simulate::run(&case, &mut |_| {}).unwrap();
+            std::env::remove_var("FROSTLINE_NO_SPLIT");
+        },
     );
 
     // Sizing of the sizing demo (two varied dimensions, coarse mesh, rayon over the first).

@@ -834,14 +834,10 @@ fn run_here(case: &Case, progress: &mut (dyn FnMut(Progress) + Send)) -> Result<
     let mut years: Vec<Year> = Vec::new();
     let mut converged = false;
     let mut last;
-    let mut periodicity = None;
+    let mut year_start;
     loop {
-        let h_start = drv.h.clone();
-        let t_start = drv.t.clone();
+        year_start = (drv.h.clone(), drv.t.clone());
         let p = drv.period(&spin_days, progress, years.len(), total)?;
-        if seasons.is_empty() {
-            periodicity = Some(drv.periodicity(&h_start, &t_start)?);
-        }
         if let Some(prev) = years.last() {
             let dq = (p.year.heat_loss_kwh - prev.heat_loss_kwh).abs()
                 / prev.heat_loss_kwh.abs().max(1e-9);
@@ -858,6 +854,12 @@ fn run_here(case: &Case, progress: &mut (dyn FnMut(Progress) + Send)) -> Result<
             break;
         }
     }
+    // For a design year, the reported year is the last spin-up year, which ended just now.
+    let periodicity = if seasons.is_empty() {
+        Some(drv.periodicity(&year_start.0, &year_start.1)?)
+    } else {
+        None
+    };
     let mut spin_up_years = years.len() - 1;
     let mut winters = Vec::new();
     let mut reported = years.len() - 1;

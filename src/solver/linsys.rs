@@ -723,13 +723,13 @@ impl SpdSolver {
             return Ok(false);
         };
         self.split = Split::new(&self.pattern, &p.fwd, a, b)?;
+        if self.split.is_some() {
+            // The whole factor's storage is not used with the split.
+            self.l_val = Vec::new();
+            self.layout = None;
+        }
         self.valid = false;
         Ok(self.split.is_some())
-    }
-
-    /// Number of stored values of the Cholesky factor (fill).
-    pub fn factor_len(&self) -> usize {
-        self.chol.len_val()
     }
 
     /// Solve A x = rhs in place; `vals` are A's lower-triangle values in pattern order.
@@ -938,28 +938,61 @@ mod tests {
         (cp, ri, v)
     }
 
+    /// The 5-point pattern (lower triangle, CSC) of an nx × nz grid without the cells i < hole.0,
+    /// j < hole.1 (air): `unk_of` of the grid, column pointers, row indices.
+    fn grid_pattern(
+        nx: usize,
+        nz: usize,
+        hole: (usize, usize),
+    ) -> (Vec<usize>, Vec<usize>, Vec<usize>) {
+        let mut unk = vec![usize::MAX; nx * nz];
+        let mut cells = Vec::new();
+        for j in 0..nz {
+            for i in 0..nx {
+                if !(i < hole.0 && j < hole.1) {
+                    unk[j * nx + i] = cells.len();
+                    cells.push((i, j));
+                }
+            }
+        }
+        let (mut cp, mut ri) = (vec![0], Vec::new());
+        for &(i, j) in &cells {
+            ri.push(unk[j * nx + i]);
+            for (ii, jj) in [(i + 1, j), (i, j + 1)] {
+                if ii < nx && jj < nz && unk[jj * nx + ii] != usize::MAX {
+                    ri.push(unk[jj * nx + ii]);
+                }
+            }
+            let c = ri.len();
+            ri[cp[cp.len() - 1]..c].sort_unstable();
+            cp.push(c);
+        }
+        (unk, cp, ri)
+    }
+
+    /// SPD values for a [`grid_pattern`]: a varied diagonal and negative couplings.
+    fn grid_values(cp: &[usize], ri: &[usize], round: usize) -> Vec<f64> {
+        let mut v = Vec::new();
+        for c in 0..cp.len() - 1 {
+            for &r in &ri[cp[c]..cp[c + 1]] {
+                v.push(if r == c {
+                    4.2 + ((c + round) % 5) as f64
+                } else {
+                    -1.0 - 0.1 * ((c * 7 + round) % 4) as f64
+                });
+            }
+        }
+        v
+    }
+
     /// The plain-loop supernodal solve gives faer's answer (5-point Laplacian plus a diagonal on
     /// a 30 × 20 grid, nested-dissection order, forced supernodal).
     #[test]
     fn plain_supernodal_solve_matches_faer() {
         let (nx, nz) = (30usize, 20usize);
-        let n = nx * nz;
-        let (mut cp, mut ri, mut v) = (vec![0], Vec::new(), Vec::new());
-        for c in 0..n {
-            let (i, j) = (c % nx, c / nx);
-            ri.push(c);
-            v.push(4.5 + (c % 7) as f64);
-            if i + 1 < nx {
-                ri.push(c + 1);
-                v.push(-1.0 - 0.1 * (c % 3) as f64);
-            }
-            if j + 1 < nz {
-                ri.push(c + nx);
-                v.push(-1.0);
-            }
-            cp.push(ri.len());
-        }
-        let unk: Vec<usize> = (0..n).collect();
+        let (unk, cp, ri) = grid_pattern(nx, nz, (0, 0));
+        let n = cp.len() - 1;
+        let v = grid_values(&cp, &ri, 0);
         let order = nested_dissection(nx, nz, &unk);
         let mut own = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
         assert!(own.layout.is_some(), "forced supernodal");
@@ -980,53 +1013,15 @@ mod tests {
     #[test]
     fn split_factorisation_matches_whole() {
         let (nx, nz) = (30usize, 20usize);
-        let mut unk = vec![usize::MAX; nx * nz];
-        let mut n = 0;
-        for j in 0..nz {
-            for i in 0..nx {
-                if !(j < 4 && i < 6) {
-                    unk[j * nx + i] = n;
-                    n += 1;
-                }
-            }
-        }
-        let (mut cp, mut ri) = (vec![0], Vec::new());
-        let mut cells = vec![(0, 0); n];
-        for j in 0..nz {
-            for i in 0..nx {
-                if unk[j * nx + i] != usize::MAX {
-                    cells[unk[j * nx + i]] = (i, j);
-                }
-            }
-        }
-        for &(i, j) in &cells {
-            let p = unk[j * nx + i];
-            ri.push(p);
-            for (ii, jj) in [(i + 1, j), (i, j + 1)] {
-                if ii < nx && jj < nz && unk[jj * nx + ii] != usize::MAX {
-                    ri.push(unk[jj * nx + ii]);
-                }
-            }
-            let c = ri.len();
-            ri[cp[cp.len() - 1]..c].sort_unstable();
-            cp.push(c);
-        }
+        let (unk, cp, ri) = grid_pattern(nx, nz, (6, 4));
+        let n = cp.len() - 1;
         let (order, a, b) = nested_dissection_split(nx, nz, &unk);
         assert!(a > 0 && a < b && b < n, "{a} {b} {n}");
         let mut split = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
         assert!(split.use_split(a, b).unwrap());
         let mut whole = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
         for round in 0..3 {
-            let mut v = Vec::new();
-            for c in 0..n {
-                for k in cp[c]..cp[c + 1] {
-                    v.push(if ri[k] == c {
-                        4.2 + ((c + round) % 5) as f64
-                    } else {
-                        -1.0 - 0.1 * ((c * 7 + round) % 4) as f64
-                    });
-                }
-            }
+            let v = grid_values(&cp, &ri, round);
             let rhs: Vec<f64> = (0..n)
                 .map(|k| (k as f64 * 0.3 + round as f64).sin())
                 .collect();

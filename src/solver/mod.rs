@@ -252,21 +252,27 @@ impl<'a> Solver<'a> {
         }
     }
 
+    /// Steady temperatures (°C) for zone temperatures `zone_t` with the conductivities of the
+    /// state `t`: one linear solve K T = Σ_b G_b T_zone.
+    fn steady_linear(&mut self, zone_t: &[f64], t: &[f64]) -> Result<Vec<f64>> {
+        self.update_conductances(t);
+        self.assemble(|_| 0.0);
+        let mut rhs = vec![0.0; self.net.n];
+        for (b, bf) in self.net.bfaces.iter().enumerate() {
+            rhs[bf.p] += self.gb[b] * zone_t[bf.zone];
+        }
+        self.lin.solve(&self.vals, &mut rhs)?;
+        Ok(rhs)
+    }
+
     /// Zone weights ψ: the steady temperatures with zone `zone` at 1 and every other zone at 0, with
     /// the conductances of the state `t` (°C). ψ_p is the fraction of heat released in unknown p
     /// that eventually leaves through the faces of `zone` (harmonic measure of the zone).
     pub fn zone_weights(&mut self, t: &[f64], zone: usize) -> Result<Vec<f64>> {
-        let net = self.net;
-        self.update_conductances(t);
-        self.assemble(|_| 0.0);
-        let mut rhs = vec![0.0; net.n];
-        for (b, bf) in net.bfaces.iter().enumerate() {
-            if bf.zone == zone {
-                rhs[bf.p] += self.gb[b];
-            }
-        }
-        self.lin.solve(&self.vals, &mut rhs)?;
-        Ok(rhs)
+        let unit: Vec<f64> = (0..self.net.n_zones)
+            .map(|z| if z == zone { 1.0 } else { 0.0 })
+            .collect();
+        self.steady_linear(&unit, t)
     }
 
     /// Steady state for constant zone temperatures `zone_t` (°C), starting from `t0` (or a uniform
@@ -280,13 +286,7 @@ impl<'a> Solver<'a> {
         let mut iterations = 0;
         loop {
             iterations += 1;
-            self.update_conductances(&t);
-            self.assemble(|_| 0.0);
-            let mut rhs = vec![0.0; net.n];
-            for (b, bf) in net.bfaces.iter().enumerate() {
-                rhs[bf.p] += self.gb[b] * zone_t[bf.zone];
-            }
-            self.lin.solve(&self.vals, &mut rhs)?;
+            let rhs = self.steady_linear(zone_t, &t)?;
             let change = rhs
                 .iter()
                 .zip(&t)
