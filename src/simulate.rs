@@ -707,21 +707,45 @@ pub struct WinterResult {
 /// the other worker cheaply; from a foreign thread each fork-join would cost two thread wake-ups
 /// (demo, `cargo bench --bench engine`: 2.50 s against 2.76 s medians, alternated runs).
 pub fn run(case: &Case, progress: &mut (dyn FnMut(Progress) + Send)) -> Result<RunResult> {
+    run_with(case, &RunOptions::default(), progress)
+}
+
+/// Solver settings of a run; [`run`] uses the defaults. For tests and benchmarks.
+#[derive(Debug, Clone, Default)]
+pub struct RunOptions {
+    /// The solver's settings.
+    pub solver: SolverParams,
+    /// Newton iterations and halvings allowed in the coarse first spin-up year, if other than
+    /// `solver`'s (max_newton, max_halvings): when a coarse step fails, the run goes on from the
+    /// start state without the coarse year.
+    pub coarse_limits: Option<(usize, usize)>,
+}
+
+/// [`run`] with the given solver settings.
+pub fn run_with(
+    case: &Case,
+    opts: &RunOptions,
+    progress: &mut (dyn FnMut(Progress) + Send),
+) -> Result<RunResult> {
     if rayon::current_thread_index().is_some() {
-        run_here(case, progress)
+        run_here(case, opts, progress)
     } else {
-        rayon::scope(|_| run_here(case, progress))
+        rayon::scope(|_| run_here(case, opts, progress))
     }
 }
 
-fn run_here(case: &Case, progress: &mut (dyn FnMut(Progress) + Send)) -> Result<RunResult> {
+fn run_here(
+    case: &Case,
+    opts: &RunOptions,
+    progress: &mut (dyn FnMut(Progress) + Send),
+) -> Result<RunResult> {
     let start = std::time::Instant::now();
     let section = Section::from_case(case)?;
     let mesh = section.mesh(case);
     let mut net = Network::new(&mesh);
     assign_groups(&mut net, &mesh);
     let net = net;
-    let solver = Solver::new(&net, SolverParams::default())?;
+    let solver = Solver::new(&net, opts.solver)?;
     let mut drv = Driver {
         case,
         mesh: &mesh,
@@ -821,10 +845,12 @@ fn run_here(case: &Case, progress: &mut (dyn FnMut(Progress) + Send)) -> Result<
     let mut coarse_spin_up_years = usize::from(case.simulation.coarse_year_step_days > 0);
     if coarse_spin_up_years > 0 {
         let (h0, t0, steps0, time0) = (drv.h.clone(), drv.t.clone(), drv.time_steps, drv.sim_time);
-        if drv
-            .coarse_period(&spin_days, case.simulation.coarse_year_step_days)
-            .is_err()
-        {
+        let limits = (opts.solver.max_newton, opts.solver.max_halvings);
+        let (n, hv) = opts.coarse_limits.unwrap_or(limits);
+        (drv.solver.params.max_newton, drv.solver.params.max_halvings) = (n, hv);
+        let coarse = drv.coarse_period(&spin_days, case.simulation.coarse_year_step_days);
+        (drv.solver.params.max_newton, drv.solver.params.max_halvings) = limits;
+        if coarse.is_err() {
             (drv.h, drv.t, drv.time_steps, drv.sim_time) = (h0, t0, steps0, time0);
             coarse_spin_up_years = 0;
         }

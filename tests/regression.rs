@@ -134,3 +134,45 @@ fn spin_up_reaches_the_periodic_state() {
         assert!((q / periodic[2] - 1.0).abs() < 2e-5, "{periodic:?}");
     }
 }
+
+/// When a step of the coarse first spin-up year does not converge, the run goes on from the start
+/// state without that year: the same years, steps and results as a run configured without it
+/// (to the Newton tolerance; the factor cache's history differs), and reported as such. The
+/// failure is forced by allowing the coarse steps one Newton iteration and no halving, so the
+/// first step in which a cell changes segment fails part-way through the year.
+#[test]
+fn failed_coarse_year_falls_back_to_the_start_state() {
+    use frostline::simulate::{run_with, RunOptions};
+    let case = demo();
+    let opts = RunOptions {
+        coarse_limits: Some((1, 0)),
+        ..Default::default()
+    };
+    let fallen = run_with(&case, &opts, &mut |_| {}).unwrap();
+    let mut plain_case = case.clone();
+    plain_case.simulation.coarse_year_step_days = 0;
+    let plain = run(&plain_case, &mut |_| {}).unwrap();
+    assert_eq!(
+        fallen.coarse_spin_up_years, 0,
+        "the coarse year must have failed"
+    );
+    assert!(
+        fallen.stats.steps > plain.stats.steps + 1,
+        "the coarse year failed part-way, not at its first step (measured: 22nd of 73)"
+    );
+    assert_eq!(fallen.time_steps, plain.time_steps);
+    assert_eq!(fallen.years.len(), plain.years.len());
+    for (a, b) in fallen.years.iter().zip(&plain.years) {
+        assert!(
+            (a.heat_loss_kwh / b.heat_loss_kwh - 1.0).abs() < 1e-7,
+            "{} vs {}",
+            a.heat_loss_kwh,
+            b.heat_loss_kwh
+        );
+        assert!((a.max_frost_open_m - b.max_frost_open_m).abs() < 1e-6);
+        assert!((a.max_frost_footing_m - b.max_frost_footing_m).abs() < 1e-6);
+    }
+    for (a, b) in fallen.days.iter().zip(&plain.days) {
+        assert_eq!(a.day_of_year, b.day_of_year);
+    }
+}

@@ -97,6 +97,19 @@ fn cross_checks(case: &Case, r: &SizingResult) -> (serde_json::Value, Vec<String
     )
 }
 
+/// The corner rule of thumb ([`crate::design::corner_rule`]) for the chosen design's wing, if it
+/// has one.
+fn corner_requirement(case: &Case, r: &SizingResult) -> Option<serde_json::Value> {
+    let d = r.chosen.as_ref()?;
+    let c = crate::design::apply(case, &case.sizing.as_ref()?.vary, &d.values);
+    c.insulation.iter().find_map(|i| match i.kind {
+        InsulationKind::Wing {
+            width_m, x_start_m, ..
+        } => Some(corner_rule(i.thickness_m, width_m - x_start_m)),
+        _ => None,
+    })
+}
+
 /// Write sizing.json, sizing.csv and (if a design was chosen) chosen_case.toml into `dir`.
 pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> {
     std::fs::create_dir_all(dir).map_err(|e| Error::Io {
@@ -105,15 +118,7 @@ pub fn write(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> 
     })?;
     let mut files = Vec::new();
     let (checks, flags) = cross_checks(case, r);
-    let corner = r.chosen.as_ref().and_then(|d| {
-        let c = crate::design::apply(case, &case.sizing.as_ref()?.vary, &d.values);
-        c.insulation.iter().find_map(|i| match i.kind {
-            InsulationKind::Wing {
-                width_m, x_start_m, ..
-            } => Some(corner_rule(i.thickness_m, width_m - x_start_m)),
-            _ => None,
-        })
-    });
+    let corner = corner_requirement(case, r);
     let labels: Vec<String> = (0..r.vary.len()).map(|k| label(case, k)).collect();
     let doc = json!({
         "case_name": case.name,
@@ -296,20 +301,13 @@ pub fn text(case: &Case, r: &SizingResult) -> String {
     for f in flags {
         s += &format!("    NOTE: {f}\n");
     }
-    if let Some(d) = &r.chosen {
-        let c = crate::design::apply(case, &case.sizing.as_ref().expect("sizing").vary, &d.values);
-        if let Some((t, w)) = c.insulation.iter().find_map(|i| match i.kind {
-            InsulationKind::Wing {
-                width_m, x_start_m, ..
-            } => Some((i.thickness_m, width_m - x_start_m)),
-            _ => None,
-        }) {
-            s += &format!(
-                "\n  Corners (NOT computed — a 2D section cannot resolve them; rule of thumb, common practice):\n    wing {:.0} mm thick and {:.2} m wide over 1.5 m from each outside corner along both walls\n",
-                1000.0 * t * 1.3,
-                w * 1.5
-            );
-        }
+    if let Some(c) = corner_requirement(case, r) {
+        s += &format!(
+            "\n  Corners (NOT computed — a 2D section cannot resolve them; rule of thumb, common practice):\n    wing {:.0} mm thick and {:.2} m wide over {:.1} m from each outside corner along both walls\n",
+            1000.0 * c["thickness_m"].as_f64().unwrap_or(0.0),
+            c["width_m"].as_f64().unwrap_or(0.0),
+            c["extent_from_corner_m"].as_f64().unwrap_or(0.0)
+        );
     }
     s += &format!(
         "\n  {} runs, median {:.2} s per run, {:.1} s in all\n",

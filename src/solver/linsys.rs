@@ -6,7 +6,7 @@
 //! For a supernodal factor the triangular solves run in plain loops over faer's factor layout
 //! (`Layout`), about a quarter faster than faer's generic solve on the demo matrix.
 //!
-//! With [`SpdSolver::use_split`] the factorisation and the solves run in two halves side by side
+//! With a split point given to [`SpdSolver::new`] the factorisation and the solves run in two halves side by side
 //! (`Split`): the unknowns on either side of the first nested-dissection separator, each with
 //! the separator, are factored by faer on their own, and the separator's Schur complement is
 //! assembled from the two trailing blocks and factored densely. Demo (`cargo bench --bench
@@ -166,10 +166,6 @@ impl Layout {
 pub struct SpdSolver {
     n: usize,
     pattern: SymbolicSparseColMat<usize>,
-    chol: SymbolicCholesky<usize>,
-    l_val: Vec<f64>,
-    fbuf: MemBuffer,
-    sbuf: MemBuffer,
     factored: Vec<f64>,
     valid: bool,
     /// Numeric factorisations done.
@@ -182,10 +178,20 @@ pub struct SpdSolver {
     pub cg_iterations: usize,
     touched: Vec<bool>,
     work: [Vec<f64>; 4],
+    /// Exactly one of the two is set: the whole factor, or the split one.
+    whole: Option<Whole>,
+    split: Option<Split>,
+}
+
+/// The factorisation of the whole matrix by faer.
+struct Whole {
+    chol: SymbolicCholesky<usize>,
+    l_val: Vec<f64>,
+    fbuf: MemBuffer,
+    sbuf: MemBuffer,
     layout: Option<Layout>,
     solve_work: [Vec<f64>; 2],
     permuted: Option<Permuted>,
-    split: Option<Split>,
 }
 
 /// The matrix renumbered in the elimination order (see [`SpdSolver::new`]).
@@ -634,73 +640,29 @@ impl SpdSolver {
     /// Analyse the pattern: `col_ptr` (n + 1) and `row_idx` of the lower triangle, rows sorted.
     /// `order`, if given, is a fill-reducing elimination order (`order[k]` = the unknown eliminated
     /// k-th), used with the supernodal factorisation; otherwise faer's AMD ordering is used.
+    /// `split_at`, with an order bisected at positions (a, b) ([`nested_dissection_split`]),
+    /// factors and solves in two halves side by side (see `Split`) when the pattern allows it
+    /// (not tiny, a true separator); only then is the whole matrix's symbolic analysis skipped.
     pub fn new(
         n: usize,
         col_ptr: Vec<usize>,
         row_idx: Vec<usize>,
         order: Option<&[usize]>,
+        split_at: Option<(usize, usize)>,
     ) -> Result<Self> {
         let nnz = row_idx.len();
         let pattern = SymbolicSparseColMat::new_checked(n, n, col_ptr, None, row_idx);
-        let sym_err = |e| Error::NotPositiveDefinite(format!("symbolic analysis: {e:?}"));
-        // With an order, the matrix is permuted here once (pattern) and per factorisation by a
-        // slot map, and faer factors it in identity order: this skips faer's own permutation of
-        // the matrix in every numeric factorisation (demo run: 1.9 % fewer instructions).
-        let mut permuted = None;
-        let chol = match order {
-            Some(fwd) => {
-                let mut inv = vec![0usize; n];
-                for (k, &p) in fwd.iter().enumerate() {
-                    inv[p] = k;
-                }
-                let (cp, ri) = (pattern.col_ptr(), pattern.row_idx());
-                let mut entries: Vec<(usize, usize, usize)> = Vec::with_capacity(nnz);
-                for c in 0..n {
-                    for k in cp[c]..cp[c + 1] {
-                        let (a, b) = (inv[ri[k]], inv[c]);
-                        entries.push((a.min(b), a.max(b), k));
-                    }
-                }
-                entries.sort_unstable();
-                let mut slot = vec![0usize; nnz];
-                for (pos, &(_, _, k)) in entries.iter().enumerate() {
-                    slot[k] = pos;
-                }
-                let pairs: Vec<(usize, usize)> = entries.iter().map(|&(c, r, _)| (c, r)).collect();
-                let (p_pattern, chol) = identity_symbolic(n, &pairs)?;
-                permuted = Some(Permuted {
-                    pattern: p_pattern,
-                    slot,
-                    fwd: fwd.to_vec(),
-                    vals: vec![0.0; nnz],
-                });
-                chol
-            }
-            None => factorize_symbolic_cholesky(
-                pattern.as_ref(),
-                Side::Lower,
-                SymmetricOrdering::Amd,
-                CholeskySymbolicParams {
-                    supernodal_flop_ratio_threshold: SupernodalThreshold::AUTO,
-                    ..Default::default()
-                },
-            )
-            .map_err(sym_err)?,
+        let split = match (order, split_at) {
+            (Some(fwd), Some((a, b))) => Split::new(&pattern, fwd, a, b)?,
+            _ => None,
         };
-        let fbuf =
-            MemBuffer::new(chol.factorize_numeric_llt_scratch::<f64>(Par::Seq, Default::default()));
-        let sbuf = MemBuffer::new(chol.solve_in_place_scratch::<f64>(1, Par::Seq));
-        // Measured on the demo matrix (5,493 unknowns): 0.37–0.40 ms per solve against faer's
-        // 0.52–0.53 ms, same answers to rounding.
-        let layout = Layout::of(&chol, permuted.as_ref().map(|p| &p.fwd[..]));
+        let whole = match split {
+            Some(_) => None,
+            None => Some(Whole::new(&pattern, order)?),
+        };
         Ok(SpdSolver {
-            permuted,
             n,
-            l_val: vec![0.0; chol.len_val()],
             pattern,
-            chol,
-            fbuf,
-            sbuf,
             factored: vec![0.0; nnz],
             valid: false,
             factorizations: 0,
@@ -709,27 +671,14 @@ impl SpdSolver {
             cg_iterations: 0,
             touched: vec![false; n],
             work: [vec![0.0; n], vec![0.0; n], vec![0.0; n], vec![0.0; n]],
-            layout,
-            solve_work: [vec![0.0; n], vec![0.0; n]],
-            split: None,
+            whole,
+            split,
         })
     }
 
-    /// Factor and solve in two halves side by side (see `Split`) when the order given to
-    /// [`SpdSolver::new`] was bisected at positions `a`, `b` ([`nested_dissection_split`]).
-    /// Returns whether the split is in use (not for tiny or unsuitable patterns).
-    pub fn use_split(&mut self, a: usize, b: usize) -> Result<bool> {
-        let Some(p) = &self.permuted else {
-            return Ok(false);
-        };
-        self.split = Split::new(&self.pattern, &p.fwd, a, b)?;
-        if self.split.is_some() {
-            // The whole factor's storage is not used with the split.
-            self.l_val = Vec::new();
-            self.layout = None;
-        }
-        self.valid = false;
-        Ok(self.split.is_some())
+    /// Whether the split factorisation is in use.
+    pub fn is_split(&self) -> bool {
+        self.split.is_some()
     }
 
     /// Solve A x = rhs in place; `vals` are A's lower-triangle values in pattern order.
@@ -786,38 +735,10 @@ impl SpdSolver {
 
     /// Apply the current factor's inverse to `v` in place.
     fn precondition(&mut self, v: &mut [f64]) {
-        if let Some(sp) = &mut self.split {
-            sp.solve(v);
-            self.solves += 1;
-            return;
-        }
-        if let Some(lay) = &self.layout {
-            let [y, t] = &mut self.solve_work;
-            lay.solve(&self.l_val, v, y, t);
-            self.solves += 1;
-            return;
-        }
-        let llt = LltRef::new(&self.chol, &self.l_val);
-        let [y, _] = &mut self.solve_work;
-        let x: &mut [f64] = match &self.permuted {
-            Some(p) => {
-                for (i, &q) in p.fwd.iter().enumerate() {
-                    y[i] = v[q];
-                }
-                y
-            }
-            None => v,
-        };
-        llt.solve_in_place_with_conj(
-            Conj::No,
-            MatMut::from_column_major_slice_mut(x, self.n, 1),
-            Par::Seq,
-            MemStack::new(&mut self.sbuf),
-        );
-        if let Some(p) = &self.permuted {
-            for (i, &q) in p.fwd.iter().enumerate() {
-                v[q] = y[i];
-            }
+        match (&mut self.split, &mut self.whole) {
+            (Some(sp), _) => sp.solve(v),
+            (None, Some(w)) => w.solve(v),
+            (None, None) => unreachable!("a solver holds a whole or a split factor"),
         }
         self.solves += 1;
     }
@@ -877,19 +798,10 @@ impl SpdSolver {
     /// Solve A x = rhs in place, refactoring whenever `vals` changed.
     pub fn solve(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
         if !self.valid || self.factored != vals {
-            if let Some(sp) = self.split.as_mut() {
-                sp.factor(vals)?;
-            } else {
-                let a = match self.permuted.as_mut() {
-                    Some(p) => {
-                        for (k, &v) in vals.iter().enumerate() {
-                            p.vals[p.slot[k]] = v;
-                        }
-                        SparseColMatRef::new(p.pattern.as_ref(), &p.vals)
-                    }
-                    None => SparseColMatRef::new(self.pattern.as_ref(), vals),
-                };
-                numeric_llt(&self.chol, &mut self.l_val, a, &mut self.fbuf)?;
+            match (&mut self.split, &mut self.whole) {
+                (Some(sp), _) => sp.factor(vals)?,
+                (None, Some(w)) => w.factor(&self.pattern, vals)?,
+                (None, None) => unreachable!("a solver holds a whole or a split factor"),
             }
             self.factored.copy_from_slice(vals);
             self.valid = true;
@@ -897,6 +809,120 @@ impl SpdSolver {
         }
         self.precondition(rhs);
         Ok(())
+    }
+}
+
+impl Whole {
+    /// The symbolic analysis of `pattern` (lower CSC) in the elimination order `order`, or in
+    /// faer's AMD order if none is given.
+    fn new(pattern: &SymbolicSparseColMat<usize>, order: Option<&[usize]>) -> Result<Self> {
+        let n = pattern.nrows();
+        let nnz = pattern.row_idx().len();
+        let sym_err = |e| Error::NotPositiveDefinite(format!("symbolic analysis: {e:?}"));
+        // With an order, the matrix is permuted here once (pattern) and per factorisation by a
+        // slot map, and faer factors it in identity order: this skips faer's own permutation of
+        // the matrix in every numeric factorisation (demo run: 1.9 % fewer instructions).
+        let mut permuted = None;
+        let chol = match order {
+            Some(fwd) => {
+                let mut inv = vec![0usize; n];
+                for (k, &p) in fwd.iter().enumerate() {
+                    inv[p] = k;
+                }
+                let (cp, ri) = (pattern.col_ptr(), pattern.row_idx());
+                let mut entries: Vec<(usize, usize, usize)> = Vec::with_capacity(nnz);
+                for c in 0..n {
+                    for k in cp[c]..cp[c + 1] {
+                        let (a, b) = (inv[ri[k]], inv[c]);
+                        entries.push((a.min(b), a.max(b), k));
+                    }
+                }
+                entries.sort_unstable();
+                let mut slot = vec![0usize; nnz];
+                for (pos, &(_, _, k)) in entries.iter().enumerate() {
+                    slot[k] = pos;
+                }
+                let pairs: Vec<(usize, usize)> = entries.iter().map(|&(c, r, _)| (c, r)).collect();
+                let (p_pattern, chol) = identity_symbolic(n, &pairs)?;
+                permuted = Some(Permuted {
+                    pattern: p_pattern,
+                    slot,
+                    fwd: fwd.to_vec(),
+                    vals: vec![0.0; nnz],
+                });
+                chol
+            }
+            None => factorize_symbolic_cholesky(
+                pattern.as_ref(),
+                Side::Lower,
+                SymmetricOrdering::Amd,
+                CholeskySymbolicParams {
+                    supernodal_flop_ratio_threshold: SupernodalThreshold::AUTO,
+                    ..Default::default()
+                },
+            )
+            .map_err(sym_err)?,
+        };
+        let fbuf =
+            MemBuffer::new(chol.factorize_numeric_llt_scratch::<f64>(Par::Seq, Default::default()));
+        let sbuf = MemBuffer::new(chol.solve_in_place_scratch::<f64>(1, Par::Seq));
+        // Measured on the demo matrix (5,493 unknowns): 0.37–0.40 ms per solve against faer's
+        // 0.52–0.53 ms, same answers to rounding.
+        let layout = Layout::of(&chol, permuted.as_ref().map(|p| &p.fwd[..]));
+        Ok(Whole {
+            l_val: vec![0.0; chol.len_val()],
+            chol,
+            fbuf,
+            sbuf,
+            layout,
+            solve_work: [vec![0.0; n], vec![0.0; n]],
+            permuted,
+        })
+    }
+
+    /// Factor the matrix with values `vals` in `pattern`'s slot order.
+    fn factor(&mut self, pattern: &SymbolicSparseColMat<usize>, vals: &[f64]) -> Result<()> {
+        let a = match self.permuted.as_mut() {
+            Some(p) => {
+                for (k, &v) in vals.iter().enumerate() {
+                    p.vals[p.slot[k]] = v;
+                }
+                SparseColMatRef::new(p.pattern.as_ref(), &p.vals)
+            }
+            None => SparseColMatRef::new(pattern.as_ref(), vals),
+        };
+        numeric_llt(&self.chol, &mut self.l_val, a, &mut self.fbuf)
+    }
+
+    /// Solve with the factor in place (original numbering).
+    fn solve(&mut self, v: &mut [f64]) {
+        let [y, t] = &mut self.solve_work;
+        if let Some(lay) = &self.layout {
+            lay.solve(&self.l_val, v, y, t);
+            return;
+        }
+        let n = v.len();
+        let llt = LltRef::new(&self.chol, &self.l_val);
+        let x: &mut [f64] = match &self.permuted {
+            Some(p) => {
+                for (i, &q) in p.fwd.iter().enumerate() {
+                    y[i] = v[q];
+                }
+                y
+            }
+            None => v,
+        };
+        llt.solve_in_place_with_conj(
+            Conj::No,
+            MatMut::from_column_major_slice_mut(x, n, 1),
+            Par::Seq,
+            MemStack::new(&mut self.sbuf),
+        );
+        if let Some(p) = &self.permuted {
+            for (i, &q) in p.fwd.iter().enumerate() {
+                v[q] = y[i];
+            }
+        }
     }
 }
 
@@ -910,7 +936,7 @@ mod tests {
         let col_ptr = vec![0, 2, 4, 5];
         let row_idx = vec![0, 1, 1, 2, 2];
         let vals = vec![4.0, -1.0, 4.0, -1.0, 4.0];
-        let mut s = SpdSolver::new(3, col_ptr, row_idx, None).unwrap();
+        let mut s = SpdSolver::new(3, col_ptr, row_idx, None, None).unwrap();
         let mut b = vec![3.0, 2.0, 3.0];
         s.solve(&vals, &mut b).unwrap();
         for v in &b {
@@ -994,10 +1020,13 @@ mod tests {
         let n = cp.len() - 1;
         let v = grid_values(&cp, &ri, 0);
         let order = nested_dissection(nx, nz, &unk);
-        let mut own = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
-        assert!(own.layout.is_some(), "forced supernodal");
-        let mut faer_only = SpdSolver::new(n, cp, ri, Some(&order)).unwrap();
-        faer_only.layout = None;
+        let mut own = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), None).unwrap();
+        assert!(
+            own.whole.as_ref().unwrap().layout.is_some(),
+            "forced supernodal"
+        );
+        let mut faer_only = SpdSolver::new(n, cp, ri, Some(&order), None).unwrap();
+        faer_only.whole.as_mut().unwrap().layout = None;
         let b: Vec<f64> = (0..n).map(|k| (k as f64 * 0.7).cos()).collect();
         let (mut x1, mut x2) = (b.clone(), b.clone());
         own.solve(&v, &mut x1).unwrap();
@@ -1017,9 +1046,10 @@ mod tests {
         let n = cp.len() - 1;
         let (order, a, b) = nested_dissection_split(nx, nz, &unk);
         assert!(a > 0 && a < b && b < n, "{a} {b} {n}");
-        let mut split = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
-        assert!(split.use_split(a, b).unwrap());
-        let mut whole = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order)).unwrap();
+        let mut split =
+            SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), Some((a, b))).unwrap();
+        assert!(split.is_split() && split.whole.is_none());
+        let mut whole = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), None).unwrap();
         for round in 0..3 {
             let v = grid_values(&cp, &ri, round);
             let rhs: Vec<f64> = (0..n)
@@ -1040,7 +1070,7 @@ mod tests {
         let n = 50;
         let d0 = vec![2.5; n];
         let (cp, ri, v0) = tridiag(&d0);
-        let mut s = SpdSolver::new(n, cp.clone(), ri.clone(), None).unwrap();
+        let mut s = SpdSolver::new(n, cp.clone(), ri.clone(), None, None).unwrap();
         let mut b: Vec<f64> = (0..n).map(|i| (i as f64).sin()).collect();
         s.solve(&v0, &mut b).unwrap();
         // Change two diagonal entries: CG with the old factor must reach the direct answer.
@@ -1053,7 +1083,7 @@ mod tests {
         s.solve_near(&v1, &mut x_near, 4).unwrap();
         assert_eq!(s.near_solves, 1);
         assert_eq!(s.factorizations, 1);
-        let mut direct = SpdSolver::new(n, cp, ri, None).unwrap();
+        let mut direct = SpdSolver::new(n, cp, ri, None, None).unwrap();
         let mut x = rhs.clone();
         direct.solve(&v1, &mut x).unwrap();
         for (a, b) in x.iter().zip(&x_near) {

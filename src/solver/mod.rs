@@ -147,15 +147,13 @@ impl<'a> Solver<'a> {
     /// Set up (symbolic factorisation) for `net`.
     pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
         let (order, a, b) = linsys::nested_dissection_split(net.nx, net.nz, &net.unk_of);
-        let mut lin = SpdSolver::new(
+        let lin = SpdSolver::new(
             net.n,
             net.col_ptr.clone(),
             net.row_idx.clone(),
             Some(&order),
+            params.split_halves.then_some((a, b)),
         )?;
-        if params.split_halves {
-            lin.use_split(a, b)?;
-        }
         Ok(Solver {
             lin,
             k: vec![0.0; net.n],
