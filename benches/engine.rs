@@ -148,6 +148,13 @@ fn main() {
     );
 
     // A/B: the demo with the split factorisation against the whole one, runs alternated.
+    let whole = simulate::RunOptions {
+        solver: SolverParams {
+            split_halves: false,
+            ..SolverParams::default()
+        },
+        ..Default::default()
+    };
     alternated(
         runs,
         "split factorisation",
@@ -155,9 +162,7 @@ fn main() {
             simulate::run(&case, &mut |_| {}).unwrap();
         },
         || {
-            std::env::set_var("FROSTLINE_NO_SPLIT", "1");
-            simulate::run(&case, &mut |_| {}).unwrap();
-            std::env::remove_var("FROSTLINE_NO_SPLIT");
+            simulate::run_with(&case, &whole, &mut |_| {}).unwrap();
         },
     );
 

@@ -49,8 +49,8 @@ pub struct SolverParams {
     pub near_factor_cells: usize,
     /// Factor and solve the two halves of the first nested-dissection bisection side by side
     /// (two threads of rayon's pool; inside a pool already busy with other runs they share it).
-    /// Default true, false when the environment variable `FROSTLINE_NO_SPLIT` is set (for A/B
-    /// benchmarks; results agree to rounding either way).
+    /// Default true (false for A/B benchmarks through `simulate::run_with`; results agree to
+    /// rounding either way).
     pub split_halves: bool,
 }
 
@@ -62,7 +62,7 @@ impl Default for SolverParams {
             max_halvings: 8,
             max_picard: 100,
             near_factor_cells: 4,
-            split_halves: std::env::var_os("FROSTLINE_NO_SPLIT").is_none(),
+            split_halves: true,
         }
     }
 }
