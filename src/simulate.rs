@@ -845,11 +845,11 @@ fn run_here(
     let mut coarse_spin_up_years = usize::from(case.simulation.coarse_year_step_days > 0);
     if coarse_spin_up_years > 0 {
         let (h0, t0, steps0, time0) = (drv.h.clone(), drv.t.clone(), drv.time_steps, drv.sim_time);
-        let limits = (opts.solver.max_newton, opts.solver.max_halvings);
-        let (n, hv) = opts.coarse_limits.unwrap_or(limits);
-        (drv.solver.params.max_newton, drv.solver.params.max_halvings) = (n, hv);
+        if let Some((newton, halvings)) = opts.coarse_limits {
+            (drv.solver.params.max_newton, drv.solver.params.max_halvings) = (newton, halvings);
+        }
         let coarse = drv.coarse_period(&spin_days, case.simulation.coarse_year_step_days);
-        (drv.solver.params.max_newton, drv.solver.params.max_halvings) = limits;
+        drv.solver.params = opts.solver;
         if coarse.is_err() {
             (drv.h, drv.t, drv.time_steps, drv.sim_time) = (h0, t0, steps0, time0);
             coarse_spin_up_years = 0;

@@ -6,10 +6,10 @@
 //! For a supernodal factor the triangular solves run in plain loops over faer's factor layout
 //! (`Layout`), about a quarter faster than faer's generic solve on the demo matrix.
 //!
-//! With a split point given to [`SpdSolver::new`] the factorisation and the solves run in two halves side by side
-//! (`Split`): the unknowns on either side of the first nested-dissection separator, each with
-//! the separator, are factored by faer on their own, and the separator's Schur complement is
-//! assembled from the two trailing blocks and factored densely. Demo (`cargo bench --bench
+//! With a split point given to [`SpdSolver::new`] the factorisation and the solves run in two
+//! halves side by side (`Split`): the unknowns on either side of the first nested-dissection
+//! separator, each with the separator, are factored by faer on their own, and the separator's
+//! Schur complement is assembled from the two trailing blocks and factored densely. Demo (`cargo bench --bench
 //! engine`, 2 cores): 0.70–0.84 of the whole factor's time per freezing step, 0.80 end to end.
 use crate::error::{Error, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
@@ -178,9 +178,13 @@ pub struct SpdSolver {
     pub cg_iterations: usize,
     touched: Vec<bool>,
     work: [Vec<f64>; 4],
-    /// Exactly one of the two is set: the whole factor, or the split one.
-    whole: Option<Whole>,
-    split: Option<Split>,
+    factor: Factor,
+}
+
+/// How the matrix is factored: whole, or in two halves and the separator (`Split`).
+enum Factor {
+    Whole(Box<Whole>),
+    Split(Box<Split>),
 }
 
 /// The factorisation of the whole matrix by faer.
@@ -656,9 +660,9 @@ impl SpdSolver {
             (Some(fwd), Some((a, b))) => Split::new(&pattern, fwd, a, b)?,
             _ => None,
         };
-        let whole = match split {
-            Some(_) => None,
-            None => Some(Whole::new(&pattern, order)?),
+        let factor = match split {
+            Some(sp) => Factor::Split(Box::new(sp)),
+            None => Factor::Whole(Box::new(Whole::new(&pattern, order)?)),
         };
         Ok(SpdSolver {
             n,
@@ -671,14 +675,13 @@ impl SpdSolver {
             cg_iterations: 0,
             touched: vec![false; n],
             work: [vec![0.0; n], vec![0.0; n], vec![0.0; n], vec![0.0; n]],
-            whole,
-            split,
+            factor,
         })
     }
 
     /// Whether the split factorisation is in use.
     pub fn is_split(&self) -> bool {
-        self.split.is_some()
+        matches!(self.factor, Factor::Split(_))
     }
 
     /// Solve A x = rhs in place; `vals` are A's lower-triangle values in pattern order.
@@ -735,10 +738,9 @@ impl SpdSolver {
 
     /// Apply the current factor's inverse to `v` in place.
     fn precondition(&mut self, v: &mut [f64]) {
-        match (&mut self.split, &mut self.whole) {
-            (Some(sp), _) => sp.solve(v),
-            (None, Some(w)) => w.solve(v),
-            (None, None) => unreachable!("a solver holds a whole or a split factor"),
+        match &mut self.factor {
+            Factor::Split(sp) => sp.solve(v),
+            Factor::Whole(w) => w.solve(v),
         }
         self.solves += 1;
     }
@@ -798,10 +800,9 @@ impl SpdSolver {
     /// Solve A x = rhs in place, refactoring whenever `vals` changed.
     pub fn solve(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
         if !self.valid || self.factored != vals {
-            match (&mut self.split, &mut self.whole) {
-                (Some(sp), _) => sp.factor(vals)?,
-                (None, Some(w)) => w.factor(&self.pattern, vals)?,
-                (None, None) => unreachable!("a solver holds a whole or a split factor"),
+            match &mut self.factor {
+                Factor::Split(sp) => sp.factor(vals)?,
+                Factor::Whole(w) => w.factor(&self.pattern, vals)?,
             }
             self.factored.copy_from_slice(vals);
             self.valid = true;
@@ -1021,12 +1022,14 @@ mod tests {
         let v = grid_values(&cp, &ri, 0);
         let order = nested_dissection(nx, nz, &unk);
         let mut own = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), None).unwrap();
-        assert!(
-            own.whole.as_ref().unwrap().layout.is_some(),
-            "forced supernodal"
-        );
+        let Factor::Whole(w) = &own.factor else {
+            panic!("whole factor expected")
+        };
+        assert!(w.layout.is_some(), "forced supernodal");
         let mut faer_only = SpdSolver::new(n, cp, ri, Some(&order), None).unwrap();
-        faer_only.whole.as_mut().unwrap().layout = None;
+        if let Factor::Whole(w) = &mut faer_only.factor {
+            w.layout = None;
+        }
         let b: Vec<f64> = (0..n).map(|k| (k as f64 * 0.7).cos()).collect();
         let (mut x1, mut x2) = (b.clone(), b.clone());
         own.solve(&v, &mut x1).unwrap();
@@ -1048,7 +1051,7 @@ mod tests {
         assert!(a > 0 && a < b && b < n, "{a} {b} {n}");
         let mut split =
             SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), Some((a, b))).unwrap();
-        assert!(split.is_split() && split.whole.is_none());
+        assert!(split.is_split());
         let mut whole = SpdSolver::new(n, cp.clone(), ri.clone(), Some(&order), None).unwrap();
         for round in 0..3 {
             let v = grid_values(&cp, &ri, round);
