@@ -3,7 +3,7 @@
 //! machine is shared and noisy, so compare medians and ratios, not single runs.
 use frostline::case::load_case;
 use frostline::geometry::Section;
-use frostline::simulate;
+use frostline::run;
 use frostline::solver::{Network, Solver, SolverParams};
 use std::time::Instant;
 
@@ -40,7 +40,7 @@ fn main() {
         .unwrap_or(5);
 
     // Steady solve: mesh and symbolic analysis outside the timer, then assembly + factor + solve.
-    let mesh = Section::from_case(&case).unwrap().mesh(&case);
+    let mesh = Section::from_case(&case).mesh(&case);
     let net = Network::new(&mesh);
     let mut steady = Vec::new();
     let mut setup = Vec::new();
@@ -109,7 +109,7 @@ fn main() {
     let mut last = None;
     for _ in 0..runs {
         let t0 = Instant::now();
-        let r = simulate::run(&case, &mut |_| {}).unwrap();
+        let r = run::run(&case, &mut |_| {}).unwrap();
         let dt = t0.elapsed().as_secs_f64();
         total.push(dt);
         per_step.push(dt / r.time_steps as f64);
@@ -140,15 +140,15 @@ fn main() {
         runs,
         "5-day first spin-up year",
         || {
-            simulate::run(&case, &mut |_| {}).unwrap();
+            run::run(&case, &mut |_| {}).unwrap();
         },
         || {
-            simulate::run(&plain_case, &mut |_| {}).unwrap();
+            run::run(&plain_case, &mut |_| {}).unwrap();
         },
     );
 
     // A/B: the demo with the split factorisation against the whole one, runs alternated.
-    let whole = simulate::RunOptions {
+    let whole = run::RunOptions {
         solver: SolverParams {
             split_halves: false,
             ..SolverParams::default()
@@ -159,10 +159,10 @@ fn main() {
         runs,
         "split factorisation",
         || {
-            simulate::run(&case, &mut |_| {}).unwrap();
+            run::run(&case, &mut |_| {}).unwrap();
         },
         || {
-            simulate::run_with(&case, &whole, &mut |_| {}).unwrap();
+            run::run_with(&case, &whole, &mut |_| {}).unwrap();
         },
     );
 

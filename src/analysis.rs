@@ -1,4 +1,4 @@
-//! Post-processing of solved fields: point temperatures, frost depth on a vertical line, fits.
+//! Post-processing of solved fields: point temperatures and the frost depth on a vertical line.
 use crate::mesh::{Cell, Mesh};
 use crate::solver::network::{Network, Side};
 
@@ -174,64 +174,4 @@ pub fn frost_depth_column(
         _ => g.ze[j + 1],
     };
     Some(z.max(z_from))
-}
-
-/// Least-squares fit of v(t) = m + a cos(ωt) + b sin(ωt); returns (mean, amplitude, phase φ) with
-/// v = m + A cos(ωt − φ).
-pub fn fit_sinusoid(times: &[f64], values: &[f64], omega: f64) -> (f64, f64, f64) {
-    // Normal equations for the 3 basis functions.
-    let mut ata = [[0.0; 3]; 3];
-    let mut atb = [0.0; 3];
-    for (&t, &v) in times.iter().zip(values) {
-        let row = [1.0, (omega * t).cos(), (omega * t).sin()];
-        for r in 0..3 {
-            atb[r] += row[r] * v;
-            for c in 0..3 {
-                ata[r][c] += row[r] * row[c];
-            }
-        }
-    }
-    let x = solve3(ata, atb);
-    let amp = (x[1] * x[1] + x[2] * x[2]).sqrt();
-    (x[0], amp, x[2].atan2(x[1]))
-}
-
-fn solve3(mut a: [[f64; 3]; 3], mut b: [f64; 3]) -> [f64; 3] {
-    for c in 0..3 {
-        let piv = (c..3)
-            .max_by(|&r, &s| a[r][c].abs().total_cmp(&a[s][c].abs()))
-            .unwrap_or(c);
-        a.swap(c, piv);
-        b.swap(c, piv);
-        for r in c + 1..3 {
-            let f = a[r][c] / a[c][c];
-            for k in c..3 {
-                a[r][k] -= f * a[c][k];
-            }
-            b[r] -= f * b[c];
-        }
-    }
-    let mut x = [0.0; 3];
-    for r in (0..3).rev() {
-        let s: f64 = (r + 1..3).map(|k| a[r][k] * x[k]).sum();
-        x[r] = (b[r] - s) / a[r][r];
-    }
-    x
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn sinusoid_fit_recovers_parameters() {
-        let w = 2.0 * std::f64::consts::PI / 365.0;
-        let ts: Vec<f64> = (0..365).map(|d| d as f64).collect();
-        let vs: Vec<f64> = ts
-            .iter()
-            .map(|&t| 4.0 + 12.0 * (w * t - 0.7).cos())
-            .collect();
-        let (m, a, p) = fit_sinusoid(&ts, &vs, w);
-        assert!((m - 4.0).abs() < 1e-9 && (a - 12.0).abs() < 1e-9 && (p - 0.7).abs() < 1e-9);
-    }
 }

@@ -1,12 +1,14 @@
-//! Command-line interface: the only module that knows argv, stdout, stderr and progress bars.
-use crate::case::{load_case, Case, Fineness};
-use crate::error::Error;
-use crate::geometry::Section;
-use crate::plot::PlotOptions;
-use crate::report;
-use crate::simulate::{self, Progress};
+//! The command line: argv, stdout, stderr, progress bars and exit codes (the only part of
+//! frostline that knows them; the library never prints).
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use std::path::PathBuf;
+use frostline::case::{load_case, Case, Fineness};
+use frostline::error::{Error, InputKind};
+use frostline::physics::climate::FitMethod;
+use frostline::physics::library::KMethod;
+use frostline::plot::PlotOptions;
+use frostline::report::{self, text};
+use frostline::{estimate, files, run};
+use std::path::{Path, PathBuf};
 
 /// Ground heat loss and frost depth under slab-on-ground foundations, from a 2D freezing-soil model.
 #[derive(Parser, Debug)]
@@ -207,7 +209,25 @@ pub struct PlotArgs {
     pub animate: bool,
 }
 
-/// Run the CLI and return the process exit code (0 ok, 2 bad input or usage, 1 failure).
+impl From<FitArg> for FitMethod {
+    fn from(f: FitArg) -> Self {
+        match f {
+            FitArg::Lmoments => FitMethod::LMoments,
+            FitArg::Mle => FitMethod::MaximumLikelihood,
+        }
+    }
+}
+
+impl From<MethodArg> for KMethod {
+    fn from(m: MethodArg) -> Self {
+        match m {
+            MethodArg::Johansen => KMethod::Johansen,
+            MethodArg::Kersten => KMethod::Kersten,
+        }
+    }
+}
+
+/// Exit code: 0 ok, 2 bad input or usage, 1 runtime or I/O failure.
 pub fn main_exit_code() -> i32 {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -232,394 +252,248 @@ pub fn main_exit_code() -> i32 {
 fn execute(cli: Cli) -> Result<(), Error> {
     match cli.command {
         Command::Check { case } => {
-            let case = load_case(&case)?;
-            print!("{}", check_text(&case)?);
+            print!("{}", text::check_text(&load_case(&case)?)?);
             Ok(())
         }
-        Command::Size(a) => {
-            let mut case = load_case(&a.case)?;
-            if let Some(m) = a.mesh {
-                case.simulation.mesh = m.into();
-            }
-            if let (Some(m), Some(s)) = (a.margin, case.sizing.as_mut()) {
-                if !(-1.0..=2.0).contains(&m) {
-                    return Err(Error::Input {
-                        location: crate::error::Location::file_only("command line"),
-                        key: "--margin".into(),
-                        message: format!("{m} m is out of range; allowed: -1 to 2 m"),
-                    });
-                }
-                s.margin_m = m;
-            }
-            if let Some(j) = a.jobs {
-                let _ = rayon::ThreadPoolBuilder::new()
-                    .num_threads(j.max(1))
-                    .build_global();
-            }
-            let bar = if a.quiet {
-                indicatif::ProgressBar::hidden()
-            } else {
-                indicatif::ProgressBar::new_spinner()
-            };
-            bar.set_message("model runs");
-            let cb = |n: usize| bar.set_message(format!("{n} model runs"));
-            let result = crate::design::size(&case, &cb);
-            bar.finish_and_clear();
-            let result = result?;
-            let mut files = crate::report::sizing::write(&case, &result, &a.out)?;
-            // The chosen design, run as the case file written for it: its full results, plots and
-            // report (with the sizing) in the same directory.
-            if result.chosen.is_some() {
-                let chosen = load_case(&a.out.join("chosen_case.toml"))?;
-                let r = simulate::run(&chosen, &mut |_| {})?;
-                files.extend(report::write_outputs(&chosen, &r, &a.out)?);
-                files.extend(crate::plot::render_dir(&a.out, &PlotOptions::default())?);
-                files.push(crate::report::html::write_report(&a.out)?);
-            }
-            print!("{}", crate::report::sizing::text(&case, &result));
-            print_files(&a.out, &files);
-            Ok(())
-        }
+        Command::Size(a) => size(a),
         Command::Soil(a) => {
-            print!("{}", soil_text(&a)?);
+            print!("{}", soil(&a)?);
             Ok(())
         }
-        Command::Climate(a) => {
-            use crate::physics::climate::{read_series, summarize, FitMethod, ReadOptions};
-            if !(a.return_period > 1.0 && a.return_period <= 10_000.0) {
-                return Err(Error::Input {
-                    location: crate::error::Location::file_only("command line"),
-                    key: "--return-period".into(),
-                    message: format!(
-                        "{} is out of range; allowed: more than 1 and at most 10000 years",
-                        a.return_period
-                    ),
-                });
+        Command::Climate(a) => climate(a),
+        Command::Plot(a) => plot(a),
+        Command::Run(a) => run_case(a),
+    }
+}
+
+/// A range check of a command-line value.
+fn flag_range<T: PartialOrd + std::fmt::Display>(
+    v: T,
+    (lo, hi): (T, T),
+    key: &str,
+    allowed: &str,
+) -> Result<T, Error> {
+    if v >= lo && v <= hi {
+        Ok(v)
+    } else {
+        Err(Error::command_line(
+            key,
+            InputKind::OutOfRange,
+            format!("{v} is out of range; allowed: {allowed}"),
+        ))
+    }
+}
+
+/// A progress spinner or bar, hidden with --quiet (and by indicatif when stderr is no terminal).
+fn bar(quiet: bool, len: Option<u64>) -> indicatif::ProgressBar {
+    if quiet {
+        return indicatif::ProgressBar::hidden();
+    }
+    match len {
+        None => indicatif::ProgressBar::new_spinner(),
+        Some(n) => {
+            let b = indicatif::ProgressBar::new(n);
+            if let Ok(style) =
+                indicatif::ProgressStyle::with_template("{spinner} year {msg} [{bar:30}] {elapsed}")
+            {
+                b.set_style(style.progress_chars("=> "));
             }
-            let opts = ReadOptions {
-                max_gap_days: a.max_gap_days,
-                ..Default::default()
-            };
-            let series = read_series(&a.series, &opts)?;
-            let method = match a.fit {
-                FitArg::Lmoments => FitMethod::LMoments,
-                FitArg::Mle => FitMethod::MaximumLikelihood,
-            };
-            let s = summarize(&series, a.return_period, method)?;
-            print!("{}", climate_text(&s));
-            if let Some(dir) = a.out {
-                std::fs::create_dir_all(&dir).map_err(|e| Error::Io {
-                    path: dir.clone(),
-                    source: e,
-                })?;
-                let json =
-                    serde_json::to_vec_pretty(&s).map_err(|e| Error::Output(e.to_string()))?;
-                let p = crate::report::write_atomic(&dir, "climate_summary.json", &json)?;
-                println!("\n  wrote {}", p.display());
-            }
-            Ok(())
-        }
-        Command::Plot(a) => {
-            let zoom = match a.zoom {
-                None => None,
-                Some(text) => {
-                    let v: Vec<f64> = text
-                        .split(',')
-                        .filter_map(|x| x.trim().parse().ok())
-                        .collect();
-                    if v.len() != 4 || text.split(',').count() != 4 {
-                        return Err(Error::Input {
-                            location: crate::error::Location::file_only("command line"),
-                            key: "--zoom".into(),
-                            message: format!(
-                                "\"{text}\" is not four numbers; allowed: x0,x1,z0,z1 in m"
-                            ),
-                        });
-                    }
-                    Some([v[0], v[1], v[2], v[3]])
-                }
-            };
-            let opts = PlotOptions {
-                day_of_year: a.day,
-                zoom,
-                animate: a.animate,
-            };
-            let mut files = crate::plot::render_dir(&a.dir, &opts)?;
-            files.push(crate::report::html::write_report(&a.dir)?);
-            for f in files {
-                println!("{}", f.display());
-            }
-            Ok(())
-        }
-        Command::Run(a) => {
-            let mut case = load_case(&a.case)?;
-            if let Some(m) = a.mesh {
-                case.simulation.mesh = m.into();
-            }
-            if let Some(y) = a.max_spin_up_years {
-                if !(1..=100).contains(&y) {
-                    return Err(Error::Input {
-                        location: crate::error::Location::file_only("command line"),
-                        key: "--max-spin-up-years".into(),
-                        message: format!("{y} is out of range; allowed: 1 to 100"),
-                    });
-                }
-                case.simulation.max_spin_up_years = y;
-            }
-            let bar = if a.quiet {
-                indicatif::ProgressBar::hidden()
-            } else {
-                let b = indicatif::ProgressBar::new(
-                    ((case.simulation.max_spin_up_years + 1) * 365) as u64,
-                );
-                if let Ok(style) = indicatif::ProgressStyle::with_template(
-                    "{spinner} year {msg} [{bar:30}] {elapsed}",
-                ) {
-                    b.set_style(style.progress_chars("=> "));
-                }
-                b
-            };
-            let mut cb = |p: Progress| {
-                if p.day == 1 {
-                    bar.set_message(format!("{}", p.year + 1));
-                }
-                bar.set_position((p.year * 365 + p.day) as u64);
-            };
-            let result = simulate::run(&case, &mut cb);
-            bar.finish_and_clear();
-            let result = result?;
-            let mut files = report::write_outputs(&case, &result, &a.out)?;
-            if !a.no_plots {
-                let opts = PlotOptions {
-                    animate: a.animate,
-                    ..Default::default()
-                };
-                files.extend(crate::plot::render_dir(&a.out, &opts)?);
-                files.push(crate::report::html::write_report(&a.out)?);
-            }
-            print!("{}", report::result_table(&case, &result));
-            print_files(&a.out, &files);
-            Ok(())
+            b
         }
     }
 }
 
-/// The text `check` prints: geometry, mesh, and the closed-form estimates.
-pub fn check_text(case: &Case) -> Result<String, Error> {
-    let section = Section::from_case(case)?;
-    let mesh = section.mesh(case);
-    let c = simulate::cross_check(case);
-    let mut s = format!("{}: case is valid\n", case.name);
-    s += &format!(
-        "  B' = {:.3} m (A {:.1} m², P {:.1} m)\n",
-        case.building.b_prime_m, case.building.floor_area_m2, case.building.exposed_perimeter_m
+fn run_case(a: RunArgs) -> Result<(), Error> {
+    let mut case = load_case(&a.case)?;
+    if let Some(m) = a.mesh {
+        case.simulation.mesh = m.into();
+    }
+    if let Some(y) = a.max_spin_up_years {
+        case.simulation.max_spin_up_years =
+            flag_range(y, (1, 100), "--max-spin-up-years", "1 to 100")?;
+    }
+    let bar = bar(
+        a.quiet,
+        Some(((case.simulation.max_spin_up_years + 1) * 365) as u64),
     );
-    s += &format!(
-        "  section: x {:.2} … {:.2} m, z {:.2} … {:.2} m\n",
-        section.x_min, section.x_max, section.z_top, section.z_bottom
-    );
-    s += &format!(
-        "  mesh ({:?}): {} × {} grid, {} solid cells\n",
-        case.simulation.mesh,
-        mesh.grid.nx(),
-        mesh.grid.nz(),
-        mesh.solid_cells()
-    );
-    let sim = &case.simulation;
-    let coarse = match sim.coarse_year_step_days {
-        0 => String::new(),
-        d => format!("one year at {d}-day steps, then "),
-    };
-    s += &format!(
-        "  time: spin-up {coarse}{} to {} years in {} h steps\n",
-        sim.min_spin_up_years,
-        sim.max_spin_up_years,
-        sim.dt_s / 3600.0
-    );
-    s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
-        case.strata[0].material.k_unfrozen, case.strata[0].material.k_frozen,
-        case.strata[0].material.c_unfrozen / 1e6, case.strata[0].material.c_frozen / 1e6, case.strata[0].material.latent / 1e6);
-    let kind = match (&case.climate.source, &case.climate.design) {
-        (crate::case::ClimateSource::Series(sr), _) => {
-            format!("measured series {} ({} days)", sr.source, sr.values.len())
+    let mut cb = |p: run::Progress| {
+        if p.day == 1 {
+            bar.set_message(format!("{}", p.year + 1));
         }
-        (_, Some(d)) => format!(
-            "design year from {} ({:.0}-year index {:.0} °C·d)",
-            d.series, d.return_period_years, d.design_freezing_index_c_days
-        ),
-        _ => "sinusoid".into(),
+        bar.set_position((p.year * 365 + p.day) as u64);
     };
-    s += &format!(
-        "  climate: {kind}; mean {:.2} °C, amplitude {:.2} K, coldest day {:.0}\n",
-        case.climate.mean_c, case.climate.amplitude_k, case.climate.coldest_day
-    );
-    s += &format!(
-        "  surface freezing index {:.0} °C·d over {:.0} d\n",
-        c.freezing_index_c_days, c.freezing_season_days
-    );
-    if let Some(sz) = &case.sizing {
-        s += &format!(
-            "  sizing: margin {:.2} m, {} varied dimension(s)\n",
-            sz.margin_m,
-            sz.vary.len()
-        );
+    let result = run::run(&case, &mut cb);
+    bar.finish_and_clear();
+    let result = result?;
+    let cc = estimate::cross_check(&case);
+    let mut written = files::write_run(&case, &result, &cc, &a.out)?;
+    if !a.no_plots {
+        written.extend(render(&a.out, a.animate)?);
     }
-    s += &format!(
-        "  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
-        c.iso13370_dt_m,
-        c.iso13370_u0_w_per_m2k,
-        c.iso13370_edge_psi_w_per_mk,
-        c.iso13370_u_value_w_per_m2k
+    print!(
+        "{}",
+        text::result_table(&files::Summary::new(&case, &result, &cc))
     );
-    s += &format!("  open-ground frost depth: Stefan {:.2} m, modified Berggren {:.2} m; footing base {:.2} m\n",
-        c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m, case.footing.base_depth_m);
-    Ok(s)
+    print_files(&a.out, &written);
+    Ok(())
 }
 
-/// The table `climate` prints.
-pub fn climate_text(s: &crate::physics::climate::ClimateSummary) -> String {
-    let mut t = format!(
-        "{}: {} to {} ({:.1} years, {} days filled)\n",
-        s.source, s.first_date, s.last_date, s.years, s.filled_days
-    );
-    t += &format!(
-        "  mean annual temperature          {:>8.2} °C\n",
-        s.mean_annual_temperature_c
-    );
-    t += &format!(
-        "  annual sinusoid amplitude        {:>8.2} K, coldest on day {:.0}\n",
-        s.annual_amplitude_k, s.coldest_day_of_year
-    );
-    t += "  freezing index by winter (°C·d):\n";
-    for w in &s.freezing_index_by_winter_c_days {
-        t += &format!(
-            "    {}/{:02} {:>8.0}\n",
-            w.winter,
-            (w.winter + 1) % 100,
-            w.value
-        );
-    }
-    t += &format!(
-        "  design freezing index, {:.0}-year   {:>8.0} °C·d (Gumbel {:?}: location {:.1}, scale {:.1}; KS D {:.3}, p {:.2})\n",
-        s.return_period_years, s.design_freezing_index_c_days, s.fit_method, s.gumbel_location_c_days, s.gumbel_scale_c_days, s.ks_statistic, s.ks_p_value
-    );
-    t += &format!(
-        "  mean of the 3 coldest winters    {:>8.0} °C·d\n",
-        s.mean_of_three_coldest_c_days
-    );
-    t += &format!(
-        "  coldest winter                   {:>8.0} °C·d\n",
-        s.max_freezing_index_c_days
-    );
-    t
+/// Plots and report.html of the run in `dir`.
+fn render(dir: &Path, animate: bool) -> Result<Vec<PathBuf>, Error> {
+    let opts = PlotOptions {
+        animate,
+        ..Default::default()
+    };
+    let mut written = frostline::plot::render_dir(dir, &opts)?;
+    written.push(report::html::write_report(dir)?);
+    Ok(written)
 }
 
-/// The text `soil` prints.
-pub fn soil_text(a: &SoilArgs) -> Result<String, Error> {
-    use crate::physics::library::{bundled_soil, soil_properties, KMethod, SOILS};
-    let bad = |key: &str, message: String| Error::Input {
-        location: crate::error::Location::file_only("command line"),
-        key: key.into(),
-        message,
-    };
+fn size(a: SizeArgs) -> Result<(), Error> {
+    let mut case: Case = load_case(&a.case)?;
+    if let Some(m) = a.mesh {
+        case.simulation.mesh = m.into();
+    }
+    if let (Some(m), Some(s)) = (a.margin, case.sizing.as_mut()) {
+        s.margin_m = flag_range(m, (-1.0, 2.0), "--margin", "-1 to 2 m")?;
+    }
+    if case.sizing.is_none() {
+        return Err(Error::in_file(
+            &case.file,
+            "sizing",
+            InputKind::Missing,
+            "the case has no [sizing] table; `frostline size` needs one",
+        ));
+    }
+    if let Some(j) = a.jobs {
+        let _ = rayon::ThreadPoolBuilder::new()
+            .num_threads(j.max(1))
+            .build_global();
+    }
+    let bar = bar(a.quiet, None);
+    bar.set_message("model runs");
+    let cb = |n: usize| bar.set_message(format!("{n} model runs"));
+    let result = frostline::design::size(&case, &cb);
+    bar.finish_and_clear();
+    let result = result?;
+    let mut written = files::write_sizing(&case, &result, &a.out)?;
+    // The chosen design's full results, plots and report (with the sizing) in the same directory.
+    if let Some((chosen, r)) = &result.chosen_run {
+        written.extend(files::write_run(
+            chosen,
+            r,
+            &estimate::cross_check(chosen),
+            &a.out,
+        )?);
+        written.extend(render(&a.out, false)?);
+    }
+    print!(
+        "{}",
+        report::sizing::text(&files::SizingFile::new(&case, &result))
+    );
+    print_files(&a.out, &written);
+    Ok(())
+}
+
+fn soil(a: &SoilArgs) -> Result<String, Error> {
+    use frostline::physics::library::{bundled_soil, SOILS};
     if a.list || a.name.is_none() {
-        let mut t =
-            String::from("Soil library (typical values per class; replace with site data):\n");
-        for (n, _) in SOILS {
-            if let Some(s) = bundled_soil(n) {
-                t += &format!(
-                    "  {n:<16} {:<58} frost: {}\n",
-                    s.description, s.frost_susceptibility
-                );
-            }
-        }
-        return Ok(t);
+        return Ok(text::soil_list());
     }
     let name = a.name.as_deref().unwrap_or("");
     let mut s = bundled_soil(name).ok_or_else(|| {
         let names: Vec<&str> = SOILS.iter().map(|(n, _)| *n).collect();
-        bad(
+        Error::command_line(
             "NAME",
+            InputKind::UnknownName,
             format!(
                 "no soil \"{name}\" in the library; known: {}",
                 names.join(", ")
             ),
         )
     })?;
-    let changed = a.dry_density.is_some() || a.water_content.is_some() || a.quartz.is_some();
-    let check =
-        |v: Option<f64>, lo: f64, hi: f64, key: &str, unit: &str| -> Result<Option<f64>, Error> {
-            match v {
-                Some(x) if !(lo..=hi).contains(&x) => Err(bad(
-                    key,
-                    format!("{x} is out of range; allowed: {lo} to {hi} {unit}"),
-                )),
-                other => Ok(other),
-            }
-        };
-    if let Some(v) = check(a.dry_density, 100.0, 2700.0, "--dry-density", "kg/m³")? {
-        s.dry_density_kg_per_m3 = v;
-    }
-    if let Some(v) = check(
-        a.water_content,
-        0.0,
-        5.0,
-        "--water-content",
-        "(fraction of dry mass)",
-    )? {
-        s.water_content = v;
-    }
-    if let Some(v) = check(a.quartz, 0.0, 1.0, "--quartz", "(fraction)")? {
-        s.quartz_fraction = v;
-    }
-    if changed {
-        s.k_unfrozen_w_per_mk = None;
-        s.k_frozen_w_per_mk = None;
-        s.c_unfrozen_j_per_m3k = None;
-        s.c_frozen_j_per_m3k = None;
-        s.latent_heat_j_per_m3 = None;
-    }
-    let method = match a.method {
-        MethodArg::Johansen => KMethod::Johansen,
-        MethodArg::Kersten => KMethod::Kersten,
-    };
-    let (ku, kf, cu, cf, l) = soil_properties(&s, method)
-        .ok_or_else(|| bad("--method", "Kersten's fits need at least 7 % water (fine soils) or 1 % (coarse); allowed: --method johansen".into()))?;
-    let explicit = s.k_unfrozen_w_per_mk.is_some();
-    let mut t = format!(
-        "{} ({name}): {}\n  source: {}\n",
-        s.name, s.description, s.source
-    );
-    t += &format!("  dry density {:.0} kg/m³, water content {:.1} % of dry mass, quartz {:.0} %, texture {:?}, saturation {:.0} %\n",
-        s.dry_density_kg_per_m3, 100.0 * s.water_content, 100.0 * s.quartz_fraction, s.texture, 100.0 * s.index().saturation());
-    t += &format!("  frost susceptibility: {}\n", s.frost_susceptibility);
-    t += &format!(
-        "  conductivity ({}):  unfrozen {ku:.3} W/(m·K), frozen {kf:.3} W/(m·K)\n",
-        if explicit {
-            "explicit in the soil file"
-        } else if matches!(method, KMethod::Kersten) {
-            "Kersten 1949"
-        } else {
-            "Johansen 1975"
+    if a.dry_density.is_some() || a.water_content.is_some() || a.quartz.is_some() {
+        let mut ix = s.index();
+        if let Some(v) = a.dry_density {
+            ix.dry_density = flag_range(v, (100.0, 2700.0), "--dry-density", "100 to 2700 kg/m³")?;
         }
-    );
-    t += &format!(
-        "  volumetric heat capacity: unfrozen {:.3} MJ/(m³·K), frozen {:.3} MJ/(m³·K)\n",
-        cu / 1e6,
-        cf / 1e6
-    );
-    t += &format!(
-        "  volumetric latent heat: {:.1} MJ/m³ (ρd · w · 333.7 kJ/kg)\n",
-        l / 1e6
-    );
-    t += &format!("  diffusivity (unfrozen): {:.3e} m²/s\n", ku / cu);
-    Ok(t)
+        if let Some(v) = a.water_content {
+            ix.water_content = flag_range(
+                v,
+                (0.0, 5.0),
+                "--water-content",
+                "0 to 5 (fraction of dry mass)",
+            )?;
+        }
+        if let Some(v) = a.quartz {
+            ix.quartz = flag_range(v, (0.0, 1.0), "--quartz", "0 to 1 (fraction)")?;
+        }
+        s = s.with_index(ix);
+    }
+    text::soil_text(name, &s, a.method.into()).ok_or_else(|| {
+        Error::command_line("--method", InputKind::OutOfRange, "Kersten's fits need at least 7 % water (fine soils) or 1 % (coarse); allowed: --method johansen")
+    })
+}
+
+fn climate(a: ClimateArgs) -> Result<(), Error> {
+    use frostline::physics::climate::{read_series, summarize, ReadOptions};
+    if !(a.return_period > 1.0 && a.return_period <= 10_000.0) {
+        return Err(Error::command_line(
+            "--return-period",
+            InputKind::OutOfRange,
+            format!(
+                "{} is out of range; allowed: more than 1 and at most 10000 years",
+                a.return_period
+            ),
+        ));
+    }
+    let opts = ReadOptions {
+        max_gap_days: a.max_gap_days,
+        ..Default::default()
+    };
+    let series = read_series(&a.series, &opts)?;
+    let s = summarize(&series, a.return_period, a.fit.into())?;
+    print!("{}", text::climate_text(&s));
+    if let Some(dir) = a.out {
+        files::create_dir(&dir)?;
+        let p = files::write_json(&dir, "climate_summary.json", &s)?;
+        println!("\n  wrote {}", p.display());
+    }
+    Ok(())
+}
+
+fn plot(a: PlotArgs) -> Result<(), Error> {
+    let zoom = match a.zoom {
+        None => None,
+        Some(text) => {
+            let v: Vec<f64> = text
+                .split(',')
+                .filter_map(|x| x.trim().parse().ok())
+                .collect();
+            let ok = v.len() == 4 && text.split(',').count() == 4 && v[1] > v[0] && v[3] > v[2];
+            if !ok {
+                return Err(Error::command_line("--zoom", InputKind::Syntax, format!("\"{text}\" is not a window; allowed: x0,x1,z0,z1 in m with x0 < x1 and z0 < z1")));
+            }
+            Some([v[0], v[1], v[2], v[3]])
+        }
+    };
+    let opts = PlotOptions {
+        day_of_year: a.day,
+        zoom,
+        animate: a.animate,
+    };
+    let mut written = frostline::plot::render_dir(&a.dir, &opts)?;
+    written.push(report::html::write_report(&a.dir)?);
+    for f in written {
+        println!("{}", f.display());
+    }
+    Ok(())
 }
 
 /// List the files written in `dir`, by name.
-fn print_files(dir: &std::path::Path, files: &[std::path::PathBuf]) {
+fn print_files(dir: &Path, written: &[PathBuf]) {
     println!("\n  Files in {}:", dir.display());
-    for f in files {
+    for f in written {
         println!(
             "    {}",
             f.file_name()

@@ -1,11 +1,11 @@
-//! The library's one error type. Input errors carry the file, position and key; numerical failures
-//! carry their diagnostics.
+//! The library's one error type. Input errors carry the file, position, key and a kind; numerical
+//! failures carry their diagnostics.
 use std::path::PathBuf;
 
 /// Where in an input file a problem sits.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Location {
-    /// File name as given by the user.
+    /// File name as given by the user ("command line" for flags).
     pub file: String,
     /// 1-based line, 0 when unknown.
     pub line: usize,
@@ -16,7 +16,11 @@ pub struct Location {
 impl Location {
     /// Location of byte offset `offset` in `src`.
     pub fn from_offset(file: &str, src: &str, offset: usize) -> Self {
-        let upto = &src[..offset.min(src.len())];
+        let mut off = offset.min(src.len());
+        while !src.is_char_boundary(off) {
+            off -= 1;
+        }
+        let upto = &src[..off];
         let line = upto.matches('\n').count() + 1;
         let column = upto
             .rsplit('\n')
@@ -51,6 +55,30 @@ impl std::fmt::Display for Location {
     }
 }
 
+/// What is wrong with an input, for callers that act on the kind rather than the words.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum InputKind {
+    /// Not valid TOML or CSV, or a value of the wrong type.
+    Syntax,
+    /// A required key or value is absent.
+    Missing,
+    /// A value lies outside its allowed range.
+    OutOfRange,
+    /// A name that is not one of the known names.
+    UnknownName,
+    /// Keys that exclude each other, or a key not used where it is given.
+    Conflict,
+    /// Construction parts that overlap or leave the domain.
+    Geometry,
+    /// A referenced file that cannot be read.
+    Unreadable,
+    /// A state the model does not cover (permafrost, frost reaching the domain bottom).
+    OutOfScope,
+    /// A directory or file that is not a frostline result.
+    NotAResult,
+}
+
 /// Every failure the library reports.
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
@@ -61,6 +89,8 @@ pub enum Error {
         location: Location,
         /// Dotted key path, e.g. `footing.width_m`.
         key: String,
+        /// What kind of problem.
+        kind: InputKind,
         /// What is wrong and what is allowed.
         message: String,
     },
@@ -92,17 +122,95 @@ pub enum Error {
         /// How many times the step was halved.
         halvings: usize,
     },
+    /// The steady (Picard) solve did not converge.
+    #[error(
+        "steady state: no convergence after {iterations} Picard iterations (largest change {change_k:.3e} K)"
+    )]
+    SteadyNoConvergence {
+        /// Picard iterations done.
+        iterations: usize,
+        /// Largest temperature change of the last iteration, K.
+        change_k: f64,
+    },
+    /// A method failed on its own terms (e.g. the sizing's monotonicity check).
+    #[error("{0}")]
+    Method(String),
     /// Output could not be encoded.
     #[error("output: {0}")]
     Output(String),
 }
 
 impl Error {
+    /// An input error at `location`.
+    pub fn input(
+        location: Location,
+        key: &str,
+        kind: InputKind,
+        message: impl Into<String>,
+    ) -> Self {
+        Error::Input {
+            location,
+            key: key.to_string(),
+            kind,
+            message: message.into(),
+        }
+    }
+
+    /// An input error in a command-line flag `key` (e.g. `--margin`).
+    pub fn command_line(key: &str, kind: InputKind, message: impl Into<String>) -> Self {
+        Self::input(Location::file_only("command line"), key, kind, message)
+    }
+
+    /// An input error naming only a file.
+    pub fn in_file(file: &str, key: &str, kind: InputKind, message: impl Into<String>) -> Self {
+        Self::input(Location::file_only(file), key, kind, message)
+    }
+
     /// True for errors caused by the user's input (exit code 2).
     pub fn is_input(&self) -> bool {
         matches!(self, Error::Input { .. })
+    }
+
+    /// The kind of an input error, if it is one.
+    pub fn input_kind(&self) -> Option<InputKind> {
+        match self {
+            Error::Input { kind, .. } => Some(*kind),
+            _ => None,
+        }
+    }
+
+    /// An I/O error on `path`.
+    pub fn io(path: impl Into<PathBuf>, source: std::io::Error) -> Self {
+        Error::Io {
+            path: path.into(),
+            source,
+        }
     }
 }
 
 /// Result with the library error.
 pub type Result<T> = std::result::Result<T, Error>;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn location_counts_lines_and_characters() {
+        let src = "a = 1\nbé = 2\n";
+        let l = Location::from_offset("f.toml", src, src.find('2').unwrap());
+        assert_eq!((l.line, l.column), (2, 6));
+        assert_eq!(l.to_string(), "f.toml:2:6");
+        // An offset inside a multi-byte character does not panic.
+        let l = Location::from_offset("f.toml", src, src.find('é').unwrap() + 1);
+        assert_eq!(l.line, 2);
+    }
+
+    #[test]
+    fn input_errors_carry_their_kind() {
+        let e = Error::command_line("--margin", InputKind::OutOfRange, "9 m is out of range");
+        assert!(e.is_input());
+        assert_eq!(e.input_kind(), Some(InputKind::OutOfRange));
+        assert_eq!(e.to_string(), "command line: --margin: 9 m is out of range");
+    }
+}

@@ -1,4 +1,7 @@
-//! Thin binary: parse argv, run, map the outcome to an exit code (0 ok, 2 bad input, 1 failure).
+//! The `frostline` command: parse argv, run, map the outcome to an exit code (0 ok, 2 bad input
+//! or usage, 1 runtime failure).
+mod cli;
+
 fn main() {
-    std::process::exit(frostline::cli::main_exit_code());
+    std::process::exit(cli::main_exit_code());
 }

@@ -5,6 +5,7 @@
 //! - Stefan's frost-depth formula, the Neumann two-phase solution (Carslaw & Jaeger 1959 §11.2),
 //!   and the modified Berggren formula (Aldrich & Paynter 1953) with λ from the equal-property
 //!   Neumann equation.
+use crate::numerics::bisect_root;
 use statrs::function::erf::{erf, erfc};
 use std::f64::consts::PI;
 
@@ -147,7 +148,7 @@ impl Neumann {
                     / erfc(nu * x)
                 - x * PI.sqrt() / st
         };
-        bisect(f, 1e-8, 10.0)
+        bisect_root(f, 1e-8, 10.0, 1e-14)
     }
 
     /// Front depth X(t) = 2ξ sqrt(a₁ t), m, at time `t_s` (s).
@@ -183,7 +184,7 @@ pub fn modified_berggren_depth(
 pub fn berggren_lambda(alpha: f64, mu: f64) -> f64 {
     let f =
         |x: f64| (-x * x).exp() / erf(x) - alpha * (-x * x).exp() / erfc(x) - x * PI.sqrt() / mu;
-    bisect(f, 1e-9, 10.0) * (2.0 / mu).sqrt()
+    bisect_root(f, 1e-9, 10.0, 1e-14) * (2.0 / mu).sqrt()
 }
 
 /// Design-year sinusoid θ(t) = θ_m − A cos(2πt/365): air freezing index F (°C·d) and freezing
@@ -201,27 +202,6 @@ pub fn sinusoid_freezing_index(mean_c: f64, amplitude_k: f64) -> (f64, f64) {
         p / PI * (amplitude_k * th0.sin() - mean_c * th0),
         p * th0 / PI,
     )
-}
-
-/// Root of a continuous f with f(lo) > 0 > f(hi) (or the reverse), by bisection to 1e-14.
-fn bisect(f: impl Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
-    let flo = f(lo);
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        let fm = f(mid);
-        if fm == 0.0 {
-            return mid;
-        }
-        if (fm > 0.0) == (flo > 0.0) {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-        if hi - lo < 1e-14 {
-            break;
-        }
-    }
-    0.5 * (lo + hi)
 }
 
 #[cfg(test)]

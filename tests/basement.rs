@@ -2,7 +2,7 @@
 use crate::common::iso_ground;
 use frostline::case::parse_case;
 use frostline::methods;
-use frostline::simulate::{steady_flows, GROUP_FLOOR, GROUP_WALL_BELOW};
+use frostline::run::{steady_flows, GROUP_FLOOR, GROUP_WALL_BELOW};
 
 /// A heated basement in ISO 13370's terms: floor at depth z, ground λ = 2 W/(m·K), wall and
 /// footing of the ground's properties (so the wall thickness acts as ground, as in d_t), a 10 mm

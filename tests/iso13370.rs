@@ -3,7 +3,7 @@
 use crate::common::iso_ground;
 use frostline::case::{load_case, parse_case, Fineness};
 use frostline::methods::{self, EdgeInsulation};
-use frostline::simulate::steady_heat_flow;
+use frostline::run::steady_heat_flow;
 
 /// A slab-on-ground case in the form of ISO 13370's two-dimensional equivalent floor: floor at
 /// ground level, ground λ = 2 W/(m·K) everywhere (wall and footing given the ground's properties,

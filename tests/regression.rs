@@ -1,6 +1,6 @@
 //! Regression properties of whole runs: determinism and energy conservation.
 use frostline::case::{load_case, Fineness};
-use frostline::simulate::run;
+use frostline::run::run;
 
 fn demo() -> frostline::case::Case {
     let path =
@@ -142,7 +142,7 @@ fn spin_up_reaches_the_periodic_state() {
 /// first step in which a cell changes segment fails part-way through the year.
 #[test]
 fn failed_coarse_year_falls_back_to_the_start_state() {
-    use frostline::simulate::{run_with, RunOptions};
+    use frostline::run::{run_with, RunOptions};
     let case = demo();
     let opts = RunOptions {
         coarse_limits: Some((1, 0)),

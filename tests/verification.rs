@@ -1,8 +1,9 @@
 //! Verification ladder, rungs 1–4: each test names its reference, the tolerance, and why.
 use crate::common::{column, column_value};
-use frostline::analysis::{fit_sinusoid, frost_depth_column, point_temperature};
+use frostline::analysis::{frost_depth_column, point_temperature};
 use frostline::mesh::{graded_edges, uniform_edges, Breakpoint, Cell, EdgeBc, Grid, Mesh, Zone};
 use frostline::methods::{self, Neumann};
+use frostline::numerics::fit_sinusoid;
 use frostline::physics::material::Material;
 use frostline::solver::{Network, Solver, SolverParams};
 use std::f64::consts::PI;

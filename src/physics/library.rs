@@ -78,6 +78,42 @@ pub struct SoilFile {
 }
 
 impl SoilFile {
+    /// The soil with new index properties: the explicit thermal properties are dropped, since
+    /// they belonged to the old index properties and are derived afresh from the new ones.
+    pub fn with_index(&self, ix: SoilIndex) -> SoilFile {
+        SoilFile {
+            dry_density_kg_per_m3: ix.dry_density,
+            water_content: ix.water_content,
+            quartz_fraction: ix.quartz,
+            texture: ix.texture,
+            k_unfrozen_w_per_mk: None,
+            k_frozen_w_per_mk: None,
+            c_unfrozen_j_per_m3k: None,
+            c_frozen_j_per_m3k: None,
+            latent_heat_j_per_m3: None,
+            ..self.clone()
+        }
+    }
+
+    /// A soil described only by its index properties (no name, source or explicit values).
+    pub fn from_index(ix: SoilIndex) -> SoilFile {
+        SoilFile {
+            name: String::new(),
+            description: String::new(),
+            source: String::new(),
+            dry_density_kg_per_m3: ix.dry_density,
+            water_content: ix.water_content,
+            quartz_fraction: ix.quartz,
+            texture: ix.texture,
+            frost_susceptibility: String::new(),
+            k_unfrozen_w_per_mk: None,
+            k_frozen_w_per_mk: None,
+            c_unfrozen_j_per_m3k: None,
+            c_frozen_j_per_m3k: None,
+            latent_heat_j_per_m3: None,
+        }
+    }
+
     /// The index properties.
     pub fn index(&self) -> SoilIndex {
         SoilIndex {
@@ -123,44 +159,53 @@ pub enum KMethod {
     Kersten,
 }
 
-/// Derived properties of a soil: (k_u, k_f W/(m·K), C_u, C_f J/(m³·K), L J/m³), explicit values
-/// of the file taking precedence; `None` if Kersten is asked outside its water-content range.
-pub fn soil_properties(s: &SoilFile, method: KMethod) -> Option<(f64, f64, f64, f64, f64)> {
+/// Thermal properties of a soil.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct SoilProperties {
+    /// Unfrozen conductivity, W/(m·K).
+    pub k_unfrozen: f64,
+    /// Frozen conductivity, W/(m·K).
+    pub k_frozen: f64,
+    /// Unfrozen volumetric heat capacity, J/(m³·K).
+    pub c_unfrozen: f64,
+    /// Frozen volumetric heat capacity, J/(m³·K).
+    pub c_frozen: f64,
+    /// Volumetric latent heat, J/m³.
+    pub latent: f64,
+}
+
+/// Derived properties of a soil, explicit values of the file taking precedence; `None` if Kersten
+/// is asked outside its water-content range.
+pub fn soil_properties(s: &SoilFile, method: KMethod) -> Option<SoilProperties> {
     let ix = s.index();
     let (ku, kf) = match method {
         KMethod::Johansen => ix.johansen(),
         KMethod::Kersten => ix.kersten()?,
     };
     let (cu, cf) = ix.heat_capacities();
-    Some((
-        s.k_unfrozen_w_per_mk.unwrap_or(ku),
-        s.k_frozen_w_per_mk.unwrap_or(kf),
-        s.c_unfrozen_j_per_m3k.unwrap_or(cu),
-        s.c_frozen_j_per_m3k.unwrap_or(cf),
-        s.latent_heat_j_per_m3.unwrap_or(ix.latent_heat()),
-    ))
+    Some(SoilProperties {
+        k_unfrozen: s.k_unfrozen_w_per_mk.unwrap_or(ku),
+        k_frozen: s.k_frozen_w_per_mk.unwrap_or(kf),
+        c_unfrozen: s.c_unfrozen_j_per_m3k.unwrap_or(cu),
+        c_frozen: s.c_frozen_j_per_m3k.unwrap_or(cf),
+        latent: s.latent_heat_j_per_m3.unwrap_or(ix.latent_heat()),
+    })
 }
 
 /// Parse and check a soil file's text (`name` for messages).
 pub fn parse_soil_file(name: &str, src: &str) -> crate::error::Result<SoilFile> {
-    use crate::error::{Error, Location};
-    let s: SoilFile = toml::from_str(src).map_err(|e| Error::Input {
-        location: e.span().map_or(Location::file_only(name), |sp| {
-            Location::from_offset(name, src, sp.start)
-        }),
-        key: e
-            .message()
-            .split('`')
-            .nth(1)
-            .unwrap_or("(soil file)")
-            .to_string(),
-        message: e.message().to_string(),
+    use crate::error::{Error, InputKind, Location};
+    let s: SoilFile = toml::from_str(src).map_err(|e| {
+        Error::input(
+            e.span().map_or(Location::file_only(name), |sp| {
+                Location::from_offset(name, src, sp.start)
+            }),
+            e.message().split('`').nth(1).unwrap_or("(soil file)"),
+            InputKind::Syntax,
+            e.message(),
+        )
     })?;
-    let bad = |key: &str, msg: String| Error::Input {
-        location: Location::file_only(name),
-        key: key.into(),
-        message: msg,
-    };
+    let bad = |key: &str, msg: String| Error::in_file(name, key, InputKind::OutOfRange, msg);
     if !(100.0..=2700.0).contains(&s.dry_density_kg_per_m3) {
         return Err(bad(
             "dry_density_kg_per_m3",
@@ -215,7 +260,9 @@ mod tests {
     fn bundled_soils_parse_and_are_sane() {
         for (n, _) in SOILS {
             let s = bundled_soil(n).unwrap();
-            let (ku, kf, cu, cf, l) = soil_properties(&s, KMethod::Johansen).unwrap();
+            let p = soil_properties(&s, KMethod::Johansen).unwrap();
+            let (ku, kf, cu, cf, l) =
+                (p.k_unfrozen, p.k_frozen, p.c_unfrozen, p.c_frozen, p.latent);
             assert!(
                 ku > 0.3 && ku < 4.0 && kf >= ku * 0.9 && kf < 4.0,
                 "{n}: {ku} {kf}"
@@ -241,9 +288,8 @@ mod tests {
             ("iso-sand-gravel", 2.0, 2.0e6),
             ("iso-rock", 3.5, 2.0e6),
         ] {
-            let (ku, _, cu, _, _) =
-                soil_properties(&bundled_soil(n).unwrap(), KMethod::Johansen).unwrap();
-            assert_eq!((ku, cu), (k, c), "{n}");
+            let p = soil_properties(&bundled_soil(n).unwrap(), KMethod::Johansen).unwrap();
+            assert_eq!((p.k_unfrozen, p.c_unfrozen), (k, c), "{n}");
         }
     }
 

@@ -116,11 +116,18 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
 
 fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -> Result<()> {
     root.fill(&WHITE).map_err(out_err)?;
-    let kmax = d.monthly.iter().map(|m| m.1).fold(0.0, f64::max) * 1.3;
-    let (tlo, thi) = d
+    let kmax = d
         .monthly
         .iter()
-        .fold((f64::MAX, f64::MIN), |(a, b), m| (a.min(m.2), b.max(m.2)));
+        .map(|m| m.ground_heat_loss_kwh)
+        .fold(0.0, f64::max)
+        * 1.3;
+    let (tlo, thi) = d.monthly.iter().fold((f64::MAX, f64::MIN), |(a, b), m| {
+        (
+            a.min(m.mean_outdoor_temperature_c),
+            b.max(m.mean_outdoor_temperature_c),
+        )
+    });
     let names = [
         "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
     ];
@@ -161,9 +168,9 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
         .map_err(out_err)?;
     chart
         .draw_series(d.monthly.iter().map(|m| {
-            let x = m.0 as f64;
+            let x = m.month as f64;
             Rectangle::new(
-                [(x - 0.35, 0.0), (x + 0.35, m.1)],
+                [(x - 0.35, 0.0), (x + 0.35, m.ground_heat_loss_kwh)],
                 RGBColor(232, 150, 72).filled(),
             )
         }))
@@ -177,7 +184,9 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
         });
     chart
         .draw_secondary_series(LineSeries::new(
-            d.monthly.iter().map(|m| (m.0 as f64, m.2)),
+            d.monthly
+                .iter()
+                .map(|m| (m.month as f64, m.mean_outdoor_temperature_c)),
             OPEN.stroke_width(3),
         ))
         .map_err(out_err)?
@@ -267,23 +276,25 @@ pub fn probes(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> 
     Ok(())
 }
 
-/// Per-winter results of a measured series, read from `winters.csv`:
+/// Per-winter results of a measured series, read from `winters.csv` if the run has one:
 /// (winter, frost under footing m, frost open ground m).
-pub fn read_winters(dir: &Path) -> Option<Vec<(i64, f64, f64)>> {
-    let text = std::fs::read_to_string(dir.join("winters.csv")).ok()?;
-    let rows = text
-        .lines()
-        .filter(|l| !l.starts_with('#') && !l.starts_with("winter"))
-        .filter_map(|l| {
-            let v: Vec<&str> = l.split(',').collect();
-            Some((
-                v.first()?.parse().ok()?,
-                v.get(2)?.parse().ok()?,
-                v.get(3)?.parse().ok()?,
-            ))
+pub fn read_winters(dir: &Path) -> Result<Option<Vec<(i64, f64, f64)>>> {
+    if !dir.join("winters.csv").exists() {
+        return Ok(None);
+    }
+    let rows: Vec<crate::files::tables::WinterRow> =
+        crate::files::tables::read_rows(dir, "winters.csv")?;
+    let w: Vec<(i64, f64, f64)> = rows
+        .iter()
+        .map(|r| {
+            (
+                r.winter,
+                r.frost_depth_under_footing_m,
+                r.frost_depth_open_ground_m,
+            )
         })
-        .collect::<Vec<_>>();
-    (!rows.is_empty()).then_some(rows)
+        .collect();
+    Ok((!w.is_empty()).then_some(w))
 }
 
 fn draw_winters<DB: DrawingBackend>(

@@ -6,7 +6,8 @@
 pub mod data;
 pub mod isolines;
 
-use crate::error::{Error, Result};
+use crate::error::{Error, InputKind, Result};
+use crate::files::{PlotEntry, PlotIndex};
 use data::PlotData;
 use isolines::isolines;
 use plotters::coord::Shift;
@@ -148,7 +149,8 @@ fn draw_field<DB: DrawingBackend>(
         .label_style(("sans-serif", 13))
         .draw()
         .map_err(out_err)?;
-    let field = d.field(day);
+    let field: Vec<f64> = d.field(day).iter().copied().collect();
+    let field = &field[..];
     let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
     let cells = (0..nz)
         .flat_map(|j| (0..nx).map(move |i| (i, j)))
@@ -306,10 +308,13 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     let d = PlotData::load(dir)?;
     let mut files = Vec::new();
     let day = match opts.day_of_year {
-        Some(doy) => d.day_index(doy).ok_or_else(|| Error::Input {
-            location: crate::error::Location::file_only("command line"),
-            key: "--day".into(),
-            message: format!("{doy} is not a day of the saved year; allowed: 1 to 365"),
+        Some(doy) => d.day_index(doy).ok_or_else(|| {
+            Error::in_file(
+                &dir.join("daily.csv").display().to_string(),
+                "day_of_year",
+                InputKind::OutOfRange,
+                format!("{doy} is not a day of the saved period; allowed: 1 to 365"),
+            )
         })?,
         None => d.field_day_index,
     };
@@ -361,11 +366,12 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         }
     };
     if !(zoom.x1 > zoom.x0 && zoom.z1 > zoom.z0) {
-        return Err(Error::Input {
-            location: crate::error::Location::file_only("command line"),
-            key: "--zoom".into(),
-            message: "empty window; allowed: x0 < x1 and z0 < z1 (m)".into(),
-        });
+        return Err(Error::in_file(
+            "plot options",
+            "zoom",
+            InputKind::OutOfRange,
+            "empty window; allowed: x0 < x1 and z0 < z1 (m)",
+        ));
     }
     let ztitle = format!(
         "{} — around the footing, day {doy}; bold: frost line ({fl:.2} °C)",
@@ -380,23 +386,17 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         draw_field(&d, day, zoom, 1.0, &ztitle, None)
     );
     // The frost line drawn on the field, saved as data.
-    let mut csv = String::from("# Frost line (isotherm at the frost-line temperature) on the plotted day; x, z in m.\nline,x_m,z_m\n");
-    for (k, l) in frost.iter().enumerate() {
-        for (x, z) in l {
-            csv += &format!("{k},{x:.4},{z:.4}\n");
-        }
-    }
-    files.push(crate::report::write_atomic(
+    files.push(crate::files::write_atomic(
         dir,
         &format!("frost_line_{doy:03}.csv"),
-        csv.as_bytes(),
+        &crate::files::section::frost_line_csv(&frost),
     )?);
     charts::frost_depth(dir, &d, &mut files)?;
     charts::heat_loss(dir, &d, &mut files)?;
     if !d.probe_names.is_empty() {
         charts::probes(dir, &d, &mut files)?;
     }
-    if let Some(w) = charts::read_winters(dir) {
+    if let Some(w) = charts::read_winters(dir)? {
         charts::winters(dir, &d, &w, &mut files)?;
         sizes.push(("winters", charts::SIZE));
     }
@@ -412,8 +412,11 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
             .find(|(stem, _)| name.starts_with(&format!("{stem}.")))
             .map(|x| x.1)
         {
-            index
-                .push(serde_json::json!({ "file": name, "width_px": size.0, "height_px": size.1 }));
+            index.push(PlotEntry {
+                file: name,
+                width_px: size.0,
+                height_px: size.1,
+            });
         }
     }
     if opts.animate {
@@ -437,12 +440,20 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
             draw_field(&root, &d, k, zoom, 1.0, &t, range)?;
         }
         files.push(path);
-        index.push(serde_json::json!({ "file": "soil_temperature.gif", "width_px": size.0, "height_px": size.1 }));
+        index.push(PlotEntry {
+            file: "soil_temperature.gif".into(),
+            width_px: size.0,
+            height_px: size.1,
+        });
     }
-    let json =
-        serde_json::to_vec_pretty(&serde_json::json!({ "day_of_year": doy, "plots": index }))
-            .map_err(out_err)?;
-    files.push(crate::report::write_atomic(dir, "plots.json", &json)?);
+    files.push(crate::files::write_json(
+        dir,
+        "plots.json",
+        &PlotIndex {
+            day_of_year: doy,
+            plots: index,
+        },
+    )?);
     Ok(files)
 }
 

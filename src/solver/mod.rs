@@ -297,12 +297,9 @@ impl<'a> Solver<'a> {
                 break;
             }
             if iterations >= self.params.max_picard {
-                return Err(Error::NoConvergence {
-                    step: 0,
-                    time_s: 0.0,
+                return Err(Error::SteadyNoConvergence {
                     iterations,
-                    residual_k: change,
-                    halvings: 0,
+                    change_k: change,
                 });
             }
         }
@@ -333,6 +330,20 @@ impl<'a> Solver<'a> {
         dt: f64,
         time_s: f64,
     ) -> Result<StepEnergy> {
+        let params = self.params;
+        self.step_with(h, zone_t, dt, time_s, &params)
+    }
+
+    /// [`Solver::step`] with the iteration limits and tolerances of `params` for this step only
+    /// (the split of the factorisation stays as set up).
+    pub fn step_with(
+        &mut self,
+        h: &mut [f64],
+        zone_t: &[f64],
+        dt: f64,
+        time_s: f64,
+        params: &SolverParams,
+    ) -> Result<StepEnergy> {
         self.stats.steps += 1;
         let mut e = StepEnergy {
             from_zone: vec![0.0; self.net.n_zones],
@@ -340,7 +351,7 @@ impl<'a> Solver<'a> {
             stored: 0.0,
             dt,
         };
-        self.step_rec(h, zone_t, dt, time_s, 0, &mut e)?;
+        self.step_rec(h, zone_t, (dt, time_s), 0, &mut e, params)?;
         Ok(e)
     }
 
@@ -348,15 +359,15 @@ impl<'a> Solver<'a> {
         &mut self,
         h: &mut [f64],
         zone_t: &[f64],
-        dt: f64,
-        time_s: f64,
+        (dt, time_s): (f64, f64),
         depth: usize,
         e: &mut StepEnergy,
+        params: &SolverParams,
     ) -> Result<()> {
-        match self.try_step(h, zone_t, dt, e) {
+        match self.try_step(h, zone_t, dt, e, params) {
             Ok(()) => Ok(()),
             Err((iters, res)) => {
-                if depth >= self.params.max_halvings {
+                if depth >= params.max_halvings {
                     return Err(Error::NoConvergence {
                         step: self.stats.steps,
                         time_s,
@@ -366,8 +377,15 @@ impl<'a> Solver<'a> {
                     });
                 }
                 self.stats.halvings += 1;
-                self.step_rec(h, zone_t, 0.5 * dt, time_s, depth + 1, e)?;
-                self.step_rec(h, zone_t, 0.5 * dt, time_s + 0.5 * dt, depth + 1, e)
+                self.step_rec(h, zone_t, (0.5 * dt, time_s), depth + 1, e, params)?;
+                self.step_rec(
+                    h,
+                    zone_t,
+                    (0.5 * dt, time_s + 0.5 * dt),
+                    depth + 1,
+                    e,
+                    params,
+                )
             }
         }
     }
@@ -379,6 +397,7 @@ impl<'a> Solver<'a> {
         zone_t: &[f64],
         dt: f64,
         e: &mut StepEnergy,
+        params: &SolverParams,
     ) -> std::result::Result<(), (usize, f64)> {
         let net = self.net;
         self.stats.substeps += 1;
@@ -397,7 +416,7 @@ impl<'a> Solver<'a> {
             }
         }
         let mut last_res = f64::INFINITY;
-        for iter in 0..=self.params.max_newton {
+        for iter in 0..=params.max_newton {
             // T, C from the enthalpy state; residual (local slices: no reloads through `self`).
             let res = {
                 let (t, cap, r) = (&mut self.t[..], &mut self.cap[..], &mut self.r[..]);
@@ -434,11 +453,11 @@ impl<'a> Solver<'a> {
                     .fold(0.0, f64::max)
             };
             last_res = res;
-            if res < self.params.tol_k {
+            if res < params.tol_k {
                 self.stats.max_residual_k = self.stats.max_residual_k.max(res);
                 break;
             }
-            if iter == self.params.max_newton {
+            if iter == params.max_newton {
                 h.copy_from_slice(&self.h_old);
                 self.dt_prev = 0.0;
                 return Err((iter, res));
@@ -452,7 +471,7 @@ impl<'a> Solver<'a> {
             }
             if self
                 .lin
-                .solve_near(&self.vals, &mut rhs, self.params.near_factor_cells)
+                .solve_near(&self.vals, &mut rhs, params.near_factor_cells)
                 .is_err()
             {
                 h.copy_from_slice(&self.h_old);

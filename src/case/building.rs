@@ -1,0 +1,301 @@
+//! Validation of `[building]` and the construction tables `[slab]`, `[wall]`, `[footing]` and
+//! `[basement]`.
+use super::ctx::Ctx;
+use super::model::{Backfill, Basement, Building, Footing, Simulation, Slab, Wall};
+use super::raw::{RawBasement, RawBuilding, RawCase, RawFooting, Temps, S};
+use crate::error::{InputKind, Result};
+
+/// The validated slab, wall and footing, and the basement floor depth if there is a basement.
+pub struct Construction {
+    /// Slab.
+    pub slab: Slab,
+    /// Foundation wall.
+    pub wall: Wall,
+    /// Footing.
+    pub footing: Footing,
+    /// Depth of the basement floor surface, m.
+    pub basement_depth_m: Option<f64>,
+}
+
+/// `[building]`: floor area, perimeter or B′, indoor temperature, surface resistances.
+pub fn building(c: &Ctx, b: &RawBuilding) -> Result<Building> {
+    let (area, perim, bp) = plan(c, b)?;
+    let unheated = b.unheated.unwrap_or(false);
+    Ok(Building {
+        floor_area_m2: area,
+        exposed_perimeter_m: perim,
+        b_prime_m: bp,
+        indoor_monthly_c: indoor(c, b, unheated)?,
+        unheated,
+        r_si_floor: c.opt(
+            &b.floor_surface_resistance_m2k_per_w,
+            "building.floor_surface_resistance_m2k_per_w",
+            (0.0, 1.0),
+            "m²·K/W",
+            0.17,
+        )?,
+        r_si_wall: c.opt(
+            &b.wall_surface_resistance_m2k_per_w,
+            "building.wall_surface_resistance_m2k_per_w",
+            (0.0, 1.0),
+            "m²·K/W",
+            0.13,
+        )?,
+    })
+}
+
+/// (A m², P m, B′ m) from area with perimeter or with B′.
+fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
+    match (&b.floor_area_m2, &b.exposed_perimeter_m, &b.characteristic_dimension_m) {
+        (Some(a), Some(p), None) => {
+            let a_v = c.range(a, "building.floor_area_m2", 0.0, 1e6, "m²")?;
+            let p_v = c.range(p, "building.exposed_perimeter_m", 0.0, 1e5, "m")?;
+            let bp = a_v / (0.5 * p_v);
+            if bp < 1.0 {
+                return Err(c.err(
+                    p.span(),
+                    "building.exposed_perimeter_m",
+                    InputKind::OutOfRange,
+                    format!("{p_v} m gives B' = A/(0.5 P) = {bp:.3} m; allowed: B' of at least 1 m"),
+                ));
+            }
+            Ok((a_v, p_v, bp))
+        }
+        (Some(a), None, Some(d)) => {
+            let a_v = c.range(a, "building.floor_area_m2", 0.0, 1e6, "m²")?;
+            let bp = c.range(d, "building.characteristic_dimension_m", 1.0, 1000.0, "m")?;
+            Ok((a_v, 2.0 * a_v / bp, bp))
+        }
+        _ => Err(c.err_file(
+            "building",
+            InputKind::Missing,
+            "give floor_area_m2 with either exposed_perimeter_m or characteristic_dimension_m (not both)",
+        )),
+    }
+}
+
+/// Indoor air temperature per calendar month, °C (unused, zeros, for an unheated building).
+fn indoor(c: &Ctx, b: &RawBuilding, unheated: bool) -> Result<[f64; 12]> {
+    let key = "building.indoor_temperature_c";
+    let given =
+        match (&b.indoor_temperature_c, unheated) {
+            (Some(t), false) => t,
+            (None, true) => return Ok([0.0; 12]),
+            (Some(t), true) => {
+                return Err(c.err(
+                    t.span(),
+                    key,
+                    InputKind::Conflict,
+                    "not used for an unheated building (the indoor air follows the outdoor air)",
+                ))
+            }
+            (None, false) => return Err(c.err_file(
+                key,
+                InputKind::Missing,
+                "missing; give the indoor temperature (°C), 12 monthly values, or unheated = true",
+            )),
+        };
+    let temps = match given.get_ref() {
+        Temps::One(t) => [*t; 12],
+        Temps::Monthly(v) if v.len() == 12 => {
+            let mut a = [0.0; 12];
+            a.copy_from_slice(v);
+            a
+        }
+        Temps::Monthly(v) => {
+            return Err(c.err(
+                given.span(),
+                key,
+                InputKind::OutOfRange,
+                format!(
+                    "{} values given; allowed: one temperature or 12 monthly values (°C)",
+                    v.len()
+                ),
+            ))
+        }
+    };
+    if let Some(t) = temps.iter().find(|t| !(-30.0..=40.0).contains(*t)) {
+        return Err(c.err(
+            given.span(),
+            key,
+            InputKind::OutOfRange,
+            format!("{t} °C is out of range; allowed: −30 to 40 °C"),
+        ));
+    }
+    Ok(temps)
+}
+
+/// `[slab]`, `[wall]`, `[footing]` and the basement floor depth.
+pub fn construction(c: &Ctx, raw: &RawCase, _building: &Building) -> Result<Construction> {
+    let basement_depth_m = match &raw.basement {
+        Some(b) => {
+            c.unused(
+                &raw.slab.top_above_ground_m,
+                "slab.top_above_ground_m",
+                "not used with [basement]; the floor level is basement.floor_depth_m",
+            )?;
+            Some(c.range(&b.floor_depth_m, "basement.floor_depth_m", 0.0, 5.0, "m")?)
+        }
+        None => None,
+    };
+    let slab = Slab {
+        thickness_m: c.range(&raw.slab.thickness_m, "slab.thickness_m", 0.0, 1.0, "m")?,
+        material: c.material(&raw.slab.material, "slab.material", "concrete")?,
+        top_above_ground_m: match basement_depth_m {
+            Some(d) => -d,
+            None => c.opt(
+                &raw.slab.top_above_ground_m,
+                "slab.top_above_ground_m",
+                (-0.5, 1.5),
+                "m",
+                0.0,
+            )?,
+        },
+        finish_r: c.opt(
+            &raw.slab.finish_resistance_m2k_per_w,
+            "slab.finish_resistance_m2k_per_w",
+            (0.0, 10.0),
+            "m²·K/W",
+            0.0,
+        )?,
+    };
+    let wall = Wall {
+        thickness_m: c.range(&raw.wall.thickness_m, "wall.thickness_m", 0.0, 2.0, "m")?,
+        material: c.material(&raw.wall.material, "wall.material", "concrete")?,
+        height_above_ground_m: c.opt(
+            &raw.wall.height_above_ground_m,
+            "wall.height_above_ground_m",
+            (0.0, 3.0),
+            "m",
+            0.3,
+        )?,
+    };
+    if wall.height_above_ground_m < slab.top_above_ground_m {
+        return Err(c.err(
+            raw.wall.height_above_ground_m.as_ref().map_or(raw.wall.thickness_m.span(), |v| v.span()),
+            "wall.height_above_ground_m",
+            InputKind::OutOfRange,
+            format!(
+                "{} m is below the floor surface ({} m above ground); allowed: at least slab.top_above_ground_m",
+                wall.height_above_ground_m, slab.top_above_ground_m
+            ),
+        ));
+    }
+    let footing = footing(c, &raw.footing, &slab, &wall)?;
+    Ok(Construction {
+        slab,
+        wall,
+        footing,
+        basement_depth_m,
+    })
+}
+
+/// `[footing]`: under the wall, below the slab.
+fn footing(c: &Ctx, f: &RawFooting, slab: &Slab, wall: &Wall) -> Result<Footing> {
+    let fw = c.range(&f.width_m, "footing.width_m", 0.0, 5.0, "m")?;
+    let spare = (fw - wall.thickness_m).max(0.0);
+    let footing = Footing {
+        width_m: fw,
+        outer_projection_m: c.opt(
+            &f.outer_projection_m,
+            "footing.outer_projection_m",
+            (0.0, spare),
+            "m (at most width_m − wall.thickness_m, so the footing carries the whole wall)",
+            0.5 * spare,
+        )?,
+        thickness_m: c.range(&f.thickness_m, "footing.thickness_m", 0.0, 3.0, "m")?,
+        base_depth_m: c.range(&f.base_depth_m, "footing.base_depth_m", 0.0, 6.0, "m")?,
+        material: c.material(&f.material, "footing.material", "concrete")?,
+    };
+    if footing.width_m < wall.thickness_m {
+        return Err(c.err(
+            f.width_m.span(),
+            "footing.width_m",
+            InputKind::OutOfRange,
+            format!(
+                "{} m is narrower than the wall ({} m); allowed: at least wall.thickness_m",
+                footing.width_m, wall.thickness_m
+            ),
+        ));
+    }
+    let slab_bottom = -slab.top_above_ground_m + slab.thickness_m;
+    if footing.base_depth_m <= slab_bottom + 1e-9 {
+        return Err(c.err(
+            f.base_depth_m.span(),
+            "footing.base_depth_m",
+            InputKind::OutOfRange,
+            format!(
+                "{} m puts the footing base above the slab's underside (z = {slab_bottom:.3} m); allowed: deeper than the slab",
+                footing.base_depth_m
+            ),
+        ));
+    }
+    if footing.base_depth_m - footing.thickness_m < -slab.top_above_ground_m {
+        return Err(c.err(
+            f.thickness_m.span(),
+            "footing.thickness_m",
+            InputKind::OutOfRange,
+            format!("{} m puts the footing's top above the floor surface; allowed: at most base_depth_m + slab.top_above_ground_m", footing.thickness_m),
+        ));
+    }
+    Ok(footing)
+}
+
+/// `[basement]` with its optional backfill (the floor depth was read with the construction).
+pub fn basement(
+    c: &Ctx,
+    raw: Option<&RawBasement>,
+    cons: &Construction,
+    sim: &Simulation,
+) -> Result<Option<Basement>> {
+    let (Some(b), Some(depth)) = (raw, cons.basement_depth_m) else {
+        return Ok(None);
+    };
+    let backfill = match &b.backfill {
+        None => None,
+        Some(st) => {
+            c.unused(
+                &st.get_ref().bottom_depth_m,
+                "basement.backfill.bottom_depth_m",
+                "not used for backfill; give basement.backfill_depth_m",
+            )?;
+            let material = super::soil::stratum(c, st, "basement.backfill")?;
+            let within = |v: &Option<S<f64>>, key: &str, hi: f64, default: f64| {
+                v.as_ref()
+                    .map_or(Ok(default), |v| c.range(v, key, 0.0, hi, "m"))
+            };
+            Some(Backfill {
+                width_m: within(
+                    &b.backfill_width_m,
+                    "basement.backfill_width_m",
+                    sim.domain_width_m - 1.0,
+                    1.0,
+                )?,
+                depth_m: within(
+                    &b.backfill_depth_m,
+                    "basement.backfill_depth_m",
+                    sim.domain_depth_m - 1.0,
+                    cons.footing.base_depth_m,
+                )?,
+                material,
+            })
+        }
+    };
+    Ok(Some(Basement {
+        floor_depth_m: depth,
+        backfill,
+    }))
+}
+
+/// The footing must lie at least 1 m above the domain bottom.
+pub fn footing_in_domain(c: &Ctx, raw: &RawFooting, f: &Footing, sim: &Simulation) -> Result<()> {
+    if f.base_depth_m > sim.domain_depth_m - 1.0 {
+        return Err(c.err(
+            raw.base_depth_m.span(),
+            "footing.base_depth_m",
+            InputKind::OutOfRange,
+            "outside the domain; increase simulation.domain_depth_m",
+        ));
+    }
+    Ok(())
+}

@@ -1,0 +1,244 @@
+//! Validation of `[climate]`: a sinusoid, a measured series, or a design year built from a
+//! series' Gumbel design freezing index; n-factors, snow cover and the outdoor surface resistance.
+use super::ctx::Ctx;
+use super::model::{Climate, ClimateSource, DesignYear};
+use super::raw::{RawClimate, S};
+use crate::error::{Error, InputKind, Result};
+use crate::physics::climate::{self as pc, DailySeries, FitMethod};
+
+/// The outdoor temperature's source and the sinusoid (given, or fitted to the series).
+struct Source {
+    mean_c: f64,
+    amplitude_k: f64,
+    coldest_day: f64,
+    source: ClimateSource,
+    design: Option<DesignYear>,
+}
+
+/// `[climate]`.
+pub fn climate(c: &Ctx, cl: &RawClimate) -> Result<Climate> {
+    let gap = c.int_opt(
+        &cl.max_gap_days,
+        "climate.max_gap_days",
+        (0, 30),
+        "0 to 30 days",
+        3,
+    )?;
+    let s = source(c, cl, gap)?;
+    if cl.design_from_series.is_none() {
+        c.unused(
+            &cl.return_period_years,
+            "climate.return_period_years",
+            "only used with design_from_series",
+        )?;
+    }
+    Ok(Climate {
+        mean_c: s.mean_c,
+        amplitude_k: s.amplitude_k,
+        coldest_day: s.coldest_day,
+        source: s.source,
+        design: s.design,
+        r_se: c.opt(
+            &cl.surface_resistance_m2k_per_w,
+            "climate.surface_resistance_m2k_per_w",
+            (0.0, 5.0),
+            "m²·K/W",
+            0.04,
+        )?,
+        n_freezing: c.opt(
+            &cl.n_factor_freezing,
+            "climate.n_factor_freezing",
+            (0.1, 1.5),
+            "",
+            1.0,
+        )?,
+        n_thawing: c.opt(
+            &cl.n_factor_thawing,
+            "climate.n_factor_thawing",
+            (0.1, 2.5),
+            "",
+            1.0,
+        )?,
+        snow_depth_m: snow(c, cl)?,
+        snow_k: c.opt(
+            &cl.snow_conductivity_w_per_mk,
+            "climate.snow_conductivity_w_per_mk",
+            (0.02, 1.0),
+            "W/(m·K)",
+            0.2,
+        )?,
+    })
+}
+
+/// Exactly one of: sinusoid, series, design year from a series.
+fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
+    let sinus_given = cl.mean_c.is_some() || cl.amplitude_k.is_some() || cl.coldest_day.is_some();
+    let kinds = usize::from(sinus_given)
+        + usize::from(cl.series.is_some())
+        + usize::from(cl.design_from_series.is_some());
+    if kinds != 1 {
+        return Err(c.err_file(
+            "climate",
+            InputKind::Conflict,
+            "give exactly one of: mean_c + amplitude_k + coldest_day (a sinusoid), series = \"file.csv\" (a measured series), or design_from_series = \"file.csv\" (a design year)",
+        ));
+    }
+    if sinus_given {
+        return sinusoid(c, cl);
+    }
+    let (v, key) = match (&cl.series, &cl.design_from_series) {
+        (Some(v), _) => (v, "climate.series"),
+        (None, Some(v)) => (v, "climate.design_from_series"),
+        (None, None) => unreachable!("one source given"),
+    };
+    let series = read(c, v, key, max_gap_days)?;
+    let (m, a, d) = pc::annual_sinusoid(&series);
+    if m <= 0.0 {
+        return Err(c.err(
+            v.span(),
+            key,
+            InputKind::OutOfScope,
+            format!("the series' mean is {m:.2} °C; allowed: above 0 °C (no permafrost)"),
+        ));
+    }
+    let coldest_day = d.clamp(1.0, 365.0);
+    if cl.series.is_some() {
+        if pc::seasons(series.first_day, series.values.len()).is_empty() {
+            return Err(c.err(
+                v.span(),
+                key,
+                InputKind::OutOfRange,
+                "no complete season (1 July to 30 June) in the series; allowed: at least one",
+            ));
+        }
+        return Ok(Source {
+            mean_c: m,
+            amplitude_k: a,
+            coldest_day,
+            source: ClimateSource::Series(series),
+            design: None,
+        });
+    }
+    let (amplitude_k, design) = design_year(c, cl, v, key, &series, m)?;
+    Ok(Source {
+        mean_c: m,
+        amplitude_k,
+        coldest_day,
+        source: ClimateSource::Sinusoid,
+        design: Some(design),
+    })
+}
+
+/// mean_c, amplitude_k, coldest_day, all three required.
+fn sinusoid(c: &Ctx, cl: &RawClimate) -> Result<Source> {
+    let need = |v: &Option<S<f64>>, k: &str| {
+        v.clone().ok_or_else(|| {
+            c.err_file(
+                &format!("climate.{k}"),
+                InputKind::Missing,
+                "missing; a sinusoid needs mean_c, amplitude_k and coldest_day",
+            )
+        })
+    };
+    let (m, a, d) = (
+        need(&cl.mean_c, "mean_c")?,
+        need(&cl.amplitude_k, "amplitude_k")?,
+        need(&cl.coldest_day, "coldest_day")?,
+    );
+    let mean_c = c.range_incl(&m, "climate.mean_c", 0.1, 30.0, "°C").map_err(|_| {
+        c.err(m.span(), "climate.mean_c", InputKind::OutOfScope, format!(
+            "{} °C is out of range; allowed: 0.1 to 30 °C (the model assumes ground that thaws every year: no permafrost)", m.get_ref()))
+    })?;
+    Ok(Source {
+        mean_c,
+        amplitude_k: c.range_incl(&a, "climate.amplitude_k", 0.0, 30.0, "K")?,
+        coldest_day: c.range_incl(&d, "climate.coldest_day", 1.0, 365.0, "day of year")?,
+        source: ClimateSource::Sinusoid,
+        design: None,
+    })
+}
+
+/// Read the series file named by `v` (relative to the case file).
+fn read(c: &Ctx, v: &S<String>, key: &str, max_gap_days: usize) -> Result<DailySeries> {
+    let p = super::case_dir(c.file).join(v.get_ref());
+    let opts = pc::ReadOptions {
+        max_gap_days,
+        ..Default::default()
+    };
+    pc::read_series(&p, &opts).map_err(|e| match e {
+        Error::Io { source, .. } => c.err(
+            v.span(),
+            key,
+            InputKind::Unreadable,
+            format!("cannot read {}: {source}", p.display()),
+        ),
+        other => other,
+    })
+}
+
+/// The design year's amplitude and provenance: the sinusoid with the series' mean whose air
+/// freezing index is the return-period design index.
+fn design_year(
+    c: &Ctx,
+    cl: &RawClimate,
+    v: &S<String>,
+    key: &str,
+    series: &DailySeries,
+    mean_c: f64,
+) -> Result<(f64, DesignYear)> {
+    let t = cl.return_period_years.as_ref().map_or(Ok(100.0), |v| {
+        c.range(v, "climate.return_period_years", 1.0, 10_000.0, "years")
+    })?;
+    let method = match cl.fit.as_ref().map(|f| (f, f.get_ref().as_str())) {
+        None | Some((_, "lmoments")) => FitMethod::LMoments,
+        Some((_, "mle")) => FitMethod::MaximumLikelihood,
+        Some((f, other)) => {
+            return Err(c.err(
+                f.span(),
+                "climate.fit",
+                InputKind::UnknownName,
+                format!("\"{other}\" is not a fit method; allowed: lmoments, mle"),
+            ))
+        }
+    };
+    let s = pc::summarize(series, t, method)?;
+    let amplitude_k = pc::amplitude_for_freezing_index(mean_c, s.design_freezing_index_c_days);
+    if amplitude_k > 40.0 {
+        return Err(c.err(
+            v.span(),
+            key,
+            InputKind::OutOfScope,
+            format!(
+                "the design year needs an amplitude of {amplitude_k:.1} K; allowed: at most 40 K"
+            ),
+        ));
+    }
+    Ok((
+        amplitude_k,
+        DesignYear {
+            series: v.get_ref().clone(),
+            return_period_years: t,
+            design_freezing_index_c_days: s.design_freezing_index_c_days,
+            fit_method: method,
+        },
+    ))
+}
+
+/// Twelve monthly snow depths, January first (none by default).
+fn snow(c: &Ctx, cl: &RawClimate) -> Result<[f64; 12]> {
+    let Some(v) = &cl.snow_depth_m else {
+        return Ok([0.0; 12]);
+    };
+    let d = v.get_ref();
+    if d.len() != 12 || d.iter().any(|x| !(0.0..=3.0).contains(x)) {
+        return Err(c.err(
+            v.span(),
+            "climate.snow_depth_m",
+            InputKind::OutOfRange,
+            "allowed: 12 monthly snow depths (January first), each 0 to 3 m",
+        ));
+    }
+    let mut a = [0.0; 12];
+    a.copy_from_slice(d);
+    Ok(a)
+}

@@ -1,0 +1,271 @@
+//! Validation of the `[[insulation]]` pieces (under the slab, vertical outside or inside the wall,
+//! horizontal wings) and of `[fill]`, and the layout check that no piece overlaps concrete or
+//! another piece.
+use super::building::Construction;
+use super::ctx::Ctx;
+use super::model::{Building, Case, Fill, Insulation, InsulationKind, Simulation};
+use super::raw::{RawFill, RawInsulation, S};
+use crate::error::{InputKind, Result};
+use crate::physics::material::Material;
+
+/// The validated parts the insulation depends on.
+pub struct Parts<'a> {
+    /// Building (B′).
+    pub building: &'a Building,
+    /// Slab, wall, footing.
+    pub cons: &'a Construction,
+    /// Domain size.
+    pub simulation: &'a Simulation,
+}
+
+/// `[fill]` under the slab (gravel by default).
+pub fn fill(c: &Ctx, raw: Option<&RawFill>) -> Result<Option<Fill>> {
+    raw.map(|f| {
+        Ok(Fill {
+            thickness_m: c.range(&f.thickness_m, "fill.thickness_m", 0.0, 3.0, "m")?,
+            material: c.material(&f.material, "fill.material", "gravel")?,
+        })
+    })
+    .transpose()
+}
+
+/// Every `[[insulation]]` piece, then the checks between pieces.
+pub fn insulation(c: &Ctx, raw: &[S<RawInsulation>], parts: &Parts) -> Result<Vec<Insulation>> {
+    // Wings start at the outer face of any outside vertical insulation.
+    let vert_out_t: f64 = raw
+        .iter()
+        .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
+        .map(|i| *i.get_ref().thickness_m.get_ref())
+        .fold(0.0, f64::max);
+    let mut out = Vec::new();
+    for (k, ins) in raw.iter().enumerate() {
+        let key = format!("insulation[{k}]");
+        let r = ins.get_ref();
+        let thickness_m = c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
+        let material = material(c, ins, &key)?;
+        let kind = kind(c, ins, &key, parts, (thickness_m, vert_out_t))?;
+        out.push(Insulation {
+            kind,
+            thickness_m,
+            material,
+        });
+    }
+    between_pieces(c, raw, &out, parts)?;
+    Ok(out)
+}
+
+/// A named material or a conductivity, with an optional heat capacity.
+fn material(c: &Ctx, ins: &S<RawInsulation>, key: &str) -> Result<Material> {
+    let r = ins.get_ref();
+    let mut material =
+        match (&r.material, &r.conductivity_w_per_mk) {
+            (Some(n), None) => c.named(n, &format!("{key}.material"))?,
+            (None, Some(k_v)) => {
+                let kv = c.range(
+                    k_v,
+                    &format!("{key}.conductivity_w_per_mk"),
+                    0.0,
+                    1.0,
+                    "W/(m·K)",
+                )?;
+                Material::inert("insulation", kv, 0.05e6)
+            }
+            _ => return Err(c.err(
+                ins.span(),
+                key,
+                InputKind::Conflict,
+                "give either material (a name) or conductivity_w_per_mk, not both and not neither",
+            )),
+        };
+    if let Some(cap) = &r.heat_capacity_j_per_m3k {
+        let v = c.range(
+            cap,
+            &format!("{key}.heat_capacity_j_per_m3k"),
+            0.0,
+            1e7,
+            "J/(m³·K)",
+        )?;
+        material.c_frozen = v;
+        material.c_unfrozen = v;
+    }
+    Ok(material)
+}
+
+/// Where the piece sits, by its kind; keys of other kinds are refused.
+fn kind(
+    c: &Ctx,
+    ins: &S<RawInsulation>,
+    key: &str,
+    parts: &Parts,
+    (t, vert_out_t): (f64, f64),
+) -> Result<InsulationKind> {
+    let r = ins.get_ref();
+    let kind_name = r.kind.get_ref().as_str();
+    let forbid = |v: &Option<S<f64>>, name: &str| {
+        c.unused(
+            v,
+            &format!("{key}.{name}"),
+            &format!("not used by {kind_name} insulation; remove it"),
+        )
+    };
+    let need = |v: &Option<S<f64>>, name: &str| -> Result<S<f64>> {
+        v.clone().ok_or_else(|| {
+            c.err(
+                ins.span(),
+                &format!("{key}.{name}"),
+                InputKind::Missing,
+                format!("missing; {kind_name} insulation needs {name}"),
+            )
+        })
+    };
+    let (cons, bp) = (parts.cons, parts.building.b_prime_m);
+    let slab_bottom = -cons.slab.top_above_ground_m + cons.slab.thickness_m;
+    match kind_name {
+        "under_slab" => {
+            for (v, n) in [(&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m")] {
+                forbid(v, n)?;
+            }
+            let band = r.band_width_m.as_ref().map(|v| c.range(v, &format!("{key}.band_width_m"), 0.0, 0.5 * bp, "m")).transpose()?;
+            Ok(InsulationKind::UnderSlab { band_width_m: band })
+        }
+        "vertical_outside" | "vertical_inside" => {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m")] {
+                forbid(v, n)?;
+            }
+            let outside = kind_name == "vertical_outside";
+            let top_default = if outside { 0.0 } else { slab_bottom };
+            let top = c.opt(&r.top_depth_m, &format!("{key}.top_depth_m"), (-cons.wall.height_above_ground_m, 6.0), "m", top_default)?;
+            let bot_v = need(&r.bottom_depth_m, "bottom_depth_m")?;
+            let bottom = c.range(&bot_v, &format!("{key}.bottom_depth_m"), top, 6.0, "m")?;
+            if outside {
+                vertical_outside(c, key, cons, (top, bottom), &bot_v)
+            } else {
+                vertical_inside(c, ins, key, cons, (top, bottom))
+            }
+        }
+        "wing" => {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m")] {
+                forbid(v, n)?;
+            }
+            let d_v = need(&r.depth_m, "depth_m")?;
+            let depth = c.range_incl(&d_v, &format!("{key}.depth_m"), 0.0, 3.0, "m")?;
+            let w_v = need(&r.width_m, "width_m")?;
+            let width = c.range(&w_v, &format!("{key}.width_m"), vert_out_t, parts.simulation.domain_width_m - 1.0, "m")?;
+            let f = &cons.footing;
+            let fx1 = f.outer_projection_m;
+            if fx1 > 1e-9 && depth + t > f.base_depth_m - f.thickness_m + 1e-9 && depth < f.base_depth_m {
+                return Err(c.err(d_v.span(), &format!("{key}.depth_m"), InputKind::Geometry, format!(
+                    "{depth} m puts the wing beside the footing, which projects {fx1:.3} m beyond the wall; allowed: above the footing's top ({:.3} m) or below its base",
+                    f.base_depth_m - f.thickness_m)));
+            }
+            Ok(InsulationKind::Wing { depth_m: depth, x_start_m: vert_out_t, width_m: width })
+        }
+        other => Err(c.err(r.kind.span(), &format!("{key}.kind"), InputKind::UnknownName, format!(
+            "\"{other}\" is not an insulation kind; allowed: under_slab, vertical_outside, vertical_inside, wing"))),
+    }
+}
+
+/// Outside the wall: must not run into a projecting footing.
+fn vertical_outside(
+    c: &Ctx,
+    key: &str,
+    cons: &Construction,
+    (top_m, bottom_m): (f64, f64),
+    bot_v: &S<f64>,
+) -> Result<InsulationKind> {
+    let f = &cons.footing;
+    let fx1 = f.outer_projection_m;
+    if fx1 > 1e-9 && bottom_m > f.base_depth_m - f.thickness_m + 1e-9 {
+        return Err(c.err(bot_v.span(), &format!("{key}.bottom_depth_m"), InputKind::Geometry, format!(
+            "{bottom_m} m runs into the footing, which projects {fx1:.3} m beyond the wall's outside face from z = {:.3} m; allowed: at most the footing's top depth",
+            f.base_depth_m - f.thickness_m)));
+    }
+    Ok(InsulationKind::VerticalOutside { top_m, bottom_m })
+}
+
+/// Inside the wall: at or below the slab's underside, or wholly above the floor.
+fn vertical_inside(
+    c: &Ctx,
+    ins: &S<RawInsulation>,
+    key: &str,
+    cons: &Construction,
+    (top_m, bottom_m): (f64, f64),
+) -> Result<InsulationKind> {
+    let floor_z = -cons.slab.top_above_ground_m;
+    let slab_bottom = floor_z + cons.slab.thickness_m;
+    if top_m < slab_bottom - 1e-9 && bottom_m > floor_z + 1e-9 {
+        let sp = ins
+            .get_ref()
+            .top_depth_m
+            .as_ref()
+            .map_or(ins.span(), |v| v.span());
+        return Err(c.err(sp, &format!("{key}.top_depth_m"), InputKind::Geometry, format!(
+            "{top_m} m overlaps the slab (z = {floor_z:.3} to {slab_bottom:.3} m); allowed: at or below the slab's underside, or wholly above the floor")));
+    }
+    Ok(InsulationKind::VerticalInside { top_m, bottom_m })
+}
+
+/// One piece per kind (wings excepted, at separate depths); every piece at least 1 m above the
+/// domain bottom.
+fn between_pieces(
+    c: &Ctx,
+    raw: &[S<RawInsulation>],
+    pieces: &[Insulation],
+    parts: &Parts,
+) -> Result<()> {
+    let slab_bottom = -parts.cons.slab.top_above_ground_m + parts.cons.slab.thickness_m;
+    let domain_depth = parts.simulation.domain_depth_m;
+    for (k, a) in pieces.iter().enumerate() {
+        for b in pieces.iter().skip(k + 1) {
+            let same = std::mem::discriminant(&a.kind) == std::mem::discriminant(&b.kind);
+            if same && !matches!(a.kind, InsulationKind::Wing { .. }) {
+                return Err(c.err(raw[k].span(), &format!("insulation[{k}].kind"), InputKind::Geometry, "two pieces of this kind would overlap; allowed: one piece per kind except wing"));
+            }
+            if let (
+                InsulationKind::Wing { depth_m: da, .. },
+                InsulationKind::Wing { depth_m: db, .. },
+            ) = (a.kind, b.kind)
+            {
+                if da < db + b.thickness_m && db < da + a.thickness_m {
+                    return Err(c.err(
+                        raw[k].span(),
+                        &format!("insulation[{k}].depth_m"),
+                        InputKind::Geometry,
+                        "two wing pieces overlap in depth; allowed: separate depths",
+                    ));
+                }
+            }
+        }
+        let deepest = match a.kind {
+            InsulationKind::VerticalOutside { bottom_m, .. }
+            | InsulationKind::VerticalInside { bottom_m, .. } => bottom_m,
+            InsulationKind::Wing { depth_m, .. } => depth_m + a.thickness_m,
+            InsulationKind::UnderSlab { .. } => slab_bottom + a.thickness_m,
+        };
+        if deepest > domain_depth - 1.0 {
+            return Err(c.err(raw[k].span(), &format!("insulation[{k}]"), InputKind::Geometry, format!(
+                "reaches z = {deepest:.2} m, outside the domain (depth {domain_depth:.1} m); allowed: at least 1 m above the bottom")));
+        }
+    }
+    Ok(())
+}
+
+/// No piece may overlap concrete or another piece, or leave the domain.
+pub fn check_layout(c: &Ctx, raw: &[S<RawInsulation>], case: &Case) -> Result<()> {
+    match case.layout_problem() {
+        None => Ok(()),
+        Some(p) => {
+            let allowed = if p.what.starts_with("leaves") {
+                "allowed: inside simulation.domain_width_m and domain_depth_m"
+            } else {
+                "allowed: insulation beside, not inside, other parts"
+            };
+            Err(c.err(
+                raw[p.piece].span(),
+                &format!("insulation[{}]", p.piece),
+                InputKind::Geometry,
+                format!("{}; {allowed}", p.what),
+            ))
+        }
+    }
+}

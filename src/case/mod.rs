@@ -1,0 +1,171 @@
+//! Case files: the TOML mirror ([`raw`]), validation (one function per table, each taking the
+//! already-validated parts it depends on) and the validated [`Case`] in SI units ([`model`]).
+//! Validation is the only place input errors arise; each names the file, line and column, the
+//! key, the bad value and what is allowed.
+//!
+//! Coordinates: x horizontal, 0 at the exterior face of the foundation wall, positive outward
+//! (negative under the building); z depth below finished ground level, positive down (negative
+//! above ground).
+mod building;
+mod climate;
+mod ctx;
+mod insulation;
+pub mod layout;
+pub mod model;
+pub mod raw;
+mod simulation;
+mod sizing;
+mod soil;
+
+pub use layout::{Part, Rect};
+pub use model::*;
+
+use crate::error::{Error, InputKind, Location, Result};
+use ctx::Ctx;
+use raw::RawCase;
+
+/// Parse and validate the case text `src`, read from `file` (used in messages and to resolve
+/// relative paths of climate and soil files).
+pub fn parse_case(file: &str, src: &str) -> Result<Case> {
+    let raw: RawCase = toml::from_str(src).map_err(|e| toml_error(file, src, &e))?;
+    validate(&Ctx { file, src }, raw)
+}
+
+/// Read, parse and validate a case file.
+pub fn load_case(path: &std::path::Path) -> Result<Case> {
+    let src = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    parse_case(&path.display().to_string(), &src)
+}
+
+/// A TOML syntax or type error, located, with the key it concerns: the first `quoted` name in the
+/// message, else the key on the error's line, under the table the error sits in.
+fn toml_error(file: &str, src: &str, e: &toml::de::Error) -> Error {
+    let msg = e.message().to_string();
+    let (location, table, line_key) = match e.span() {
+        Some(sp) => (
+            Location::from_offset(file, src, sp.start),
+            table_at(src, sp.start),
+            key_on_line(src, sp.start),
+        ),
+        None => (Location::file_only(file), String::new(), None),
+    };
+    let named = msg.split('`').nth(1).map(str::to_string).or(line_key);
+    let key = match (named.as_deref(), table.is_empty()) {
+        (Some(k), false) => format!("{table}.{k}"),
+        (Some(k), true) => k.to_string(),
+        (None, false) => table,
+        (None, true) => "(syntax)".into(),
+    };
+    Error::input(location, &key, InputKind::Syntax, msg)
+}
+
+/// The `key` of a `key = value` line holding byte `offset`.
+fn key_on_line(src: &str, offset: usize) -> Option<String> {
+    let off = offset.min(src.len());
+    let start = src[..off].rfind('\n').map_or(0, |k| k + 1);
+    let line = src[start..].lines().next()?;
+    let (k, _) = line.split_once('=')?;
+    let k = k.trim();
+    (!k.is_empty() && !k.starts_with('[')).then(|| k.to_string())
+}
+
+/// Name of the TOML table whose header precedes byte `offset` (e.g. `slab`, `insulation`).
+fn table_at(src: &str, offset: usize) -> String {
+    let end = src[offset.min(src.len())..]
+        .find('\n')
+        .map_or(src.len(), |k| offset + k);
+    let upto = &src[..end];
+    upto.lines()
+        .filter_map(|l| {
+            let l = l.trim();
+            l.starts_with('[')
+                .then(|| l.trim_matches(|c| c == '[' || c == ']').trim().to_string())
+        })
+        .next_back()
+        .unwrap_or_default()
+}
+
+/// The directory that relative paths in a case file are resolved against.
+fn case_dir(file: &str) -> std::path::PathBuf {
+    std::path::Path::new(file)
+        .parent()
+        .map(|p| p.to_path_buf())
+        .unwrap_or_default()
+}
+
+/// Validate every table in dependency order.
+fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
+    let building = building::building(c, &raw.building)?;
+    let cons = building::construction(c, &raw, &building)?;
+    let climate = climate::climate(c, &raw.climate)?;
+    let simulation = simulation::simulation(c, &raw.simulation, building.b_prime_m)?;
+    let strata = soil::strata(c, &raw.soil)?;
+    let basement = building::basement(c, raw.basement.as_ref(), &cons, &simulation)?;
+    let fill = insulation::fill(c, raw.fill.as_ref())?;
+    let parts = insulation::Parts {
+        building: &building,
+        cons: &cons,
+        simulation: &simulation,
+    };
+    let insulation = insulation::insulation(c, &raw.insulation, &parts)?;
+    building::footing_in_domain(c, &raw.footing, &cons.footing, &simulation)?;
+    let probes = simulation::probes(c, &raw.probe, &building, &cons.wall, &simulation)?;
+    let sizing = match &raw.sizing {
+        None => None,
+        Some(s) => Some(sizing::sizing(c, s, &insulation)?),
+    };
+    let case = Case {
+        sizing,
+        file: c.file.to_string(),
+        source: c.src.to_string(),
+        name: raw.name,
+        building,
+        slab: cons.slab,
+        wall: cons.wall,
+        footing: cons.footing,
+        basement,
+        insulation,
+        fill,
+        strata,
+        climate,
+        simulation,
+        probes,
+    };
+    insulation::check_layout(c, &raw.insulation, &case)?;
+    Ok(case)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn toml_errors_name_table_and_key() {
+        let src = "name = \"x\"\n[slab]\nthickness_m = \"thick\"\n";
+        let e = parse_case("c.toml", src).unwrap_err();
+        match e {
+            Error::Input {
+                location,
+                key,
+                kind,
+                ..
+            } => {
+                assert_eq!((location.line, kind), (3, InputKind::Syntax));
+                assert_eq!(key, "slab.thickness_m");
+            }
+            other => panic!("{other}"),
+        }
+    }
+
+    #[test]
+    fn helpers_find_tables_and_keys() {
+        let src = "a = 1\n[[insulation]]\nkind = \"wing\"\n";
+        let off = src.find("wing").unwrap();
+        assert_eq!(table_at(src, off), "insulation");
+        assert_eq!(key_on_line(src, off).as_deref(), Some("kind"));
+        assert_eq!(
+            case_dir("examples/x.toml"),
+            std::path::PathBuf::from("examples")
+        );
+    }
+}

@@ -1,0 +1,392 @@
+//! The validated case in SI units: what the rest of the program reads. Built only by validation
+//! ([`super::parse_case`]); every value here is within its documented range.
+//!
+//! Coordinates: x horizontal, 0 at the exterior face of the foundation wall, positive outward
+//! (negative under the building); z depth below finished ground level, positive down (negative
+//! above ground).
+use crate::physics::climate::{DailySeries, FitMethod};
+use crate::physics::material::Material;
+
+/// Mesh fineness.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Fineness {
+    /// 5 cm at edges, growth 1.3, at most 2 m.
+    Coarse,
+    /// 2 cm at edges, growth 1.2, at most 1 m (the default).
+    Normal,
+    /// 1 cm at edges, growth 1.1, at most 0.5 m.
+    Fine,
+}
+
+impl Fineness {
+    /// (cell size at edges, growth ratio, largest cell), m.
+    pub fn sizes(self) -> (f64, f64, f64) {
+        match self {
+            Fineness::Coarse => (0.05, 1.3, 2.0),
+            Fineness::Normal => (0.02, 1.2, 1.0),
+            Fineness::Fine => (0.01, 1.1, 0.5),
+        }
+    }
+    /// Parse a name.
+    pub fn parse(s: &str) -> Option<Self> {
+        match s {
+            "coarse" => Some(Fineness::Coarse),
+            "normal" => Some(Fineness::Normal),
+            "fine" => Some(Fineness::Fine),
+            _ => None,
+        }
+    }
+}
+
+/// The building.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Building {
+    /// Floor area A, m².
+    pub floor_area_m2: f64,
+    /// Exposed perimeter P, m.
+    pub exposed_perimeter_m: f64,
+    /// Characteristic dimension B' = A/(0.5 P), m.
+    pub b_prime_m: f64,
+    /// Indoor air temperature per calendar month, °C.
+    pub indoor_monthly_c: [f64; 12],
+    /// An unheated building: the indoor air follows the outdoor air.
+    pub unheated: bool,
+    /// Indoor surface resistance of the floor (heat flow down), m²·K/W. Default 0.17 (ISO 6946).
+    pub r_si_floor: f64,
+    /// Indoor surface resistance of the wall (horizontal flow), m²·K/W. Default 0.13 (ISO 6946).
+    pub r_si_wall: f64,
+}
+
+/// Slab, wall, footing: the concrete parts.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Slab {
+    /// Thickness, m.
+    pub thickness_m: f64,
+    /// Material.
+    pub material: Material,
+    /// Height of the floor surface above ground level, m (z of the floor = −this).
+    pub top_above_ground_m: f64,
+    /// Floor finish resistance added to the floor surface resistance, m²·K/W.
+    pub finish_r: f64,
+}
+
+/// Foundation wall.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Wall {
+    /// Thickness w, m; the wall spans x ∈ [−w, 0].
+    pub thickness_m: f64,
+    /// Material.
+    pub material: Material,
+    /// Height above ground where the section is cut (adiabatic), m.
+    pub height_above_ground_m: f64,
+}
+
+/// Footing under the wall.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Footing {
+    /// Width, m.
+    pub width_m: f64,
+    /// How far the footing reaches beyond the wall's exterior face, m (default: centred,
+    /// (width − w)/2).
+    pub outer_projection_m: f64,
+    /// Thickness, m.
+    pub thickness_m: f64,
+    /// Depth of the base below ground level, m.
+    pub base_depth_m: f64,
+    /// Material.
+    pub material: Material,
+}
+
+/// A heated basement: the floor below ground level, optionally with backfill beside the wall.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Basement {
+    /// Depth of the basement floor surface below ground level, m.
+    pub floor_depth_m: f64,
+    /// Backfill beside the wall, if any.
+    pub backfill: Option<Backfill>,
+}
+
+/// Backfill beside a basement wall: the block x ∈ [0, width], z ∈ [0, depth].
+#[derive(Debug, Clone, PartialEq)]
+pub struct Backfill {
+    /// Outward width from the wall's exterior face x = 0, m.
+    pub width_m: f64,
+    /// Depth below ground level, m.
+    pub depth_m: f64,
+    /// Material (a soil, possibly freezing).
+    pub material: Material,
+}
+
+/// Granular fill under the slab.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Fill {
+    /// Thickness below the slab (and below whole-floor insulation), m.
+    pub thickness_m: f64,
+    /// Material.
+    pub material: Material,
+}
+
+/// Where an insulation piece sits.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum InsulationKind {
+    /// Under the slab, over `band_width_m` from the wall's inside face (None: whole floor).
+    UnderSlab {
+        /// Band width, m.
+        band_width_m: Option<f64>,
+    },
+    /// On the wall's outside face, x ∈ [0, t], from `top_m` to `bottom_m` (z).
+    VerticalOutside {
+        /// z of the top, m.
+        top_m: f64,
+        /// z of the bottom, m.
+        bottom_m: f64,
+    },
+    /// On the wall's inside face, x ∈ [−w − t, −w], from `top_m` to `bottom_m` (z).
+    VerticalInside {
+        /// z of the top, m.
+        top_m: f64,
+        /// z of the bottom, m.
+        bottom_m: f64,
+    },
+    /// Horizontal wing outside the wall: top face at z = `depth_m`, from x = `x_start_m` to
+    /// x = `width_m`.
+    Wing {
+        /// z of the top face, m.
+        depth_m: f64,
+        /// Inner end, m (the outer face of any outside vertical insulation, else 0).
+        x_start_m: f64,
+        /// Outer end x, m.
+        width_m: f64,
+    },
+}
+
+/// An insulation piece.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Insulation {
+    /// Placement.
+    pub kind: InsulationKind,
+    /// Thickness, m.
+    pub thickness_m: f64,
+    /// Material (in-ground design conductivity).
+    pub material: Material,
+}
+
+/// A soil stratum.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Stratum {
+    /// z of the bottom, m (`f64::INFINITY` for the last).
+    pub bottom_m: f64,
+    /// Material with freezing properties.
+    pub material: Material,
+}
+
+/// Where the outdoor temperature comes from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ClimateSource {
+    /// The sinusoid of [`Climate`] (given, or a design year built from a series).
+    Sinusoid,
+    /// A measured series of daily means, run through in full after spin-up on its first season.
+    Series(DailySeries),
+}
+
+/// A design year built from a measured series: the sinusoid with the series' mean whose freezing
+/// index is the design freezing index.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct DesignYear {
+    /// The series file.
+    pub series: String,
+    /// Return period, years.
+    pub return_period_years: f64,
+    /// Design air freezing index, °C·d.
+    pub design_freezing_index_c_days: f64,
+    /// Gumbel fit method.
+    pub fit_method: FitMethod,
+}
+
+/// Outdoor climate: θ(t) = mean − amplitude · cos(2π (t − coldest_day)/365) for a design year,
+/// or a measured series; n-factors turn air into ground-surface temperature
+/// (θ_s = n_f θ below 0 °C, n_t θ above), and a monthly snow cover adds a resistance
+/// depth/k_snow on the ground surface.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Climate {
+    /// Source of the outdoor temperature.
+    pub source: ClimateSource,
+    /// Design-year provenance, when the sinusoid was built from a series.
+    pub design: Option<DesignYear>,
+    /// n-factor for freezing (surface / air freezing index). Default 1.
+    pub n_freezing: f64,
+    /// n-factor for thawing. Default 1.
+    pub n_thawing: f64,
+    /// Snow depth per calendar month, m. Default none.
+    pub snow_depth_m: [f64; 12],
+    /// Snow conductivity, W/(m·K). Default 0.2 (settled snow, common practice).
+    pub snow_k: f64,
+    /// Annual mean air temperature, °C.
+    pub mean_c: f64,
+    /// Amplitude, K.
+    pub amplitude_k: f64,
+    /// Day of year of the minimum (1–365).
+    pub coldest_day: f64,
+    /// External surface resistance, m²·K/W. Default 0.04 (ISO 6946).
+    pub r_se: f64,
+}
+
+/// Numerical settings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Simulation {
+    /// Time step, s. Default 86 400 s (1 day).
+    pub dt_s: f64,
+    /// Most years of spin-up before the reported year. Default 10.
+    pub max_spin_up_years: usize,
+    /// Fewest years of spin-up, whatever the periodicity test says. Default 1.
+    pub min_spin_up_years: usize,
+    /// Step (days) of an extra first spin-up year run before the others, or 0 for none. Default 5.
+    /// That year only brings the annual wave and the deep ground near the periodic state, at a
+    /// fifth of the cost; it is not compared, recorded or counted in the spin-up years.
+    pub coarse_year_step_days: usize,
+    /// Mesh fineness. Default normal.
+    pub mesh: Fineness,
+    /// Ground outside the wall, m. Default max(20, 2.5 B') (ISO 10211 cut-off planes).
+    pub domain_width_m: f64,
+    /// Ground depth, m. Default max(20, 2.5 B').
+    pub domain_depth_m: f64,
+    /// Fixed temperature at the bottom (°C), or adiabatic (None, the default).
+    pub bottom_temperature_c: Option<f64>,
+}
+
+/// A named point whose temperature is recorded.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Probe {
+    /// Name.
+    pub name: String,
+    /// x, m.
+    pub x_m: f64,
+    /// z, m.
+    pub z_m: f64,
+}
+
+/// A dimension the sizing may vary.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Dimension {
+    /// Insulation thickness.
+    ThicknessM,
+    /// Wing width (outer end x).
+    WidthM,
+    /// Wing depth (top face z).
+    DepthM,
+    /// Vertical insulation bottom depth.
+    BottomDepthM,
+    /// Under-slab band width.
+    BandWidthM,
+    /// Footing base depth.
+    FootingBaseDepthM,
+}
+
+/// One varied dimension of a sizing.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Vary {
+    /// Insulation piece index (None for the footing).
+    pub insulation: Option<usize>,
+    /// Which dimension.
+    pub dimension: Dimension,
+    /// Smallest value, m.
+    pub min: f64,
+    /// Largest value, m.
+    pub max: f64,
+    /// Step, m.
+    pub step: f64,
+}
+
+impl Vary {
+    /// The candidate values min, min + step, …, max.
+    pub fn values(&self) -> Vec<f64> {
+        let n = ((self.max - self.min) / self.step + 1e-9).floor() as usize;
+        (0..=n).map(|k| self.min + k as f64 * self.step).collect()
+    }
+}
+
+/// Sizing settings.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Sizing {
+    /// Required frost margin (footing base depth − frost depth under the footing), m.
+    pub margin_m: f64,
+    /// Varied dimensions (one or two).
+    pub vary: Vec<Vary>,
+    /// Cost weight per m³ of each insulation material by name.
+    pub cost_per_m3: std::collections::BTreeMap<String, f64>,
+    /// Cost weight per m³ of excavation.
+    pub excavation_cost_per_m3: f64,
+}
+
+/// A validated case in SI units.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Case {
+    /// The file the case was read from (for messages).
+    pub file: String,
+    /// The case file's text as read.
+    pub source: String,
+    /// Case name.
+    pub name: String,
+    /// Building.
+    pub building: Building,
+    /// Slab.
+    pub slab: Slab,
+    /// Foundation wall.
+    pub wall: Wall,
+    /// Footing.
+    pub footing: Footing,
+    /// Heated basement, if the floor is below ground.
+    pub basement: Option<Basement>,
+    /// Insulation pieces.
+    pub insulation: Vec<Insulation>,
+    /// Granular fill under the slab.
+    pub fill: Option<Fill>,
+    /// Soil strata, top to bottom.
+    pub strata: Vec<Stratum>,
+    /// Climate.
+    pub climate: Climate,
+    /// Numerical settings.
+    pub simulation: Simulation,
+    /// Probes.
+    pub probes: Vec<Probe>,
+    /// Insulation sizing settings, if the case has a `[sizing]` table.
+    pub sizing: Option<Sizing>,
+}
+
+impl Case {
+    /// z of the floor surface, m (negative above ground).
+    pub fn floor_z(&self) -> f64 {
+        -self.slab.top_above_ground_m
+    }
+    /// z of the slab's underside, m.
+    pub fn slab_bottom_z(&self) -> f64 {
+        self.floor_z() + self.slab.thickness_m
+    }
+    /// x range of the footing, m.
+    pub fn footing_x(&self) -> (f64, f64) {
+        let x1 = self.footing.outer_projection_m;
+        (x1 - self.footing.width_m, x1)
+    }
+    /// z of the footing's top, m.
+    pub fn footing_top_z(&self) -> f64 {
+        self.footing.base_depth_m - self.footing.thickness_m
+    }
+    /// Mean indoor temperature, °C.
+    pub fn indoor_mean_c(&self) -> f64 {
+        if self.building.unheated {
+            return self.climate.mean_c;
+        }
+        self.building.indoor_monthly_c.iter().sum::<f64>() / 12.0
+    }
+    /// Soil material at depth z (m).
+    pub fn soil_at(&self, z: f64) -> &Material {
+        &self
+            .strata
+            .iter()
+            .find(|s| z < s.bottom_m)
+            .unwrap_or(self.strata.last().expect("≥1 stratum"))
+            .material
+    }
+}

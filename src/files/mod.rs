@@ -1,0 +1,123 @@
+//! The run directory: every file a run or a sizing writes, with typed structs written and read
+//! here only ([`summary`], [`tables`], [`section`], [`sizing`]). Every file is written under a
+//! temporary name in the same directory and renamed, so a failed run never leaves a half-written
+//! file.
+pub mod section;
+pub mod sizing;
+pub mod summary;
+pub mod tables;
+
+pub use section::{read_fields, read_section, PlotEntry, PlotIndex, SectionFile, NO_VALUE};
+pub use sizing::{SizingFile, SIZING_CAUTION};
+pub use summary::{Summary, CAUTION, COORDINATES};
+
+use crate::case::Case;
+use crate::design::SizingResult;
+use crate::error::{Error, InputKind, Result};
+use crate::estimate::CrossCheck;
+use crate::run::RunResult;
+use std::path::{Path, PathBuf};
+
+/// Write `bytes` to `dir/name` through a temporary file and a rename.
+pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
+    let path = dir.join(name);
+    let tmp = dir.join(format!(".{name}.tmp"));
+    std::fs::write(&tmp, bytes).map_err(|e| Error::io(&path, e))?;
+    std::fs::rename(&tmp, &path).map_err(|e| Error::io(&path, e))?;
+    Ok(path)
+}
+
+/// Serialise `v` as pretty JSON into `dir/name`.
+pub fn write_json<T: serde::Serialize>(dir: &Path, name: &str, v: &T) -> Result<PathBuf> {
+    let bytes = serde_json::to_vec_pretty(v).map_err(|e| Error::Output(e.to_string()))?;
+    write_atomic(dir, name, &bytes)
+}
+
+/// Create `dir` if missing.
+pub fn create_dir(dir: &Path) -> Result<()> {
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))
+}
+
+/// The text of `dir/name`.
+pub fn read_text(dir: &Path, name: &str) -> Result<String> {
+    let p = dir.join(name);
+    std::fs::read_to_string(&p).map_err(|e| Error::io(&p, e))
+}
+
+/// `dir/name` is not a file frostline wrote (or it is damaged).
+pub fn bad_file(dir: &Path, name: &str, what: impl std::fmt::Display) -> Error {
+    Error::in_file(
+        &dir.join(name).display().to_string(),
+        "(file)",
+        InputKind::NotAResult,
+        format!("not a frostline result file: {what}"),
+    )
+}
+
+/// `summary.json` of `dir`.
+pub fn read_summary(dir: &Path) -> Result<Summary> {
+    let name = "summary.json";
+    serde_json::from_str(&read_text(dir, name)?).map_err(|e| bad_file(dir, name, e))
+}
+
+/// `sizing.json` of `dir`, if there is one.
+pub fn read_sizing(dir: &Path) -> Result<Option<SizingFile>> {
+    let name = "sizing.json";
+    if !dir.join(name).exists() {
+        return Ok(None);
+    }
+    serde_json::from_str(&read_text(dir, name)?)
+        .map(Some)
+        .map_err(|e| bad_file(dir, name, e))
+}
+
+/// Write every result file of a run of `case` (with its cross-checks `cc`) into `dir` (created
+/// if missing); returns the paths.
+pub fn write_run(case: &Case, r: &RunResult, cc: &CrossCheck, dir: &Path) -> Result<Vec<PathBuf>> {
+    create_dir(dir)?;
+    let head = format!("{}\n{CAUTION}\nCoordinates: {COORDINATES}.", case.name);
+    let mut files = vec![
+        write_json(dir, "summary.json", &Summary::new(case, r, cc))?,
+        write_atomic(dir, "case.toml", case.source.as_bytes())?,
+        write_atomic(dir, "daily.csv", &tables::daily(&head, r)?)?,
+        write_atomic(dir, "monthly.csv", &tables::monthly(&head, r)?)?,
+        write_atomic(dir, "probes.csv", &tables::probes(&head, case, r)?)?,
+        write_atomic(
+            dir,
+            &format!("field_{:03}.csv", r.field.day_of_year),
+            &tables::field(&head, r)?,
+        )?,
+    ];
+    if !r.winters.is_empty() {
+        files.push(write_atomic(
+            dir,
+            "winters.csv",
+            &tables::winters(&head, &r.winters)?,
+        )?);
+    }
+    files.push(write_json(dir, "section.json", &SectionFile::new(case, r))?);
+    files.push(write_atomic(
+        dir,
+        "fields.i16",
+        &section::encode_fields(r.daily_fields.view()),
+    )?);
+    Ok(files)
+}
+
+/// Write `sizing.json`, `sizing.csv` and (if a design was chosen) `chosen_case.toml` into `dir`.
+pub fn write_sizing(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<PathBuf>> {
+    create_dir(dir)?;
+    let f = SizingFile::new(case, r);
+    let mut files = vec![
+        write_json(dir, "sizing.json", &f)?,
+        write_atomic(dir, "sizing.csv", sizing::sizing_csv(case, &f).as_bytes())?,
+    ];
+    if let Some((chosen, _)) = &r.chosen_run {
+        files.push(write_atomic(
+            dir,
+            "chosen_case.toml",
+            chosen.source.as_bytes(),
+        )?);
+    }
+    Ok(files)
+}

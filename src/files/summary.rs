@@ -1,0 +1,270 @@
+//! `summary.json`: the headline results in SI units, the numerical record, every simulated year
+//! and the published-method cross-checks.
+use crate::case::{Case, ClimateSource, DesignYear};
+use crate::estimate::CrossCheck;
+use crate::run::{self, RunResult, WinterResult, Year};
+use serde::{Deserialize, Serialize};
+
+/// The caution carried by every report and file.
+pub const CAUTION: &str = "Results are engineering estimates from a 2D model with idealised soil and climate. \
+They do not replace the judgement of a licensed engineer; local codes and standards govern the design of \
+foundations and frost protection.";
+
+/// The coordinate convention, stated in file headers.
+pub const COORDINATES: &str =
+    "x horizontal, 0 at the exterior face of the foundation wall, positive outward; z depth below finished ground level, positive down";
+
+/// Grid size.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct GridSize {
+    /// Cells along x.
+    pub nx: usize,
+    /// Cells along z.
+    pub nz: usize,
+}
+
+/// The climate as run.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ClimateInfo {
+    /// "sinusoid", "measured series" or "design year from a series".
+    pub kind: String,
+    /// Annual mean air temperature, °C.
+    pub mean_c: f64,
+    /// Amplitude of the annual sinusoid, K.
+    pub amplitude_k: f64,
+    /// Day of year of the minimum.
+    pub coldest_day: f64,
+    /// n-factor for freezing.
+    pub n_factor_freezing: f64,
+    /// n-factor for thawing.
+    pub n_factor_thawing: f64,
+    /// Snow depth per calendar month, m.
+    pub snow_depth_m: [f64; 12],
+}
+
+/// A heated basement's results (ISO 13370 definitions).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct BasementSummary {
+    /// Depth of the basement floor surface below ground level, m.
+    pub basement_floor_depth_m: f64,
+    /// Heat loss through the wall's inside face below ground level, kWh.
+    pub wall_heat_loss_kwh: f64,
+    /// Heat loss through the floor, kWh.
+    pub floor_heat_loss_kwh: f64,
+    /// Heat loss through the wall's inside face above ground level, kWh.
+    pub wall_above_ground_heat_loss_kwh: f64,
+    /// Below-ground wall loss / (z P Δθ), W/(m²·K).
+    pub wall_u_value_w_per_m2k: f64,
+    /// Floor loss / (A Δθ), W/(m²·K).
+    pub basement_floor_u_value_w_per_m2k: f64,
+    /// (floor + below-ground wall) / ((A + z P) Δθ), W/(m²·K).
+    pub effective_u_value_w_per_m2k: f64,
+    /// Deepest frost within 0.5 m outside the wall, m.
+    pub frost_depth_beside_wall_m: f64,
+    /// What the values mean.
+    pub basement_note: String,
+}
+
+/// Contents of `summary.json` (all SI).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Summary {
+    /// Case name.
+    pub case_name: String,
+    /// The caution.
+    pub caution: String,
+    /// Coordinate convention.
+    pub coordinates: String,
+    /// How whole-building figures are obtained.
+    pub note: String,
+    /// Floor area A, m².
+    pub floor_area_m2: f64,
+    /// Exposed perimeter P, m.
+    pub exposed_perimeter_m: f64,
+    /// B′ = A/(0.5 P), m.
+    pub characteristic_dimension_m: f64,
+    /// Mean indoor air temperature, °C.
+    pub mean_indoor_temperature_c: f64,
+    /// Mean outdoor air temperature, °C.
+    pub mean_outdoor_temperature_c: f64,
+    /// Annual ground heat loss, kWh.
+    pub annual_heat_loss_kwh: f64,
+    /// Mean heat loss, W.
+    pub mean_heat_loss_w: f64,
+    /// Largest daily-mean heat loss, W.
+    pub peak_heat_loss_w: f64,
+    /// Mean heat loss per metre of exposed perimeter, W/m.
+    pub heat_loss_per_perimeter_w_per_m: f64,
+    /// Floor U-value, W/(m²·K).
+    pub floor_u_value_w_per_m2k: f64,
+    /// Steady heat loss at the annual means, W.
+    pub steady_state_heat_loss_w: f64,
+    /// Deepest frost in open ground, m.
+    pub frost_depth_open_ground_m: f64,
+    /// Deepest frost under the footing, m.
+    pub frost_depth_under_footing_m: f64,
+    /// Footing base depth, m.
+    pub footing_base_depth_m: f64,
+    /// Footing base depth − frost under the footing, m.
+    pub frost_margin_m: f64,
+    /// Day of year of the deepest frost under the footing (open ground when none).
+    pub date_of_max_frost_depth: usize,
+    /// Day of year of the saved field.
+    pub field_day_of_year: usize,
+    /// Frost-line temperature, °C.
+    pub frost_line_temperature_c: f64,
+    /// Relative energy-balance error of the reported period.
+    pub energy_balance_error: f64,
+    /// Spin-up years before the reported period.
+    pub spin_up_years: usize,
+    /// Whether the spin-up criterion was met.
+    pub spin_up_converged: bool,
+    /// Extra first spin-up years in steps of several days.
+    pub coarse_spin_up_years: usize,
+    /// Their step, days.
+    pub coarse_year_step_days: usize,
+    /// Solid cells.
+    pub cells: usize,
+    /// Grid size.
+    pub grid: GridSize,
+    /// Time steps of the whole run.
+    pub time_steps: usize,
+    /// Time step, s.
+    pub time_step_s: f64,
+    /// Newton iterations.
+    pub newton_iterations: usize,
+    /// Newton iterations per time step.
+    pub newton_iterations_per_step: f64,
+    /// Cholesky factorisations.
+    pub factorizations: usize,
+    /// Solves by conjugate gradients with a nearby factor.
+    pub near_factor_solves: usize,
+    /// Their iterations.
+    pub cg_iterations: usize,
+    /// Step halvings.
+    pub step_halvings: usize,
+    /// Largest accepted residual, K.
+    pub max_residual_k: f64,
+    /// Wall-clock time, s.
+    pub wall_time_s: f64,
+    /// Every simulated year.
+    pub years: Vec<Year>,
+    /// Published-method cross-checks.
+    pub cross_check: CrossCheck,
+    /// Reported-year heat loss minus the periodic year's, kWh (estimate; null for a series).
+    pub periodicity_error_heat_loss_kwh: Option<f64>,
+    /// Every winter of a measured series.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub winters: Option<Vec<WinterResult>>,
+    /// The reported winter (the year it starts).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reported_winter: Option<i64>,
+    /// What the reported period is.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reported_period: Option<String>,
+    /// Design-year provenance.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub design_year: Option<DesignYear>,
+    /// The climate as run.
+    pub climate: ClimateInfo,
+    /// Heated-basement values.
+    #[serde(flatten, default, skip_serializing_if = "Option::is_none")]
+    pub basement: Option<BasementSummary>,
+}
+
+impl Summary {
+    /// The summary of a run of `case` with its cross-checks `cc`.
+    pub fn new(case: &Case, r: &RunResult, cc: &CrossCheck) -> Self {
+        let h = run::headline(case, r);
+        let y = r.final_year();
+        let st = r.stats;
+        let series = !r.winters.is_empty();
+        Summary {
+            case_name: case.name.clone(),
+            caution: CAUTION.into(),
+            coordinates: COORDINATES.into(),
+            note: "Whole-building figures are the 2D half-section's per-metre results times the exposed perimeter (ISO 13370 equivalent strip of width B').".into(),
+            floor_area_m2: case.building.floor_area_m2,
+            exposed_perimeter_m: case.building.exposed_perimeter_m,
+            characteristic_dimension_m: case.building.b_prime_m,
+            mean_indoor_temperature_c: case.indoor_mean_c(),
+            mean_outdoor_temperature_c: case.climate.mean_c,
+            annual_heat_loss_kwh: h.annual_heat_loss_kwh,
+            mean_heat_loss_w: h.mean_heat_loss_w,
+            peak_heat_loss_w: h.peak_heat_loss_w,
+            heat_loss_per_perimeter_w_per_m: h.heat_loss_per_perimeter_w_per_m,
+            floor_u_value_w_per_m2k: h.floor_u_value_w_per_m2k,
+            steady_state_heat_loss_w: r.steady_heat_loss_w,
+            frost_depth_open_ground_m: h.frost_depth_open_ground_m,
+            frost_depth_under_footing_m: h.frost_depth_under_footing_m,
+            footing_base_depth_m: case.footing.base_depth_m,
+            frost_margin_m: h.frost_margin_m,
+            date_of_max_frost_depth: h.date_of_max_frost_depth,
+            field_day_of_year: r.field.day_of_year,
+            frost_line_temperature_c: run::frost_line_c(case),
+            energy_balance_error: y.energy_balance_error,
+            spin_up_years: r.spin_up_years(),
+            spin_up_converged: r.spin_up_converged,
+            coarse_spin_up_years: r.coarse_spin_up_years,
+            coarse_year_step_days: case.simulation.coarse_year_step_days,
+            cells: r.mesh.solid_cells(),
+            grid: GridSize {
+                nx: r.mesh.grid.nx(),
+                nz: r.mesh.grid.nz(),
+            },
+            time_steps: r.time_steps,
+            time_step_s: case.simulation.dt_s,
+            newton_iterations: st.newton_iterations,
+            newton_iterations_per_step: st.newton_iterations as f64 / r.time_steps.max(1) as f64,
+            factorizations: st.factorizations,
+            near_factor_solves: st.near_factor_solves,
+            cg_iterations: st.cg_iterations,
+            step_halvings: st.halvings,
+            max_residual_k: st.max_residual_k,
+            wall_time_s: r.wall_time_s,
+            years: r.years.clone(),
+            cross_check: cc.clone(),
+            periodicity_error_heat_loss_kwh: r.periodicity_heat_loss_kwh,
+            winters: series.then(|| r.winters.clone()),
+            reported_winter: series.then(|| r.winters[r.reported - r.spin_up_years].winter),
+            reported_period: series.then(|| "the worst winter of the measured series (deepest frost under the footing, then in open ground)".to_string()),
+            design_year: case.climate.design.clone(),
+            climate: climate_info(case),
+            basement: basement_summary(case, r),
+        }
+    }
+}
+
+fn climate_info(case: &Case) -> ClimateInfo {
+    let cl = &case.climate;
+    let kind = match (&cl.source, &cl.design) {
+        (ClimateSource::Series(_), _) => "measured series",
+        (_, Some(_)) => "design year from a series",
+        _ => "sinusoid",
+    };
+    ClimateInfo {
+        kind: kind.into(),
+        mean_c: cl.mean_c,
+        amplitude_k: cl.amplitude_k,
+        coldest_day: cl.coldest_day,
+        n_factor_freezing: cl.n_freezing,
+        n_factor_thawing: cl.n_thawing,
+        snow_depth_m: cl.snow_depth_m,
+    }
+}
+
+fn basement_summary(case: &Case, r: &RunResult) -> Option<BasementSummary> {
+    let b = case.basement.as_ref()?;
+    let v = run::basement_values(case, r)?;
+    let y = r.final_year();
+    Some(BasementSummary {
+        basement_floor_depth_m: b.floor_depth_m,
+        wall_heat_loss_kwh: y.wall_heat_loss_kwh,
+        floor_heat_loss_kwh: y.floor_heat_loss_kwh,
+        wall_above_ground_heat_loss_kwh: y.wall_above_ground_heat_loss_kwh,
+        wall_u_value_w_per_m2k: v.wall_u_value_w_per_m2k,
+        basement_floor_u_value_w_per_m2k: v.floor_u_value_w_per_m2k,
+        effective_u_value_w_per_m2k: v.effective_u_value_w_per_m2k,
+        frost_depth_beside_wall_m: v.frost_depth_beside_wall_m,
+        basement_note: "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported separately.".into(),
+    })
+}

@@ -1,0 +1,265 @@
+//! The CSV files of a run directory: `daily.csv`, `monthly.csv`, `probes.csv`, `winters.csv` and
+//! `field_<day>.csv`, each with typed rows written and read here only. Every file starts with `#`
+//! lines giving the case, the caution and the coordinates; headers carry units.
+use super::{bad_file, read_text};
+use crate::case::Case;
+use crate::error::{Error, Result};
+use crate::physics::climate::month_of;
+use crate::run::{Day, RunResult, WinterResult};
+use serde::{Deserialize, Deserializer};
+use std::path::Path;
+
+/// A number that may be written as an empty cell (not finite).
+fn f64_or_nan<'de, D: Deserializer<'de>>(d: D) -> std::result::Result<f64, D::Error> {
+    let s = String::deserialize(d)?;
+    Ok(if s.trim().is_empty() {
+        f64::NAN
+    } else {
+        s.trim().parse().map_err(serde::de::Error::custom)?
+    })
+}
+
+/// One row of `daily.csv`: a day of the reported period.
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+pub struct DailyRow {
+    /// Day of year.
+    pub day_of_year: usize,
+    /// Daily mean outdoor air, °C.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub outdoor_temperature_c: f64,
+    /// Indoor air, °C.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub indoor_temperature_c: f64,
+    /// Whole-building daily mean ground heat loss, W.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub ground_heat_loss_w: f64,
+    /// Frost depth in open ground, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_open_ground_m: f64,
+    /// Frost depth under the footing, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_under_footing_m: f64,
+    /// Frost depth within 0.5 m outside the wall, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_beside_wall_m: f64,
+}
+
+impl From<&DailyRow> for Day {
+    fn from(r: &DailyRow) -> Day {
+        Day {
+            day_of_year: r.day_of_year,
+            outdoor_c: r.outdoor_temperature_c,
+            indoor_c: r.indoor_temperature_c,
+            heat_loss_w: r.ground_heat_loss_w,
+            frost_open_m: r.frost_depth_open_ground_m,
+            frost_footing_m: r.frost_depth_under_footing_m,
+            frost_beside_wall_m: r.frost_depth_beside_wall_m,
+        }
+    }
+}
+
+/// One row of `monthly.csv`: a calendar month of the reported period.
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+pub struct MonthlyRow {
+    /// Month 1–12.
+    pub month: usize,
+    /// Ground heat loss, kWh.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub ground_heat_loss_kwh: f64,
+    /// Mean outdoor air, °C.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub mean_outdoor_temperature_c: f64,
+    /// Largest open-ground frost depth, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub max_frost_depth_open_ground_m: f64,
+    /// Largest frost depth under the footing, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub max_frost_depth_under_footing_m: f64,
+}
+
+/// One row of `winters.csv`.
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+pub struct WinterRow {
+    /// The season, named by the year it starts.
+    pub winter: i64,
+    /// Air freezing index, °C·d.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub freezing_index_c_days: f64,
+    /// Deepest frost under the footing, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_under_footing_m: f64,
+    /// Deepest open-ground frost, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_open_ground_m: f64,
+}
+
+/// Probe temperatures: column headers and series (probe-major), °C.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Probes {
+    /// Headers of the probe columns.
+    pub names: Vec<String>,
+    /// One series per probe.
+    pub series: Vec<Vec<f64>>,
+}
+
+/// `v` with `digits` decimals, empty if not finite.
+pub fn fmt(v: f64, digits: usize) -> String {
+    if v.is_finite() {
+        format!("{v:.digits$}")
+    } else {
+        String::new()
+    }
+}
+
+/// A CSV file: `#` lines of `comment`, a header, rows.
+pub fn csv_bytes(
+    comment: &str,
+    header: &[&str],
+    rows: impl Iterator<Item = Vec<String>>,
+) -> Result<Vec<u8>> {
+    let mut out = Vec::new();
+    for line in comment.lines() {
+        out.extend_from_slice(format!("# {line}\n").as_bytes());
+    }
+    let mut w = csv::Writer::from_writer(out);
+    let enc = |e: csv::Error| Error::Output(e.to_string());
+    w.write_record(header).map_err(enc)?;
+    for r in rows {
+        w.write_record(&r).map_err(enc)?;
+    }
+    w.into_inner().map_err(|e| Error::Output(e.to_string()))
+}
+
+/// `daily.csv`.
+pub fn daily(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+    csv_bytes(
+        &format!("{head}\nReported (final) year, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
+        &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m"],
+        r.days.iter().map(|d| {
+            vec![d.day_of_year.to_string(), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4)]
+        }),
+    )
+}
+
+/// `monthly.csv`: calendar months of the reported period (365-day calendar; day 366 of a leap
+/// year stays in December).
+pub fn monthly(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+    let (mut kwh, mut tout, mut n) = ([0.0; 12], [0.0; 12], [0usize; 12]);
+    let (mut fo, mut ff) = ([0.0f64; 12], [0.0f64; 12]);
+    for d in &r.days {
+        let m = month_of((d.day_of_year as f64 - 0.5).min(364.5));
+        kwh[m] += d.heat_loss_w * 24.0 / 1000.0;
+        tout[m] += d.outdoor_c;
+        n[m] += 1;
+        fo[m] = fo[m].max(d.frost_open_m);
+        ff[m] = ff[m].max(d.frost_footing_m);
+    }
+    csv_bytes(
+        &format!("{head}\nCalendar months of the reported year (365-day calendar)."),
+        &[
+            "month",
+            "ground_heat_loss_kwh",
+            "mean_outdoor_temperature_c",
+            "max_frost_depth_open_ground_m",
+            "max_frost_depth_under_footing_m",
+        ],
+        (0..12).map(|m| {
+            vec![
+                (m + 1).to_string(),
+                fmt(kwh[m], 2),
+                fmt(tout[m] / n[m].max(1) as f64, 3),
+                fmt(fo[m], 4),
+                fmt(ff[m], 4),
+            ]
+        }),
+    )
+}
+
+/// `probes.csv`.
+pub fn probes(head: &str, case: &Case, r: &RunResult) -> Result<Vec<u8>> {
+    let mut ph = vec!["day_of_year".to_string()];
+    for p in &case.probes {
+        ph.push(format!(
+            "{} (x={} m z={} m) temperature_c",
+            p.name, p.x_m, p.z_m
+        ));
+    }
+    let hdr: Vec<&str> = ph.iter().map(String::as_str).collect();
+    csv_bytes(
+        &format!("{head}\nProbe temperatures at the end of each day of the reported year."),
+        &hdr,
+        r.days.iter().enumerate().map(|(k, d)| {
+            let mut row = vec![d.day_of_year.to_string()];
+            row.extend(r.probes.iter().map(|s| fmt(s[k], 3)));
+            row
+        }),
+    )
+}
+
+/// `field_<day>.csv`: cell-centre temperatures of the design day, solid cells only.
+pub fn field(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+    let g = &r.mesh.grid;
+    let t = &r.field.t;
+    csv_bytes(
+        &format!("{head}\nCell-centre temperatures on day {} of the year (deepest frost), solid cells only.", r.field.day_of_year),
+        &["x_m", "z_m", "temperature_c"],
+        (0..g.nz()).flat_map(|j| (0..g.nx()).map(move |i| (i, j))).filter_map(|(i, j)| {
+            let v = t[[j, i]];
+            v.is_finite().then(|| vec![fmt(g.xc(i), 4), fmt(g.zc(j), 4), fmt(v, 3)])
+        }),
+    )
+}
+
+/// `winters.csv`.
+pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Vec<u8>> {
+    csv_bytes(
+        &format!("{head}\nEvery complete season (1 July - 30 June) of the measured series, named by the year it starts."),
+        &["winter", "freezing_index_c_days", "frost_depth_under_footing_m", "frost_depth_open_ground_m", "frost_depth_beside_wall_m", "ground_heat_loss_kwh", "energy_balance_error"],
+        winters.iter().map(|w| {
+            vec![w.winter.to_string(), fmt(w.freezing_index_c_days, 1), fmt(w.frost_depth_under_footing_m, 4), fmt(w.frost_depth_open_ground_m, 4), fmt(w.frost_depth_beside_wall_m, 4), fmt(w.heat_loss_kwh, 1), format!("{:.2e}", w.energy_balance_error)]
+        }),
+    )
+}
+
+/// A CSV reader over `text` skipping `#` comment lines.
+fn reader(text: &str) -> csv::Reader<&[u8]> {
+    csv::ReaderBuilder::new()
+        .comment(Some(b'#'))
+        .from_reader(text.as_bytes())
+}
+
+/// Typed rows of one of our CSV files in `dir`; an error names the file and the row.
+pub fn read_rows<T: serde::de::DeserializeOwned>(dir: &Path, name: &str) -> Result<Vec<T>> {
+    let text = read_text(dir, name)?;
+    reader(&text)
+        .deserialize()
+        .enumerate()
+        .map(|(k, r)| r.map_err(|e| bad_file(dir, name, format!("data row {}: {e}", k + 1))))
+        .collect()
+}
+
+/// `probes.csv` of `dir`.
+pub fn read_probes(dir: &Path) -> Result<Probes> {
+    let name = "probes.csv";
+    let text = read_text(dir, name)?;
+    let mut r = reader(&text);
+    let names: Vec<String> = r
+        .headers()
+        .map_err(|e| bad_file(dir, name, e))?
+        .iter()
+        .skip(1)
+        .map(str::to_string)
+        .collect();
+    let mut series = vec![Vec::new(); names.len()];
+    for (k, rec) in r.records().enumerate() {
+        let rec = rec.map_err(|e| bad_file(dir, name, format!("data row {}: {e}", k + 1)))?;
+        for (p, s) in series.iter_mut().enumerate() {
+            s.push(
+                rec.get(p + 1)
+                    .and_then(|v| v.trim().parse().ok())
+                    .unwrap_or(f64::NAN),
+            );
+        }
+    }
+    Ok(Probes { names, series })
+}

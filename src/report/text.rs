@@ -1,0 +1,315 @@
+//! The text the command line prints: the result table of a run (from its summary, so terminal,
+//! JSON and report agree), the `check` overview, the climate statistics and a soil's properties.
+use crate::case::{Case, ClimateSource};
+use crate::error::Result;
+use crate::files::{Summary, CAUTION};
+use crate::physics::climate::ClimateSummary;
+use crate::physics::library::{soil_properties, KMethod, SoilFile};
+
+/// One row of a result table: label and unit in 35 characters, then each value in 10, with
+/// `prec` decimals.
+fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
+    let w = 35usize.saturating_sub(unit.chars().count());
+    let mut s = format!("    {label:<w$}{unit}");
+    for v in vals {
+        s += &format!("  {v:>10.prec$}");
+    }
+    s + "\n"
+}
+
+/// The short result table printed after a run.
+pub fn result_table(s: &Summary) -> String {
+    let c = &s.cross_check;
+    let mut t = format!("{}\n", s.case_name);
+    t += &format!(
+        "  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
+        s.characteristic_dimension_m, s.floor_area_m2, s.exposed_perimeter_m
+    );
+    t += "\n  Heat loss to the ground                     model      ISO 13370\n";
+    t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
+    t += &row(
+        "mean",
+        "W",
+        1,
+        &[s.mean_heat_loss_w, c.iso13370_mean_heat_loss_w],
+    );
+    t += &row("peak (daily mean)", "W", 1, &[s.peak_heat_loss_w]);
+    t += &row(
+        "per metre of exposed perimeter",
+        "W/m",
+        2,
+        &[s.heat_loss_per_perimeter_w_per_m],
+    );
+    t += &row(
+        "floor U-value",
+        "W/(m²K)",
+        3,
+        &[s.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k],
+    );
+    t += "\n  Frost depth (below ground level)            model      Stefan  mod. Berggren\n";
+    t += &row(
+        "open ground",
+        "m",
+        2,
+        &[
+            s.frost_depth_open_ground_m,
+            c.stefan_frost_depth_m,
+            c.modified_berggren_frost_depth_m,
+        ],
+    );
+    t += &row(
+        "under the footing",
+        "m",
+        2,
+        &[s.frost_depth_under_footing_m],
+    );
+    t += &row("footing base", "m", 2, &[s.footing_base_depth_m]);
+    let margin = row("margin (base − frost)", "m", 2, &[s.frost_margin_m]);
+    t += &if s.frost_margin_m < 0.0 {
+        margin.replace('\n', "  FROST BELOW FOOTING BASE\n")
+    } else {
+        margin
+    };
+    t += &row(
+        "deepest on day of year",
+        "",
+        0,
+        &[s.date_of_max_frost_depth as f64],
+    );
+    t += &row(
+        "freezing index (n × air)",
+        "°C·d",
+        0,
+        &[c.freezing_index_c_days],
+    );
+    if let (Some(b), Some(bc)) = (&s.basement, &c.basement) {
+        t += "\n  Heated basement                             model      ISO 13370\n";
+        t += &row(
+            "floor U-value",
+            "W/(m²K)",
+            3,
+            &[
+                b.basement_floor_u_value_w_per_m2k,
+                bc.iso13370_basement_floor_u_value_w_per_m2k,
+            ],
+        );
+        t += &row(
+            "wall U-value (below ground)",
+            "W/(m²K)",
+            3,
+            &[b.wall_u_value_w_per_m2k, bc.iso13370_wall_u_value_w_per_m2k],
+        );
+        t += &row(
+            "effective U-value",
+            "W/(m²K)",
+            3,
+            &[
+                b.effective_u_value_w_per_m2k,
+                bc.iso13370_effective_u_value_w_per_m2k,
+            ],
+        );
+        t += &row(
+            "wall / floor heat loss",
+            "kWh",
+            0,
+            &[b.wall_heat_loss_kwh, b.floor_heat_loss_kwh],
+        );
+        t += &row(
+            "frost beside the wall (0.5 m)",
+            "m",
+            2,
+            &[b.frost_depth_beside_wall_m],
+        );
+    }
+    t += &numerics_line(s);
+    t += &format!("\n  Caution: {CAUTION}\n");
+    t
+}
+
+/// The numerical record in two lines.
+fn numerics_line(s: &Summary) -> String {
+    let coarse = if s.coarse_spin_up_years > 0 {
+        format!(
+            " after {} at {}-day steps",
+            s.coarse_spin_up_years, s.coarse_year_step_days
+        )
+    } else {
+        String::new()
+    };
+    let mut t = format!("\n  Numerics: {} cells, {} steps, spin-up {} year(s){coarse} ({}), {:.2} Newton iterations/step, energy balance {:.1e}, {:.2} s\n",
+        s.cells, s.time_steps, s.spin_up_years,
+        if s.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
+        s.newton_iterations_per_step, s.energy_balance_error, s.wall_time_s);
+    if let Some(e) = s.periodicity_error_heat_loss_kwh {
+        t += &format!(
+            "  Periodicity: reported-year heat loss minus the periodic year's ≈ {e:+.2} kWh ({:+.3} %), estimated\n",
+            100.0 * e / s.annual_heat_loss_kwh.abs().max(1e-9)
+        );
+    }
+    t
+}
+
+/// The text `check` prints: geometry, mesh, and the closed-form estimates.
+pub fn check_text(case: &Case) -> Result<String> {
+    let section = crate::geometry::Section::from_case(case);
+    let mesh = section.mesh(case);
+    let c = crate::estimate::cross_check(case);
+    let b = &case.building;
+    let mut s = format!("{}: case is valid\n", case.name);
+    s += &format!(
+        "  B' = {:.3} m (A {:.1} m², P {:.1} m)\n",
+        b.b_prime_m, b.floor_area_m2, b.exposed_perimeter_m
+    );
+    s += &format!(
+        "  section: x {:.2} … {:.2} m, z {:.2} … {:.2} m\n",
+        section.x_min, section.x_max, section.z_top, section.z_bottom
+    );
+    s += &format!(
+        "  mesh ({:?}): {} × {} grid, {} solid cells\n",
+        case.simulation.mesh,
+        mesh.grid.nx(),
+        mesh.grid.nz(),
+        mesh.solid_cells()
+    );
+    let sim = &case.simulation;
+    let coarse = match sim.coarse_year_step_days {
+        0 => String::new(),
+        d => format!("one year at {d}-day steps, then "),
+    };
+    s += &format!(
+        "  time: spin-up {coarse}{} to {} years in {} h steps\n",
+        sim.min_spin_up_years,
+        sim.max_spin_up_years,
+        sim.dt_s / 3600.0
+    );
+    let m = &case.strata[0].material;
+    s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
+        m.k_unfrozen, m.k_frozen, m.c_unfrozen / 1e6, m.c_frozen / 1e6, m.latent / 1e6);
+    let kind = match (&case.climate.source, &case.climate.design) {
+        (ClimateSource::Series(sr), _) => {
+            format!("measured series {} ({} days)", sr.source, sr.values.len())
+        }
+        (_, Some(d)) => format!(
+            "design year from {} ({:.0}-year index {:.0} °C·d)",
+            d.series, d.return_period_years, d.design_freezing_index_c_days
+        ),
+        _ => "sinusoid".into(),
+    };
+    s += &format!(
+        "  climate: {kind}; mean {:.2} °C, amplitude {:.2} K, coldest day {:.0}\n",
+        case.climate.mean_c, case.climate.amplitude_k, case.climate.coldest_day
+    );
+    s += &format!(
+        "  surface freezing index {:.0} °C·d over {:.0} d\n",
+        c.freezing_index_c_days, c.freezing_season_days
+    );
+    if let Some(sz) = &case.sizing {
+        s += &format!(
+            "  sizing: margin {:.2} m, {} varied dimension(s)\n",
+            sz.margin_m,
+            sz.vary.len()
+        );
+    }
+    s += &format!(
+        "  ISO 13370: d_t {:.3} m, U0 {:.3}, Ψ_edge {:.3} W/(m·K), U {:.3} W/(m²·K)\n",
+        c.iso13370_dt_m,
+        c.iso13370_u0_w_per_m2k,
+        c.iso13370_edge_psi_w_per_mk,
+        c.iso13370_u_value_w_per_m2k
+    );
+    s += &format!("  open-ground frost depth: Stefan {:.2} m, modified Berggren {:.2} m; footing base {:.2} m\n",
+        c.stefan_frost_depth_m, c.modified_berggren_frost_depth_m, case.footing.base_depth_m);
+    Ok(s)
+}
+
+/// The table `climate` prints.
+pub fn climate_text(s: &ClimateSummary) -> String {
+    let mut t = format!(
+        "{}: {} to {} ({:.1} years, {} days filled)\n",
+        s.source, s.first_date, s.last_date, s.years, s.filled_days
+    );
+    t += &format!(
+        "  mean annual temperature          {:>8.2} °C\n",
+        s.mean_annual_temperature_c
+    );
+    t += &format!(
+        "  annual sinusoid amplitude        {:>8.2} K, coldest on day {:.0}\n",
+        s.annual_amplitude_k, s.coldest_day_of_year
+    );
+    t += "  freezing index by winter (°C·d):\n";
+    for w in &s.freezing_index_by_winter_c_days {
+        t += &format!(
+            "    {}/{:02} {:>8.0}\n",
+            w.winter,
+            (w.winter + 1) % 100,
+            w.value
+        );
+    }
+    t += &format!(
+        "  design freezing index, {:.0}-year   {:>8.0} °C·d (Gumbel {:?}: location {:.1}, scale {:.1}; KS D {:.3}, p {:.2})\n",
+        s.return_period_years, s.design_freezing_index_c_days, s.fit_method, s.gumbel_location_c_days, s.gumbel_scale_c_days, s.ks_statistic, s.ks_p_value
+    );
+    t += &format!(
+        "  mean of the 3 coldest winters    {:>8.0} °C·d\n",
+        s.mean_of_three_coldest_c_days
+    );
+    t += &format!(
+        "  coldest winter                   {:>8.0} °C·d\n",
+        s.max_freezing_index_c_days
+    );
+    t
+}
+
+/// The text `soil` prints for soil `s` (library name `name`) with conductivity `method`;
+/// `None` when Kersten's fits do not hold for its water content.
+pub fn soil_text(name: &str, s: &SoilFile, method: KMethod) -> Option<String> {
+    let p = soil_properties(s, method)?;
+    let explicit = s.k_unfrozen_w_per_mk.is_some();
+    let mut t = format!(
+        "{} ({name}): {}\n  source: {}\n",
+        s.name, s.description, s.source
+    );
+    t += &format!("  dry density {:.0} kg/m³, water content {:.1} % of dry mass, quartz {:.0} %, texture {:?}, saturation {:.0} %\n",
+        s.dry_density_kg_per_m3, 100.0 * s.water_content, 100.0 * s.quartz_fraction, s.texture, 100.0 * s.index().saturation());
+    t += &format!("  frost susceptibility: {}\n", s.frost_susceptibility);
+    let how = if explicit {
+        "explicit in the soil file"
+    } else if matches!(method, KMethod::Kersten) {
+        "Kersten 1949"
+    } else {
+        "Johansen 1975"
+    };
+    t += &format!(
+        "  conductivity ({how}):  unfrozen {:.3} W/(m·K), frozen {:.3} W/(m·K)\n",
+        p.k_unfrozen, p.k_frozen
+    );
+    t += &format!(
+        "  volumetric heat capacity: unfrozen {:.3} MJ/(m³·K), frozen {:.3} MJ/(m³·K)\n",
+        p.c_unfrozen / 1e6,
+        p.c_frozen / 1e6
+    );
+    t += &format!(
+        "  volumetric latent heat: {:.1} MJ/m³ (ρd · w · 333.7 kJ/kg)\n",
+        p.latent / 1e6
+    );
+    t += &format!(
+        "  diffusivity (unfrozen): {:.3e} m²/s\n",
+        p.k_unfrozen / p.c_unfrozen
+    );
+    Some(t)
+}
+
+/// The soil library listing.
+pub fn soil_list() -> String {
+    use crate::physics::library::{bundled_soil, SOILS};
+    let mut t = String::from("Soil library (typical values per class; replace with site data):\n");
+    for (n, _) in SOILS {
+        if let Some(s) = bundled_soil(n) {
+            t += &format!(
+                "  {n:<16} {:<58} frost: {}\n",
+                s.description, s.frost_susceptibility
+            );
+        }
+    }
+    t
+}

@@ -1,0 +1,285 @@
+//! The time loop: a run's state (enthalpies, temperatures) advanced day by day under the forcing,
+//! recording the daily heat loss, frost depths, probe temperatures and fields of a period (a year
+//! or a season), with the energy balance of every step.
+use super::forcing::{self, DayIn};
+use super::result::{Day, Field, Progress, Year};
+use super::{FrostLines, GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW};
+use crate::analysis::point_temperature;
+use crate::case::Case;
+use crate::error::Result;
+use crate::geometry::{INDOOR, OUTDOOR};
+use crate::mesh::Mesh;
+use crate::solver::{Network, Solver, SolverParams, StepEnergy};
+use ndarray::{Array2, Array3};
+
+/// The records of one simulated period (a year or a season).
+pub struct Period {
+    /// Every day.
+    pub days: Vec<Day>,
+    /// Probe temperatures per day (probe-major), °C.
+    pub probes: Vec<Vec<f64>>,
+    /// The field of every day (days × nz × nx), °C, NaN for air.
+    pub fields: Array3<f32>,
+    /// The design day's field.
+    pub field: Field,
+    /// The period's totals.
+    pub year: Year,
+}
+
+/// The state and fixed data of a run.
+pub struct Driver<'a> {
+    /// The case.
+    pub case: &'a Case,
+    /// Its mesh.
+    pub mesh: &'a Mesh,
+    /// Its network.
+    pub net: &'a Network,
+    /// The solver.
+    pub solver: Solver<'a>,
+    /// Enthalpy of each unknown, J/m³.
+    pub h: Vec<f64>,
+    /// Temperature of each unknown, °C.
+    pub t: Vec<f64>,
+    /// Where frost depths are measured.
+    pub lines: FrostLines,
+    /// Simulated time, s.
+    pub sim_time: f64,
+    /// Time steps taken.
+    pub time_steps: usize,
+}
+
+/// Sums over a period: heat from the zones, stored heat, heat by boundary group, J/m.
+#[derive(Default)]
+struct Sums {
+    from_zones: f64,
+    abs_from_zones: f64,
+    stored: f64,
+    groups: [f64; 4],
+    indoor: f64,
+}
+
+impl Sums {
+    fn add(&mut self, e: &StepEnergy) {
+        for (g, v) in e.by_group.iter().enumerate().take(4) {
+            self.groups[g] += v;
+        }
+        self.from_zones += e.from_zone.iter().sum::<f64>();
+        self.abs_from_zones += e.from_zone.iter().map(|v| v.abs()).sum::<f64>();
+        self.stored += e.stored;
+        self.indoor += e.from_zone[INDOOR];
+    }
+}
+
+/// The best candidates for the design day's field while a period runs.
+#[derive(Default)]
+struct DesignDay {
+    best_footing: Option<f64>,
+    best_open_winter: Option<f64>,
+    footing: Option<Field>,
+    open_winter: Option<Field>,
+}
+
+impl Driver<'_> {
+    /// Simulate `days` in steps of `step_days` days with `params`, each with the forcing averaged
+    /// over it (air: the sinusoid's exact mean, or the mean of the measured days; indoor: the
+    /// mean of the days' monthly values; snow: that of the step's middle day), recording nothing.
+    pub fn coarse_period(
+        &mut self,
+        days: &[DayIn],
+        step_days: usize,
+        params: &SolverParams,
+    ) -> Result<()> {
+        let case = self.case;
+        let cl = &case.climate;
+        for chunk in days.chunks(step_days.max(1)) {
+            let n = chunk.len() as f64;
+            let mid = chunk[chunk.len() / 2];
+            self.solver
+                .set_extra_horizontal_resistance(OUTDOOR, forcing::snow_r(cl, mid.month));
+            let air = match mid.measured_c {
+                Some(_) => chunk.iter().filter_map(|d| d.measured_c).sum::<f64>() / n,
+                None => forcing::mean_over(cl, chunk[0].cal, chunk[0].cal + n),
+            };
+            let indoor = chunk
+                .iter()
+                .map(|d| forcing::indoor_c(case, d.month, air))
+                .sum::<f64>()
+                / n;
+            let zt = forcing::zone_temps(case, indoor, forcing::surface(cl, air));
+            let dt = n * 86400.0;
+            self.solver
+                .step_with(&mut self.h, &zt, dt, self.sim_time, params)?;
+            self.sim_time += dt;
+            self.time_steps += 1;
+        }
+        self.net.temperatures(&self.h, &mut self.t);
+        Ok(())
+    }
+
+    /// Simulate `days`, recording everything.
+    pub fn period(
+        &mut self,
+        days: &[DayIn],
+        progress: &mut dyn FnMut(Progress),
+        (year, max_years): (usize, usize),
+    ) -> Result<Period> {
+        let (nx, nz) = (self.mesh.grid.nx(), self.mesh.grid.nz());
+        let mut days_out = Vec::with_capacity(days.len());
+        let mut probes = vec![Vec::with_capacity(days.len()); self.case.probes.len()];
+        let mut fields = Array3::<f32>::zeros((days.len(), nz, nx));
+        let mut sums = Sums::default();
+        let mut design = DesignDay::default();
+        for (d, day) in days.iter().enumerate() {
+            let (day_in, out_mean) = self.step_day(day, &mut sums)?;
+            let rec = self.record_day(day, day_in, out_mean, &mut probes);
+            let grid = self.grid_field();
+            design.offer(&rec, &grid);
+            fields
+                .index_axis_mut(ndarray::Axis(0), d)
+                .assign(&grid.mapv(|v| v as f32));
+            days_out.push(rec);
+            progress(Progress {
+                year,
+                day: d + 1,
+                max_years,
+            });
+        }
+        let field = design.choose(&days_out, &fields);
+        let year = self.totals(&days_out, &sums, design.best_footing);
+        Ok(Period {
+            days: days_out,
+            probes,
+            fields,
+            field,
+            year,
+        })
+    }
+
+    /// The steps of one day; returns the heat from the indoor air (J/m) and the mean air
+    /// temperature (°C).
+    fn step_day(&mut self, day: &DayIn, sums: &mut Sums) -> Result<(f64, f64)> {
+        let case = self.case;
+        let cl = &case.climate;
+        let dt = case.simulation.dt_s;
+        let steps_per_day = (86400.0 / dt).round() as usize;
+        self.solver
+            .set_extra_horizontal_resistance(OUTDOOR, forcing::snow_r(cl, day.month));
+        let (mut day_in, mut out_mean) = (0.0, 0.0);
+        for s in 0..steps_per_day {
+            let air = match day.measured_c {
+                Some(v) => v,
+                None => {
+                    let t0 = day.cal + s as f64 * dt / 86400.0;
+                    forcing::mean_over(cl, t0, t0 + dt / 86400.0)
+                }
+            };
+            out_mean += air / steps_per_day as f64;
+            let zt = forcing::zone_temps(
+                case,
+                forcing::indoor_c(case, day.month, air),
+                forcing::surface(cl, air),
+            );
+            let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
+            self.sim_time += dt;
+            self.time_steps += 1;
+            day_in += e.from_zone[INDOOR];
+            sums.add(&e);
+        }
+        self.net.temperatures(&self.h, &mut self.t);
+        Ok((day_in, out_mean))
+    }
+
+    /// The day's record (frost depths at the end of the day) and its probe temperatures.
+    fn record_day(&self, day: &DayIn, day_in: f64, out_mean: f64, probes: &mut [Vec<f64>]) -> Day {
+        let case = self.case;
+        let (fo, ff, fw) = self.lines.depths(self.mesh, self.net, &self.t);
+        let indoor = forcing::indoor_c(case, day.month, out_mean);
+        let zt = forcing::zone_temps(case, indoor, forcing::surface(&case.climate, out_mean));
+        for (k, p) in case.probes.iter().enumerate() {
+            probes[k].push(
+                point_temperature(self.mesh, self.net, &self.t, &zt, p.x_m, p.z_m)
+                    .unwrap_or(f64::NAN),
+            );
+        }
+        Day {
+            day_of_year: day.doy,
+            outdoor_c: out_mean,
+            indoor_c: indoor,
+            heat_loss_w: day_in / 86400.0 * case.building.exposed_perimeter_m,
+            frost_open_m: fo,
+            frost_footing_m: ff,
+            frost_beside_wall_m: fw,
+        }
+    }
+
+    /// The current temperatures on the grid (nz × nx), NaN for air.
+    pub fn grid_field(&self) -> Array2<f64> {
+        super::grid_field(self.mesh, self.net, &self.t)
+    }
+
+    /// The period's totals (whole building, kWh) and its energy balance.
+    fn totals(&self, days: &[Day], sums: &Sums, best_footing: Option<f64>) -> Year {
+        let perimeter = self.case.building.exposed_perimeter_m;
+        let to_kwh = |j: f64| j * perimeter / 3.6e6;
+        let max = |f: fn(&Day) -> f64| days.iter().map(f).fold(0.0, f64::max);
+        Year {
+            heat_loss_kwh: to_kwh(sums.indoor),
+            floor_heat_loss_kwh: to_kwh(sums.groups[GROUP_FLOOR]),
+            wall_heat_loss_kwh: to_kwh(sums.groups[GROUP_WALL_BELOW]),
+            wall_above_ground_heat_loss_kwh: to_kwh(sums.groups[GROUP_WALL_ABOVE]),
+            max_frost_beside_wall_m: max(|d| d.frost_beside_wall_m),
+            max_frost_open_m: max(|d| d.frost_open_m),
+            max_frost_footing_m: best_footing.unwrap_or(0.0).max(0.0),
+            energy_balance_error: if sums.abs_from_zones > 0.0 {
+                (sums.from_zones - sums.stored) / sums.abs_from_zones
+            } else {
+                0.0
+            },
+        }
+    }
+}
+
+impl DesignDay {
+    /// Consider the day `rec` with field `grid`: the deepest frost under the footing, and the
+    /// deepest open-ground frost while the air is still below freezing.
+    fn offer(&mut self, rec: &Day, grid: &Array2<f64>) {
+        let ff = rec.frost_footing_m;
+        if self.best_footing.is_none_or(|b| ff > b) {
+            self.best_footing = Some(ff);
+            if ff > 0.0 {
+                self.footing = Some(Field {
+                    day_of_year: rec.day_of_year,
+                    t: grid.clone(),
+                });
+            }
+        }
+        // Without frost under the footing, the field shown is that of the deepest open-ground
+        // frost while the air is still below freezing (the end of the freezing season), not of a
+        // late, slowly creeping frozen layer in summer.
+        let fo = rec.frost_open_m;
+        if rec.outdoor_c < 0.0 && self.best_open_winter.is_none_or(|b| fo > b) {
+            self.best_open_winter = Some(fo);
+            self.open_winter = Some(Field {
+                day_of_year: rec.day_of_year,
+                t: grid.clone(),
+            });
+        }
+    }
+
+    /// The design day's field: deepest frost under the footing, else the open-ground winter day,
+    /// else (no frost at all) the coldest day.
+    fn choose(&mut self, days: &[Day], fields: &Array3<f32>) -> Field {
+        if let Some(f) = self.footing.take().or(self.open_winter.take()) {
+            return f;
+        }
+        let k = days
+            .iter()
+            .enumerate()
+            .min_by(|a, b| a.1.outdoor_c.total_cmp(&b.1.outdoor_c))
+            .map_or(0, |(k, _)| k);
+        Field {
+            day_of_year: days.get(k).map_or(0, |d| d.day_of_year),
+            t: fields.index_axis(ndarray::Axis(0), k).mapv(f64::from),
+        }
+    }
+}

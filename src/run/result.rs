@@ -1,0 +1,150 @@
+//! What a run produces: the days and years it recorded, the field of the design day, and the
+//! numerical record.
+use crate::geometry::Section;
+use crate::mesh::Mesh;
+use crate::solver::SolverStats;
+use ndarray::{Array2, Array3};
+
+/// One day of the reported year.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Day {
+    /// Day of year, 1–365.
+    pub day_of_year: usize,
+    /// Daily mean outdoor air temperature, °C.
+    pub outdoor_c: f64,
+    /// Indoor air temperature, °C.
+    pub indoor_c: f64,
+    /// Daily mean ground heat loss of the whole building, W.
+    pub heat_loss_w: f64,
+    /// Frost depth in open ground at the far edge, end of day, m.
+    pub frost_open_m: f64,
+    /// Frost depth under the footing, end of day, m.
+    pub frost_footing_m: f64,
+    /// Frost depth within 0.5 m of the wall's exterior face, end of day, m.
+    pub frost_beside_wall_m: f64,
+}
+
+/// One simulated year.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Year {
+    /// Ground heat loss of the whole building over the year, kWh.
+    pub heat_loss_kwh: f64,
+    /// Of which through the floor, kWh.
+    pub floor_heat_loss_kwh: f64,
+    /// Of which through the wall's inside face below ground level, kWh.
+    pub wall_heat_loss_kwh: f64,
+    /// Of which through the wall's inside face above ground level, kWh.
+    pub wall_above_ground_heat_loss_kwh: f64,
+    /// Deepest frost within 0.5 m of the wall's exterior face, m.
+    pub max_frost_beside_wall_m: f64,
+    /// Deepest frost in open ground, m.
+    pub max_frost_open_m: f64,
+    /// Deepest frost under the footing, m.
+    pub max_frost_footing_m: f64,
+    /// Relative energy-balance error of the year.
+    pub energy_balance_error: f64,
+}
+
+/// The temperature field on one day.
+#[derive(Debug, Clone)]
+pub struct Field {
+    /// Day of year.
+    pub day_of_year: usize,
+    /// Cell-centre temperature per grid cell (NaN for air), °C, indexed by `Grid::id`.
+    pub t: Array2<f64>,
+}
+
+/// Everything a run produces.
+#[derive(Debug, Clone)]
+pub struct RunResult {
+    /// The section (construction outlines).
+    pub section: Section,
+    /// Mesh used.
+    pub mesh: Mesh,
+    /// Grid fields of every day of the reported year (°C, NaN for air), in `days` order.
+    pub daily_fields: Array3<f32>,
+    /// Days of the reported year, from the warmest day on.
+    pub days: Vec<Day>,
+    /// Probe temperatures per day of the reported year (probe-major), °C.
+    pub probes: Vec<Vec<f64>>,
+    /// Every simulated year, spin-up first (for a series: then every season).
+    pub years: Vec<Year>,
+    /// Index into `years` of the reported year (the last spin-up year, or the worst season).
+    pub reported: usize,
+    /// Years of spin-up before the reported year (for a series: before the first season).
+    pub spin_up_years: usize,
+    /// Extra first spin-up years run in steps of several days (0 or 1), not in `years` and not
+    /// counted in `spin_up_years`.
+    pub coarse_spin_up_years: usize,
+    /// Sinusoidal climate: the reported year's heat loss minus that of the periodic year, kWh,
+    /// estimated from how far the state at the year's end is from its start. Let ψ be the steady
+    /// temperature with the indoor zone at 1 and the other zones at 0 (the fraction of heat
+    /// released in a cell that eventually leaves through the building's faces). For conduction
+    /// with fixed conductances d/dt Σ ψ_p V_p δH_p is the change in the indoor zone's heat flow
+    /// caused by a state perturbation δH, so integrating over the year against the periodic
+    /// solution gives exactly
+    ///
+    /// ```text
+    /// Q_year − Q_periodic = P Σ_p ψ_p V_p (H_p,end − H_p,start)
+    /// ```
+    ///
+    /// (approximate where frozen and unfrozen conductivities differ or snow changes the surface
+    /// conductance). `None` for a measured series.
+    pub periodicity_heat_loss_kwh: Option<f64>,
+    /// Per-winter results of a measured series (empty for a design year).
+    pub winters: Vec<WinterResult>,
+    /// Whether the spin-up criterion was met.
+    pub spin_up_converged: bool,
+    /// Field on the day of maximum frost depth under the footing; if there is none, on the day of
+    /// deepest open-ground frost while the air is below 0 °C; if no frost at all, the coldest day.
+    pub field: Field,
+    /// Steady-state heat loss at the annual means, W (whole building).
+    pub steady_heat_loss_w: f64,
+    /// Solver work.
+    pub stats: SolverStats,
+    /// Time steps of the whole run (the coarse spin-up year's included).
+    pub time_steps: usize,
+    /// Wall-clock time, s.
+    pub wall_time_s: f64,
+}
+
+impl RunResult {
+    /// The reported year.
+    pub fn final_year(&self) -> &Year {
+        &self.years[self.reported]
+    }
+    /// Spin-up years before the reported one.
+    pub fn spin_up_years(&self) -> usize {
+        self.spin_up_years
+    }
+}
+
+/// Progress of a run, for a progress bar.
+#[derive(Debug, Clone, Copy)]
+pub struct Progress {
+    /// Year index (0-based).
+    pub year: usize,
+    /// Day within the year (1–365).
+    pub day: usize,
+    /// Most years the run can take.
+    pub max_years: usize,
+}
+
+/// Results of one winter of a measured series.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct WinterResult {
+    /// The season 1 July – 30 June, named by the year it starts.
+    pub winter: i64,
+    /// Air freezing index of the season, °C·d.
+    pub freezing_index_c_days: f64,
+    /// Deepest frost under the footing, m.
+    pub frost_depth_under_footing_m: f64,
+    /// Deepest frost in open ground, m.
+    pub frost_depth_open_ground_m: f64,
+    /// Deepest frost within 0.5 m of the wall, m.
+    pub frost_depth_beside_wall_m: f64,
+    /// Ground heat loss over the season, kWh.
+    pub heat_loss_kwh: f64,
+    /// Relative energy-balance error of the season.
+    pub energy_balance_error: f64,
+}
