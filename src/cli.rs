@@ -502,3 +502,40 @@ fn print_files(dir: &Path, written: &[PathBuf]) {
         );
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::CommandFactory;
+
+    #[test]
+    fn command_line_definition_is_consistent() {
+        Cli::command().debug_assert();
+        let c = Cli::try_parse_from([
+            "frostline",
+            "run",
+            "case.toml",
+            "--out",
+            "o",
+            "--mesh",
+            "coarse",
+        ])
+        .unwrap();
+        assert!(matches!(
+            c.command,
+            Command::Run(RunArgs {
+                mesh: Some(MeshArg::Coarse),
+                ..
+            })
+        ));
+    }
+
+    #[test]
+    fn flag_ranges_name_the_flag() {
+        let e = flag_range(0usize, (1, 100), "--max-spin-up-years", "1 to 100").unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "command line: --max-spin-up-years: 0 is out of range; allowed: 1 to 100"
+        );
+    }
+}

@@ -443,3 +443,80 @@ fn margin_meaning(m: f64) -> String {
         "frost_margin_m = footing base depth − deepest frost under the footing (the half-frozen line); a design passes when it is at least {m:.2} m, i.e. frost stays at least that far above the footing base"
     )
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sizing_case() -> Case {
+        let src = include_str!("../examples/kettle-hollow-sizing.toml");
+        parse_case(
+            concat!(
+                env!("CARGO_MANIFEST_DIR"),
+                "/examples/kettle-hollow-sizing.toml"
+            ),
+            src,
+        )
+        .unwrap()
+    }
+
+    /// A design is the case text with the values written in: the varied keys change, nothing
+    /// else does, and `[sizing]` is gone; the baseline drops exactly the varied pieces.
+    #[test]
+    fn design_text_and_baseline() {
+        let case = sizing_case();
+        let s = case.sizing.clone().unwrap();
+        let c = apply(&case, &s.vary, &[1.3, 0.075]).unwrap();
+        let k = s.vary[0].insulation.unwrap();
+        assert_eq!(c.insulation[k].thickness_m, 0.075);
+        assert!(
+            matches!(c.insulation[k].kind, InsulationKind::Wing { width_m, .. } if width_m == 1.3)
+        );
+        assert!(c.sizing.is_none());
+        assert_eq!(c.footing, case.footing);
+        let b = baseline(&case, &s).unwrap();
+        assert_eq!(b.insulation.len(), case.insulation.len() - 1);
+        let text = chosen_text(&case, &s.vary, &[1.3, 0.075]).unwrap();
+        assert!(text.contains("(sized)") && !text.contains("[sizing]"));
+    }
+
+    /// Cost per metre: insulation volume × weight plus excavation (footing base × width, and the
+    /// wing's trench to its underside), by hand for the sizing example's wing at 0.7 × 0.05 m.
+    #[test]
+    fn cost_by_hand() {
+        let case = sizing_case();
+        let s = case.sizing.clone().unwrap();
+        let c = apply(&case, &s.vary, &[0.7, 0.05]).unwrap();
+        let mut want = c.footing.base_depth_m * c.footing.width_m * s.excavation_cost_per_m3;
+        for ins in &c.insulation {
+            let w = s
+                .cost_per_m3
+                .get(&ins.material.name)
+                .copied()
+                .unwrap_or(250.0);
+            let len = match ins.kind {
+                InsulationKind::UnderSlab { band_width_m } => {
+                    band_width_m.unwrap_or(0.5 * c.building.b_prime_m)
+                }
+                InsulationKind::VerticalOutside { top_m, bottom_m }
+                | InsulationKind::VerticalInside { top_m, bottom_m } => bottom_m - top_m,
+                InsulationKind::Wing {
+                    depth_m,
+                    x_start_m,
+                    width_m,
+                } => {
+                    want += (depth_m + ins.thickness_m)
+                        * (width_m - x_start_m)
+                        * s.excavation_cost_per_m3;
+                    width_m - x_start_m
+                }
+            };
+            want += ins.thickness_m * len * w;
+        }
+        assert!((cost_per_m(&c, &s) - want).abs() < 1e-9);
+        assert_eq!(
+            dimension_label(&s.vary[0]),
+            format!("insulation[{}].width_m", s.vary[0].insulation.unwrap())
+        );
+    }
+}

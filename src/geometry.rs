@@ -45,141 +45,103 @@ impl Section {
         }
     }
 
-    /// Graded mesh of the section for `case` (materials: strata first, then construction parts).
-    pub fn mesh(&self, case: &Case) -> Mesh {
-        let (h0, growth, hmax) = case.simulation.mesh.sizes();
+    /// Breakpoints of the graded axes: every construction edge, the wall faces, ground level,
+    /// the strata boundaries and the domain's ends, with the cell size wanted at each.
+    pub fn breakpoints(&self, case: &Case) -> (Vec<Breakpoint>, Vec<Breakpoint>) {
+        let (h0, _, hmax) = case.simulation.mesh.sizes();
         let w = case.wall.thickness_m;
+        let bp = |at: f64, size: f64| Breakpoint { at, size };
         let mut bx = vec![
-            Breakpoint {
-                at: self.x_min,
-                size: (4.0 * h0).min(hmax),
-            },
-            Breakpoint {
-                at: self.x_max,
-                size: hmax,
-            },
-            Breakpoint { at: -w, size: h0 },
-            Breakpoint { at: 0.0, size: h0 },
+            bp(self.x_min, (4.0 * h0).min(hmax)),
+            bp(self.x_max, hmax),
+            bp(-w, h0),
+            bp(0.0, h0),
         ];
-        let mut bz = vec![
-            Breakpoint {
-                at: self.z_top,
-                size: h0,
-            },
-            Breakpoint { at: 0.0, size: h0 },
-            Breakpoint {
-                at: self.z_bottom,
-                size: hmax,
-            },
-        ];
+        let mut bz = vec![bp(self.z_top, h0), bp(0.0, h0), bp(self.z_bottom, hmax)];
         for r in &self.rects {
             for x in [r.x0, r.x1] {
                 if x > self.x_min + 1e-9 && x < self.x_max - 1e-9 {
-                    bx.push(Breakpoint { at: x, size: h0 });
+                    bx.push(bp(x, h0));
                 }
             }
             for z in [r.z0, r.z1] {
                 if z > self.z_top + 1e-9 && z < self.z_bottom - 1e-9 {
-                    bz.push(Breakpoint { at: z, size: h0 });
+                    bz.push(bp(z, h0));
                 }
             }
         }
         for s in &case.strata {
             if s.bottom_m < self.z_bottom - 1e-9 {
-                bz.push(Breakpoint {
-                    at: s.bottom_m,
-                    size: 2.0 * h0,
-                });
+                bz.push(bp(s.bottom_m, 2.0 * h0));
             }
         }
-        let grid = Grid {
+        (bx, bz)
+    }
+
+    /// The graded grid of the section (every construction edge on a grid line).
+    pub fn grid(&self, case: &Case) -> Grid {
+        let (_, growth, hmax) = case.simulation.mesh.sizes();
+        let (bx, bz) = self.breakpoints(case);
+        Grid {
             xe: graded_edges(&bx, growth, hmax),
             ze: graded_edges(&bz, growth, hmax),
-        };
-        let (nx, nz) = (grid.nx(), grid.nz());
+        }
+    }
 
-        // Materials: strata, then slab, wall, footing, fill, insulation pieces.
-        let mut mesh = Mesh::uniform(grid, case.strata[0].material.clone());
-        let mut strata_idx = vec![0];
-        for s in case.strata.iter().skip(1) {
-            strata_idx.push(mesh.add_material(s.material.clone()));
-        }
-        let slab_m = mesh.add_material(case.slab.material.clone());
-        let wall_m = mesh.add_material(case.wall.material.clone());
-        let foot_m = mesh.add_material(case.footing.material.clone());
-        let fill_m = mesh.add_material(
-            case.fill
-                .as_ref()
-                .map(|f| f.material.clone())
-                .unwrap_or_else(|| {
-                    crate::physics::library::named_material("gravel").expect("gravel exists")
-                }),
-        );
-        let ins_m: Vec<usize> = case
-            .insulation
+    /// What fills the point (x, z) of the section (a cell centre): the construction part painted
+    /// last over it, else soil by depth below ground, fill under the floor above ground level,
+    /// indoor air above the floor and outdoor air outside the wall above ground.
+    pub fn cell_at(&self, case: &Case, m: &Materials, x: f64, z: f64) -> Cell {
+        if let Some(r) = self
+            .rects
             .iter()
-            .map(|i| mesh.add_material(i.material.clone()))
-            .collect();
-        let backfill_m = case
-            .basement
-            .as_ref()
-            .and_then(|b| b.backfill.as_ref())
-            .map(|b| mesh.add_material(b.material.clone()));
-        mesh.add_zone(Zone {
-            name: "indoor".into(),
-            r_horizontal: case.building.r_si_floor + case.slab.finish_r,
-            r_vertical: case.building.r_si_wall,
-        });
-        mesh.add_zone(Zone {
-            name: "outdoor".into(),
-            r_horizontal: case.climate.r_se,
-            r_vertical: case.climate.r_se,
-        });
-        // Soil by depth; air above ground.
-        for j in 0..nz {
-            let zc = mesh.grid.zc(j);
-            for i in 0..nx {
-                let xc = mesh.grid.xc(i);
-                let cell = if xc < -w && zc < case.floor_z() {
-                    Cell::Zone(INDOOR)
-                } else if zc < 0.0 {
-                    if xc > 0.0 {
-                        Cell::Zone(OUTDOOR)
-                    } else {
-                        Cell::Solid(fill_m)
-                    }
-                } else {
-                    let k = case
-                        .strata
-                        .iter()
-                        .position(|s| zc < s.bottom_m)
-                        .unwrap_or(case.strata.len() - 1);
-                    Cell::Solid(strata_idx[k])
-                };
-                let id = mesh.grid.id(i, j);
-                mesh.cells[id] = cell;
-            }
+            .rev()
+            .find(|r| x >= r.x0 && x <= r.x1 && z >= r.z0 && z <= r.z1)
+        {
+            return Cell::Solid(m.of_part(r.part));
         }
-        for r in &self.rects {
-            let m = match r.part {
-                Part::Slab => slab_m,
-                Part::Wall => wall_m,
-                Part::Footing => foot_m,
-                Part::Fill => fill_m,
-                Part::Backfill => backfill_m.unwrap_or(strata_idx[0]),
-                Part::Insulation(k) => ins_m[k],
-            };
-            mesh.paint(r.x0, r.x1, r.z0, r.z1, Cell::Solid(m));
+        let w = case.wall.thickness_m;
+        if x < -w && z < case.floor_z() {
+            Cell::Zone(INDOOR)
+        } else if z < 0.0 {
+            if x > 0.0 {
+                Cell::Zone(OUTDOOR)
+            } else {
+                Cell::Solid(m.fill)
+            }
+        } else {
+            let k = case
+                .strata
+                .iter()
+                .position(|s| z < s.bottom_m)
+                .unwrap_or(case.strata.len() - 1);
+            Cell::Solid(m.strata[k])
+        }
+    }
+
+    /// Graded mesh of the section for `case` (materials: strata first, then construction parts).
+    pub fn mesh(&self, case: &Case) -> Mesh {
+        let grid = self.grid(case);
+        let (nx, nz) = (grid.nx(), grid.nz());
+        let mut mesh = Mesh::uniform(grid, case.strata[0].material.clone());
+        let m = Materials::add(&mut mesh, case);
+        add_zones(&mut mesh, case);
+        for j in 0..nz {
+            for i in 0..nx {
+                let id = mesh.grid.id(i, j);
+                mesh.cells[id] = self.cell_at(case, &m, mesh.grid.xc(i), mesh.grid.zc(j));
+            }
         }
         // Top edge: a solid cell in the top row faces the indoor air inside the wall, the outdoor
         // air outside it, and the section cut (adiabatic) over the wall.
+        let w = case.wall.thickness_m;
         for i in 0..nx {
             let xc = mesh.grid.xc(i);
             if matches!(mesh.cells[mesh.grid.id(i, 0)], Cell::Solid(_)) {
                 mesh.top[i] = if xc < -w {
                     EdgeBc::Zone {
                         zone: INDOOR,
-                        r: case.building.r_si_floor + case.slab.finish_r,
+                        r: indoor_floor_r(case),
                     }
                 } else if xc > 0.0 {
                     EdgeBc::Zone {
@@ -192,14 +154,171 @@ impl Section {
             }
         }
         if case.simulation.bottom_temperature_c.is_some() {
-            let z = mesh.add_zone(Zone {
-                name: "deep ground".into(),
-                r_horizontal: 0.0,
-                r_vertical: 0.0,
-            });
-            debug_assert_eq!(z, DEEP);
             mesh.bottom = vec![EdgeBc::Zone { zone: DEEP, r: 0.0 }; nx];
         }
         mesh
+    }
+}
+
+/// Surface resistance of the floor seen from the indoor air: R_si (heat flow down) plus the
+/// floor finish, m²·K/W.
+pub fn indoor_floor_r(case: &Case) -> f64 {
+    case.building.r_si_floor + case.slab.finish_r
+}
+
+/// The zones of a foundation model, in the order of [`INDOOR`], [`OUTDOOR`] and (with a fixed
+/// bottom temperature) [`DEEP`].
+pub fn add_zones(mesh: &mut Mesh, case: &Case) {
+    mesh.add_zone(Zone {
+        name: "indoor".into(),
+        r_horizontal: indoor_floor_r(case),
+        r_vertical: case.building.r_si_wall,
+    });
+    mesh.add_zone(Zone {
+        name: "outdoor".into(),
+        r_horizontal: case.climate.r_se,
+        r_vertical: case.climate.r_se,
+    });
+    if case.simulation.bottom_temperature_c.is_some() {
+        mesh.add_zone(Zone {
+            name: "deep ground".into(),
+            r_horizontal: 0.0,
+            r_vertical: 0.0,
+        });
+    }
+}
+
+/// Material indices of a case's parts in a mesh.
+#[derive(Debug, Clone)]
+pub struct Materials {
+    /// Each soil stratum.
+    pub strata: Vec<usize>,
+    /// Slab.
+    pub slab: usize,
+    /// Wall.
+    pub wall: usize,
+    /// Footing.
+    pub footing: usize,
+    /// Fill (gravel when the case has none).
+    pub fill: usize,
+    /// Backfill (the top stratum when the case has none).
+    pub backfill: usize,
+    /// Each insulation piece.
+    pub insulation: Vec<usize>,
+}
+
+impl Materials {
+    /// Add the case's materials to `mesh`, whose material 0 is the top stratum: strata, then
+    /// slab, wall, footing, fill, insulation pieces, backfill.
+    pub fn add(mesh: &mut Mesh, case: &Case) -> Self {
+        let mut strata = vec![0];
+        for s in case.strata.iter().skip(1) {
+            strata.push(mesh.add_material(s.material.clone()));
+        }
+        let slab = mesh.add_material(case.slab.material.clone());
+        let wall = mesh.add_material(case.wall.material.clone());
+        let footing = mesh.add_material(case.footing.material.clone());
+        let fill_material = case
+            .fill
+            .as_ref()
+            .map(|f| f.material.clone())
+            .unwrap_or_else(|| {
+                crate::physics::library::named_material("gravel").expect("gravel exists")
+            });
+        let fill = mesh.add_material(fill_material);
+        let insulation = case
+            .insulation
+            .iter()
+            .map(|i| mesh.add_material(i.material.clone()))
+            .collect();
+        let backfill = case
+            .basement
+            .as_ref()
+            .and_then(|b| b.backfill.as_ref())
+            .map_or(strata[0], |b| mesh.add_material(b.material.clone()));
+        Materials {
+            strata,
+            slab,
+            wall,
+            footing,
+            fill,
+            backfill,
+            insulation,
+        }
+    }
+
+    /// The material of a construction part.
+    pub fn of_part(&self, p: Part) -> usize {
+        match p {
+            Part::Slab => self.slab,
+            Part::Wall => self.wall,
+            Part::Footing => self.footing,
+            Part::Fill => self.fill,
+            Part::Backfill => self.backfill,
+            Part::Insulation(k) => self.insulation[k],
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn demo() -> Case {
+        crate::case::parse_case(
+            "demo.toml",
+            include_str!("../examples/kettle-hollow-house.toml"),
+        )
+        .unwrap()
+    }
+
+    /// The demo section: every construction edge on a grid line, and what fills a few points
+    /// (wall 0.2 m, floor 0.2 m above ground, footing 0.40 × 0.20 m flush outside, 0.45 m deep;
+    /// 50 mm vertical insulation outside; a 1 m wing 0.30 m deep).
+    #[test]
+    fn demo_layout_and_cells() {
+        let case = demo();
+        let sec = Section::from_case(&case);
+        let grid = sec.grid(&case);
+        for r in &sec.rects {
+            for x in [r.x0, r.x1] {
+                assert!(
+                    grid.xe.iter().any(|e| (e - x).abs() < 1e-9),
+                    "x edge {x} of {:?}",
+                    r.part
+                );
+            }
+            for z in [r.z0, r.z1] {
+                assert!(
+                    grid.ze.iter().any(|e| (e - z).abs() < 1e-9),
+                    "z edge {z} of {:?}",
+                    r.part
+                );
+            }
+        }
+        let mut mesh = Mesh::uniform(grid, case.strata[0].material.clone());
+        let m = Materials::add(&mut mesh, &case);
+        let at = |x, z| sec.cell_at(&case, &m, x, z);
+        assert_eq!(at(-1.0, -0.5), Cell::Zone(INDOOR));
+        assert_eq!(at(1.0, -0.1), Cell::Zone(OUTDOOR));
+        assert_eq!(at(-0.1, 0.1), Cell::Solid(m.wall));
+        assert_eq!(at(-0.1, 0.4), Cell::Solid(m.footing));
+        assert_eq!(at(0.02, 0.2), Cell::Solid(m.insulation[1]));
+        assert_eq!(at(0.5, 0.32), Cell::Solid(m.insulation[2]));
+        assert_eq!(at(-1.0, -0.15), Cell::Solid(m.slab));
+        assert_eq!(at(3.0, 2.0), Cell::Solid(m.strata[0]));
+    }
+
+    /// The mesh's top edge: indoor air over the floor, outdoor air over the ground, the wall's
+    /// cut adiabatic; no deep-ground zone without a fixed bottom temperature.
+    #[test]
+    fn demo_mesh_edges_and_zones() {
+        let case = demo();
+        let mesh = Section::from_case(&case).mesh(&case);
+        assert_eq!(mesh.zones.len(), 2);
+        let i_wall = mesh.grid.find_x(-0.1);
+        assert_eq!(mesh.top[i_wall], EdgeBc::Adiabatic);
+        assert!(mesh.bottom.iter().all(|b| *b == EdgeBc::Adiabatic));
+        assert!(mesh.solid_cells() > 1000);
     }
 }

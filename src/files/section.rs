@@ -15,7 +15,7 @@ pub const NO_VALUE: i16 = i16::MIN;
 /// One outlined construction piece.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct PartOutline {
-    /// Label (slab, wall, footing, fill, backfill, insulation[k]).
+    /// Label (slab, wall, footing, fill, backfill, `insulation[k]`).
     pub label: String,
     /// Kind (concrete, fill, insulation).
     pub kind: String,

@@ -263,3 +263,54 @@ pub fn read_probes(dir: &Path) -> Result<Probes> {
     }
     Ok(Probes { names, series })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A table written by `csv_bytes` reads back through `read_rows` with its comment lines
+    /// skipped and an empty cell (a number that was not finite) read as NaN.
+    #[test]
+    fn monthly_round_trip() {
+        let dir = std::env::temp_dir().join(format!("frostline-tables-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let rows = (1..=12).map(|m| {
+            vec![
+                m.to_string(),
+                fmt(10.0 * m as f64, 2),
+                fmt(if m == 3 { f64::NAN } else { -1.5 }, 3),
+                fmt(0.25, 4),
+                fmt(0.0, 4),
+            ]
+        });
+        let bytes = csv_bytes(
+            "case\ncaution, with a comma",
+            &[
+                "month",
+                "ground_heat_loss_kwh",
+                "mean_outdoor_temperature_c",
+                "max_frost_depth_open_ground_m",
+                "max_frost_depth_under_footing_m",
+            ],
+            rows,
+        )
+        .unwrap();
+        std::fs::write(dir.join("monthly.csv"), bytes).unwrap();
+        let back: Vec<MonthlyRow> = read_rows(&dir, "monthly.csv").unwrap();
+        assert_eq!(back.len(), 12);
+        assert_eq!((back[1].month, back[1].ground_heat_loss_kwh), (2, 20.0));
+        assert!(back[2].mean_outdoor_temperature_c.is_nan());
+        std::fs::write(
+            dir.join("monthly.csv"),
+            "month,ground_heat_loss_kwh\n1,abc\n",
+        )
+        .unwrap();
+        let e = read_rows::<MonthlyRow>(&dir, "monthly.csv").unwrap_err();
+        assert_eq!(
+            e.input_kind(),
+            Some(crate::error::InputKind::NotAResult),
+            "{e}"
+        );
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}

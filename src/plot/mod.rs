@@ -10,6 +10,7 @@ use crate::error::{Error, InputKind, Result};
 use crate::files::{PlotEntry, PlotIndex};
 use data::PlotData;
 use isolines::isolines;
+use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::{Path, PathBuf};
@@ -121,6 +122,123 @@ fn field_size(v: View) -> (u32, u32) {
     )
 }
 
+/// A chart of the section in metres.
+type Section2d<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Isotherms every `interval` K between `lo` and `hi` (the 0 °C line excepted), labelled where
+/// labels do not crowd.
+fn draw_isotherms<DB: DrawingBackend>(
+    chart: &mut Section2d<DB>,
+    (xs, zs, field): (&[f64], &[f64], &[f64]),
+    v: View,
+    (lo, hi, interval): (f64, f64, f64),
+) -> Result<()> {
+    let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
+    // Labels keep a distance of 6 % of the view from each other.
+    let mut placed: Vec<(f64, f64)> = Vec::new();
+    let far = |p: (f64, f64), placed: &[(f64, f64)]| {
+        placed.iter().all(|q| {
+            (((p.0 - q.0) / (v.x1 - v.x0)).powi(2) + ((p.1 - q.1) / (v.z1 - v.z0)).powi(2)).sqrt()
+                > 0.06
+        })
+    };
+    let mut level = (lo / interval).ceil() * interval;
+    while level <= hi {
+        if level.abs() > 1e-9 {
+            for pts in isolines(xs, zs, field, level)
+                .iter()
+                .flat_map(|l| runs_inside(l, &inside))
+            {
+                if pts.len() < 2 {
+                    continue;
+                }
+                chart
+                    .draw_series(std::iter::once(PathElement::new(
+                        pts.clone(),
+                        RGBColor(70, 70, 70).stroke_width(1),
+                    )))
+                    .map_err(out_err)?;
+                if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
+                    let (x, z) = pts[pts.len() / 2];
+                    placed.push((x, z));
+                    chart
+                        .draw_series(std::iter::once(Text::new(
+                            format!("{level:.0}"),
+                            (x, z),
+                            ("sans-serif", 12).into_font(),
+                        )))
+                        .map_err(out_err)?;
+                }
+            }
+        }
+        level += interval;
+    }
+    Ok(())
+}
+
+/// Outlines of the construction parts (insulation in magenta).
+fn draw_outlines<DB: DrawingBackend>(
+    chart: &mut Section2d<DB>,
+    d: &PlotData,
+    v: View,
+) -> Result<()> {
+    for p in &d.parts {
+        let colour = if p.kind == "insulation" {
+            RGBColor(220, 0, 140)
+        } else {
+            RGBColor(40, 40, 40)
+        };
+        let r = [
+            (p.x0.max(v.x0), p.z0.max(v.z0)),
+            (p.x1.min(v.x1), p.z1.min(v.z1)),
+        ];
+        if r[0].0 < r[1].0 && r[0].1 < r[1].1 {
+            chart
+                .draw_series(std::iter::once(Rectangle::new(r, colour.stroke_width(2))))
+                .map_err(out_err)?;
+        }
+    }
+    Ok(())
+}
+
+/// The colour bar over [tmin, tmax] °C with the frost-line temperature marked.
+fn draw_colour_bar<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    (tmin, tmax): (f64, f64),
+    frost_line_c: f64,
+) -> Result<()> {
+    let mut bar = ChartBuilder::on(area)
+        .margin_top(60)
+        .margin_bottom(60)
+        .margin_right(10)
+        .y_label_area_size(50)
+        .caption("°C", ("sans-serif", 15))
+        .build_cartesian_2d(0.0..1.0, tmin..tmax)
+        .map_err(out_err)?;
+    bar.configure_mesh()
+        .disable_mesh()
+        .disable_x_axis()
+        .label_style(("sans-serif", 12))
+        .draw()
+        .map_err(out_err)?;
+    let n = 200;
+    bar.draw_series((0..n).map(|k| {
+        let a = tmin + (tmax - tmin) * k as f64 / n as f64;
+        let b = tmin + (tmax - tmin) * (k + 1) as f64 / n as f64;
+        Rectangle::new(
+            [(0.0, a), (1.0, b)],
+            temperature_colour(0.5 * (a + b)).filled(),
+        )
+    }))
+    .map_err(out_err)?;
+    bar.draw_series(std::iter::once(PathElement::new(
+        vec![(0.0, frost_line_c), (1.0, frost_line_c)],
+        BLACK.stroke_width(3),
+    )))
+    .map_err(out_err)?;
+    Ok(())
+}
+
 /// Draw the field of `day` (index into the saved days) in view `v`.
 fn draw_field<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
@@ -173,62 +291,8 @@ fn draw_field<DB: DrawingBackend>(
         .filter(|t| t.is_finite())
         .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
     let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
-    // Labels keep a distance of 6 % of the view from each other.
-    let mut placed: Vec<(f64, f64)> = Vec::new();
-    let far = |p: (f64, f64), placed: &[(f64, f64)]| {
-        placed.iter().all(|q| {
-            (((p.0 - q.0) / (v.x1 - v.x0)).powi(2) + ((p.1 - q.1) / (v.z1 - v.z0)).powi(2)).sqrt()
-                > 0.06
-        })
-    };
-    let mut level = (lo / interval).ceil() * interval;
-    while level <= hi {
-        if level.abs() > 1e-9 {
-            for pts in isolines(&xs, &zs, field, level)
-                .iter()
-                .flat_map(|l| runs_inside(l, &inside))
-            {
-                if pts.len() < 2 {
-                    continue;
-                }
-                chart
-                    .draw_series(std::iter::once(PathElement::new(
-                        pts.clone(),
-                        RGBColor(70, 70, 70).stroke_width(1),
-                    )))
-                    .map_err(out_err)?;
-                if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
-                    let (x, z) = pts[pts.len() / 2];
-                    placed.push((x, z));
-                    chart
-                        .draw_series(std::iter::once(Text::new(
-                            format!("{level:.0}"),
-                            (x, z),
-                            ("sans-serif", 12).into_font(),
-                        )))
-                        .map_err(out_err)?;
-                }
-            }
-        }
-        level += interval;
-    }
-    // Outlines of the construction.
-    for p in &d.parts {
-        let colour = if p.kind == "insulation" {
-            RGBColor(220, 0, 140)
-        } else {
-            RGBColor(40, 40, 40)
-        };
-        let r = [
-            (p.x0.max(v.x0), p.z0.max(v.z0)),
-            (p.x1.min(v.x1), p.z1.min(v.z1)),
-        ];
-        if r[0].0 < r[1].0 && r[0].1 < r[1].1 {
-            chart
-                .draw_series(std::iter::once(Rectangle::new(r, colour.stroke_width(2))))
-                .map_err(out_err)?;
-        }
-    }
+    draw_isotherms(&mut chart, (&xs, &zs, field), v, (lo, hi, interval))?;
+    draw_outlines(&mut chart, d, v)?;
     // Ground line outside, and the frost line.
     chart
         .draw_series(std::iter::once(PathElement::new(
@@ -247,37 +311,8 @@ fn draw_field<DB: DrawingBackend>(
                 .map_err(out_err)?;
         }
     }
-    // Colour bar.
     let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
-    let mut bar = ChartBuilder::on(&right)
-        .margin_top(60)
-        .margin_bottom(60)
-        .margin_right(10)
-        .y_label_area_size(50)
-        .caption("°C", ("sans-serif", 15))
-        .build_cartesian_2d(0.0..1.0, tmin..tmax)
-        .map_err(out_err)?;
-    bar.configure_mesh()
-        .disable_mesh()
-        .disable_x_axis()
-        .label_style(("sans-serif", 12))
-        .draw()
-        .map_err(out_err)?;
-    let n = 200;
-    bar.draw_series((0..n).map(|k| {
-        let a = tmin + (tmax - tmin) * k as f64 / n as f64;
-        let b = tmin + (tmax - tmin) * (k + 1) as f64 / n as f64;
-        Rectangle::new(
-            [(0.0, a), (1.0, b)],
-            temperature_colour(0.5 * (a + b)).filled(),
-        )
-    }))
-    .map_err(out_err)?;
-    bar.draw_series(std::iter::once(PathElement::new(
-        vec![(0.0, d.frost_line_c), (1.0, d.frost_line_c)],
-        BLACK.stroke_width(3),
-    )))
-    .map_err(out_err)?;
+    draw_colour_bar(&right, (tmin, tmax), d.frost_line_c)?;
     root.present().map_err(out_err)?;
     Ok(frost)
 }
@@ -300,6 +335,78 @@ macro_rules! render_both {
         $files.push(svg);
         out
     }};
+}
+
+/// The default zoom: from 1.2 m inside the footing to 1.2 m beyond the outermost construction
+/// part, from the top down to 0.6 m below the deepest of the footing base and the day's frost.
+fn default_zoom(d: &PlotData, day: usize, full: View) -> View {
+    let deepest = d.days[day]
+        .frost_footing_m
+        .max(d.days[day].frost_open_m)
+        .max(d.footing_base_depth_m);
+    let outer = d
+        .parts
+        .iter()
+        .map(|p| p.x1)
+        .filter(|&x| x < full.x1)
+        .fold(0.0, f64::max);
+    View {
+        x0: (d.footing_x.0 - 1.2).max(full.x0),
+        x1: (outer + 1.2).min(full.x1),
+        z0: full.z0,
+        z1: (deepest + 0.6).min(full.z1),
+    }
+}
+
+/// Every image among `files` with its size in pixels (by file stem).
+fn plot_index(files: &[PathBuf], sizes: &[(&str, (u32, u32))]) -> Vec<PlotEntry> {
+    files
+        .iter()
+        .filter_map(|f| {
+            let name = f
+                .file_name()
+                .map(|s| s.to_string_lossy().to_string())
+                .unwrap_or_default();
+            let size = sizes
+                .iter()
+                .find(|(stem, _)| name.starts_with(&format!("{stem}.")))?
+                .1;
+            Some(PlotEntry {
+                file: name,
+                width_px: size.0,
+                height_px: size.1,
+            })
+        })
+        .collect()
+}
+
+/// `soil_temperature.gif`: the field every 7 days in `view`, on one colour scale (the period's
+/// extremes).
+fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)> {
+    let path = dir.join("soil_temperature.gif");
+    let size = field_size(view);
+    let root = BitMapBackend::gif(&path, size, 150)
+        .map_err(out_err)?
+        .into_drawing_area();
+    let (lo, hi) = d
+        .fields
+        .iter()
+        .filter(|t| t.is_finite())
+        .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
+    let range = Some((lo.floor().min(-1.0), hi.ceil().max(1.0)));
+    for k in (0..d.days.len()).step_by(7) {
+        let t = format!(
+            "{} — day {}; bold: frost line ({:.2} °C)",
+            d.case_name, d.days[k].day_of_year, d.frost_line_c
+        );
+        draw_field(&root, d, k, view, 1.0, &t, range)?;
+    }
+    let entry = PlotEntry {
+        file: "soil_temperature.gif".into(),
+        width_px: size.0,
+        height_px: size.1,
+    };
+    Ok((path, entry))
 }
 
 /// Render every plot of the run saved in `dir`; returns the files written.
@@ -345,25 +452,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     );
     let zoom = match opts.zoom {
         Some([x0, x1, z0, z1]) => View { x0, x1, z0, z1 },
-        None => {
-            let deepest = d.days[day]
-                .frost_footing_m
-                .max(d.days[day].frost_open_m)
-                .max(d.footing_base_depth_m);
-            View {
-                x0: (d.footing_x.0 - 1.2).max(full.x0),
-                x1: (d
-                    .parts
-                    .iter()
-                    .map(|p| p.x1)
-                    .filter(|&x| x < full.x1)
-                    .fold(0.0, f64::max)
-                    + 1.2)
-                    .min(full.x1),
-                z0: full.z0,
-                z1: (deepest + 0.6).min(full.z1),
-            }
-        }
+        None => default_zoom(&d, day, full),
     };
     if !(zoom.x1 > zoom.x0 && zoom.z1 > zoom.z0) {
         return Err(Error::in_file(
@@ -400,51 +489,11 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         charts::winters(dir, &d, &w, &mut files)?;
         sizes.push(("winters", charts::SIZE));
     }
-    // The plot index: every image and its size in pixels.
-    let mut index = Vec::new();
-    for f in &files {
-        let name = f
-            .file_name()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_default();
-        if let Some(size) = sizes
-            .iter()
-            .find(|(stem, _)| name.starts_with(&format!("{stem}.")))
-            .map(|x| x.1)
-        {
-            index.push(PlotEntry {
-                file: name,
-                width_px: size.0,
-                height_px: size.1,
-            });
-        }
-    }
+    let mut index = plot_index(&files, &sizes);
     if opts.animate {
-        let path = dir.join("soil_temperature.gif");
-        let size = field_size(zoom);
-        let root = BitMapBackend::gif(&path, size, 150)
-            .map_err(out_err)?
-            .into_drawing_area();
-        // One colour scale for every frame: the year's extremes.
-        let (lo, hi) = d
-            .fields
-            .iter()
-            .filter(|t| t.is_finite())
-            .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
-        let range = Some((lo.floor().min(-1.0), hi.ceil().max(1.0)));
-        for k in (0..d.days.len()).step_by(7) {
-            let t = format!(
-                "{} — day {}; bold: frost line ({fl:.2} °C)",
-                d.case_name, d.days[k].day_of_year
-            );
-            draw_field(&root, &d, k, zoom, 1.0, &t, range)?;
-        }
+        let (path, entry) = animate(dir, &d, zoom)?;
         files.push(path);
-        index.push(PlotEntry {
-            file: "soil_temperature.gif".into(),
-            width_px: size.0,
-            height_px: size.1,
-        });
+        index.push(entry);
     }
     files.push(crate::files::write_json(
         dir,

@@ -125,128 +125,141 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
 
 /// The results table: model beside the published methods.
 fn results(s: &Summary) -> String {
-    let cc = &s.cross_check;
     let mut h = String::from("<h2 id=\"results\">Results</h2>\n<table>\n<tr><th>quantity</th><th>unit</th><th>model</th><th>published method</th><th>method</th></tr>\n");
-    let none = || "–".to_string();
-    row(
-        &mut h,
-        "annual ground heat loss",
-        "kWh",
-        f(s.annual_heat_loss_kwh, 0),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "mean heat loss",
-        "W",
-        f(s.mean_heat_loss_w, 1),
-        f(cc.iso13370_mean_heat_loss_w, 1),
-        "ISO 13370 steady U × A × Δθ (excludes the wall/floor junction Ψ_g)",
-    );
-    row(
-        &mut h,
-        "peak heat loss (daily mean)",
-        "W",
-        f(s.peak_heat_loss_w, 1),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "heat loss per metre of exposed perimeter",
-        "W/m",
-        f(s.heat_loss_per_perimeter_w_per_m, 2),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "floor U-value",
-        "W/(m²·K)",
-        f(s.floor_u_value_w_per_m2k, 3),
-        f(cc.iso13370_u_value_w_per_m2k, 3),
-        "ISO 13370 slab-on-ground with edge insulation",
-    );
-    row(
-        &mut h,
-        "frost depth, open ground",
-        "m",
-        f(s.frost_depth_open_ground_m, 2),
-        format!(
-            "{} / {}",
-            f(cc.stefan_frost_depth_m, 2),
-            f(cc.modified_berggren_frost_depth_m, 2)
+    for r in heat_rows(s)
+        .into_iter()
+        .chain(frost_rows(s))
+        .chain(basement_rows(s))
+    {
+        row(&mut h, r.0, r.1, r.2, r.3, r.4);
+    }
+    h.push_str("</table>\n");
+    h
+}
+
+/// A results row: quantity, unit, model value, published-method value, method.
+type Row = (&'static str, &'static str, String, String, &'static str);
+
+fn heat_rows(s: &Summary) -> Vec<Row> {
+    let cc = &s.cross_check;
+    vec![
+        (
+            "annual ground heat loss",
+            "kWh",
+            f(s.annual_heat_loss_kwh, 0),
+            "–".into(),
+            "",
         ),
-        "Stefan / modified Berggren, n = 1",
-    );
-    row(
-        &mut h,
-        "frost depth, under the footing",
-        "m",
-        f(s.frost_depth_under_footing_m, 2),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "footing base depth",
-        "m",
-        f(s.footing_base_depth_m, 2),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "frost margin (base − frost)",
-        "m",
-        f(s.frost_margin_m, 2),
-        none(),
-        "a negative value would mean frost below the footing base",
-    );
-    row(
-        &mut h,
-        "day of deepest frost",
-        "day of year",
-        s.date_of_max_frost_depth.to_string(),
-        none(),
-        "",
-    );
-    row(
-        &mut h,
-        "surface freezing index (n-factor × air index)",
-        "°C·d",
-        none(),
-        f(cc.freezing_index_c_days, 0),
-        "design year, or the coldest winter of a series",
-    );
-    if let (Some(b), Some(bc)) = (&s.basement, &cc.basement) {
-        row(
-            &mut h,
+        (
+            "mean heat loss",
+            "W",
+            f(s.mean_heat_loss_w, 1),
+            f(cc.iso13370_mean_heat_loss_w, 1),
+            "ISO 13370 steady U × A × Δθ (excludes the wall/floor junction Ψ_g)",
+        ),
+        (
+            "peak heat loss (daily mean)",
+            "W",
+            f(s.peak_heat_loss_w, 1),
+            "–".into(),
+            "",
+        ),
+        (
+            "heat loss per metre of exposed perimeter",
+            "W/m",
+            f(s.heat_loss_per_perimeter_w_per_m, 2),
+            "–".into(),
+            "",
+        ),
+        (
+            "floor U-value",
+            "W/(m²·K)",
+            f(s.floor_u_value_w_per_m2k, 3),
+            f(cc.iso13370_u_value_w_per_m2k, 3),
+            "ISO 13370 slab-on-ground with edge insulation",
+        ),
+    ]
+}
+
+fn frost_rows(s: &Summary) -> Vec<Row> {
+    let cc = &s.cross_check;
+    vec![
+        (
+            "frost depth, open ground",
+            "m",
+            f(s.frost_depth_open_ground_m, 2),
+            format!(
+                "{} / {}",
+                f(cc.stefan_frost_depth_m, 2),
+                f(cc.modified_berggren_frost_depth_m, 2)
+            ),
+            "Stefan / modified Berggren, n = 1",
+        ),
+        (
+            "frost depth, under the footing",
+            "m",
+            f(s.frost_depth_under_footing_m, 2),
+            "–".into(),
+            "",
+        ),
+        (
+            "footing base depth",
+            "m",
+            f(s.footing_base_depth_m, 2),
+            "–".into(),
+            "",
+        ),
+        (
+            "frost margin (base − frost)",
+            "m",
+            f(s.frost_margin_m, 2),
+            "–".into(),
+            "a negative value would mean frost below the footing base",
+        ),
+        (
+            "day of deepest frost",
+            "day of year",
+            s.date_of_max_frost_depth.to_string(),
+            "–".into(),
+            "",
+        ),
+        (
+            "surface freezing index (n-factor × air index)",
+            "°C·d",
+            "–".into(),
+            f(cc.freezing_index_c_days, 0),
+            "design year, or the coldest winter of a series",
+        ),
+    ]
+}
+
+fn basement_rows(s: &Summary) -> Vec<Row> {
+    let (Some(b), Some(bc)) = (&s.basement, &s.cross_check.basement) else {
+        return Vec::new();
+    };
+    vec![
+        (
             "basement floor U-value",
             "W/(m²·K)",
             f(b.basement_floor_u_value_w_per_m2k, 3),
             f(bc.iso13370_basement_floor_u_value_w_per_m2k, 3),
             "ISO 13370 heated basement floor",
-        );
-        row(
-            &mut h,
+        ),
+        (
             "basement wall U-value (below ground)",
             "W/(m²·K)",
             f(b.wall_u_value_w_per_m2k, 3),
             f(bc.iso13370_wall_u_value_w_per_m2k, 3),
             "ISO 13370 basement wall (height-weighted for partial insulation)",
-        );
-        row(
-            &mut h,
+        ),
+        (
             "effective U-value",
             "W/(m²·K)",
             f(b.effective_u_value_w_per_m2k, 3),
             f(bc.iso13370_effective_u_value_w_per_m2k, 3),
             "ISO 13370 U′ over A + z·P",
-        );
-        row(
-            &mut h,
+        ),
+        (
             "wall / floor heat loss",
             "kWh",
             format!(
@@ -254,20 +267,17 @@ fn results(s: &Summary) -> String {
                 f(b.wall_heat_loss_kwh, 0),
                 f(b.floor_heat_loss_kwh, 0)
             ),
-            none(),
+            "–".into(),
             "",
-        );
-        row(
-            &mut h,
+        ),
+        (
             "frost depth beside the wall (0.5 m)",
             "m",
             f(b.frost_depth_beside_wall_m, 2),
-            none(),
+            "–".into(),
             "",
-        );
-    }
-    h.push_str("</table>\n");
-    h
+        ),
+    ]
 }
 
 /// The embedded figures that exist in `dir`.

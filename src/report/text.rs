@@ -313,3 +313,27 @@ pub fn soil_list() -> String {
     }
     t
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rows_align_label_unit_and_values() {
+        let r = row("floor U-value", "W/(m²K)", 3, &[0.3484, 0.19561]);
+        assert_eq!(
+            r,
+            "    floor U-value               W/(m²K)       0.348       0.196\n"
+        );
+        // Label and unit fill 35 characters whatever the unit's length.
+        assert_eq!(row("a", "m", 1, &[]).chars().count(), 4 + 35 + 1);
+    }
+
+    #[test]
+    fn soil_text_names_the_method() {
+        let s = crate::physics::library::bundled_soil("silt").unwrap();
+        let t = soil_text("silt", &s, KMethod::Johansen).unwrap();
+        assert!(t.contains("Johansen 1975") && t.contains("MJ/m³"), "{t}");
+        assert!(soil_list().contains("silty-sand"));
+    }
+}

@@ -4,7 +4,7 @@
 //! - [`forcing`]: outdoor and indoor temperatures, n-factors, snow, the days to simulate;
 //! - [`driver`]: the time loop with its records and energy balance;
 //! - [`spinup`]: start state, spin-up, periodicity estimate, the seasons of a series;
-//! - [`result`]: what a run produces; [`headline`]: the numbers a user designs with;
+//! - [`result`]: what a run produces; [`mod@headline`]: the numbers a user designs with;
 //! - [`steady`]: steady heat flows of a section (for verification and estimates).
 pub mod driver;
 pub mod forcing;

@@ -56,6 +56,14 @@ pub struct BFace {
     pub group: usize,
 }
 
+impl BFace {
+    /// Conductance G_b = A / (d/k + R_s + R_extra), W/(m·K), for the cell's conductivity `k`
+    /// and an added resistance `extra_r` (m²·K/W, e.g. snow).
+    pub fn conductance(&self, k: f64, extra_r: f64) -> f64 {
+        self.area / (self.d / k + self.r + extra_r)
+    }
+}
+
 /// Topology, geometry and matrix pattern of a mesh.
 #[derive(Debug, Clone)]
 pub struct Network {
@@ -97,9 +105,7 @@ impl Network {
         let g = &mesh.grid;
         let (nx, nz) = (g.nx(), g.nz());
         let mut unk_of = vec![usize::MAX; g.len()];
-        let mut cell_of = Vec::new();
-        let mut volume = Vec::new();
-        let mut mat = Vec::new();
+        let (mut cell_of, mut volume, mut mat) = (Vec::new(), Vec::new(), Vec::new());
         for j in 0..nz {
             for i in 0..nx {
                 let id = g.id(i, j);
@@ -111,140 +117,20 @@ impl Network {
                 }
             }
         }
+        let (mut faces, mut bfaces) = (Vec::new(), Vec::new());
+        for (p, &id) in cell_of.iter().enumerate() {
+            let (i, j) = (id % nx, id / nx);
+            // Right, left, lower, upper: solid pairs are added once, from the left or upper cell.
+            for side in [Side::Right, Side::Left, Side::Bottom, Side::Top] {
+                match neighbour(mesh, &unk_of, p, (i, j), side) {
+                    Link::Face(f) => faces.push(f),
+                    Link::Boundary(b) => bfaces.push(b),
+                    Link::None => {}
+                }
+            }
+        }
         let n = cell_of.len();
-        let mut faces = Vec::new();
-        let mut bfaces = Vec::new();
-        let zone_face = |zone: usize, p: usize, d: f64, area: f64, side: Side| {
-            let z = &mesh.zones[zone];
-            let r = match side {
-                Side::Top | Side::Bottom => z.r_horizontal,
-                Side::Left | Side::Right => z.r_vertical,
-            };
-            BFace {
-                p,
-                d,
-                area,
-                r,
-                zone,
-                side,
-                group: 0,
-            }
-        };
-        for j in 0..nz {
-            for i in 0..nx {
-                let id = g.id(i, j);
-                let p = unk_of[id];
-                if p == usize::MAX {
-                    continue;
-                }
-                let (hx, hz) = (0.5 * g.dx(i), 0.5 * g.dz(j));
-                // Right neighbour.
-                if i + 1 < nx {
-                    let nid = g.id(i + 1, j);
-                    match mesh.cells[nid] {
-                        Cell::Solid(_) => faces.push(Face {
-                            p,
-                            q: unk_of[nid],
-                            dp: hx,
-                            dq: 0.5 * g.dx(i + 1),
-                            area: g.dz(j),
-                        }),
-                        Cell::Zone(z) => bfaces.push(zone_face(z, p, hx, g.dz(j), Side::Right)),
-                    }
-                } else if let EdgeBc::Zone { zone, r } = mesh.right[j] {
-                    bfaces.push(BFace {
-                        p,
-                        d: hx,
-                        area: g.dz(j),
-                        r,
-                        zone,
-                        side: Side::Right,
-                        group: 0,
-                    });
-                }
-                // Left neighbour (zone or edge only; solid pairs were added from the left cell).
-                if i > 0 {
-                    if let Cell::Zone(z) = mesh.cells[g.id(i - 1, j)] {
-                        bfaces.push(zone_face(z, p, hx, g.dz(j), Side::Left));
-                    }
-                } else if let EdgeBc::Zone { zone, r } = mesh.left[j] {
-                    bfaces.push(BFace {
-                        p,
-                        d: hx,
-                        area: g.dz(j),
-                        r,
-                        zone,
-                        side: Side::Left,
-                        group: 0,
-                    });
-                }
-                // Lower neighbour.
-                if j + 1 < nz {
-                    let nid = g.id(i, j + 1);
-                    match mesh.cells[nid] {
-                        Cell::Solid(_) => faces.push(Face {
-                            p,
-                            q: unk_of[nid],
-                            dp: hz,
-                            dq: 0.5 * g.dz(j + 1),
-                            area: g.dx(i),
-                        }),
-                        Cell::Zone(z) => bfaces.push(zone_face(z, p, hz, g.dx(i), Side::Bottom)),
-                    }
-                } else if let EdgeBc::Zone { zone, r } = mesh.bottom[i] {
-                    bfaces.push(BFace {
-                        p,
-                        d: hz,
-                        area: g.dx(i),
-                        r,
-                        zone,
-                        side: Side::Bottom,
-                        group: 0,
-                    });
-                }
-                // Upper neighbour.
-                if j > 0 {
-                    if let Cell::Zone(z) = mesh.cells[g.id(i, j - 1)] {
-                        bfaces.push(zone_face(z, p, hz, g.dx(i), Side::Top));
-                    }
-                } else if let EdgeBc::Zone { zone, r } = mesh.top[i] {
-                    bfaces.push(BFace {
-                        p,
-                        d: hz,
-                        area: g.dx(i),
-                        r,
-                        zone,
-                        side: Side::Top,
-                        group: 0,
-                    });
-                }
-            }
-        }
-        // Lower-triangle CSC pattern: column c holds c and every neighbour r > c.
-        let mut nbrs: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
-        for (f, face) in faces.iter().enumerate() {
-            let (lo, hi) = if face.p < face.q {
-                (face.p, face.q)
-            } else {
-                (face.q, face.p)
-            };
-            nbrs[lo].push((hi, f));
-        }
-        let mut col_ptr = Vec::with_capacity(n + 1);
-        let mut row_idx = Vec::new();
-        let mut diag_slot = vec![0; n];
-        let mut face_slot = vec![0; faces.len()];
-        col_ptr.push(0);
-        for (c, list) in nbrs.iter_mut().enumerate() {
-            list.sort_unstable();
-            diag_slot[c] = row_idx.len();
-            row_idx.push(c);
-            for &(r, f) in list.iter() {
-                face_slot[f] = row_idx.len();
-                row_idx.push(r);
-            }
-            col_ptr.push(row_idx.len());
-        }
+        let (col_ptr, row_idx, diag_slot, face_slot) = lower_pattern(n, &faces);
         Network {
             n,
             n_zones: mesh.zones.len(),
@@ -279,7 +165,7 @@ impl Network {
     /// Boundary-face conductances G_b (W/(m·K)) for cell conductivities `k`.
     pub fn boundary_conductances(&self, k: &[f64], out: &mut [f64]) {
         for (g, b) in out.iter_mut().zip(&self.bfaces) {
-            *g = b.area / (b.d / k[b.p] + b.r);
+            *g = b.conductance(k[b.p], 0.0);
         }
     }
 
@@ -302,5 +188,148 @@ impl Network {
         (0..self.n)
             .map(|p| self.materials[self.mat[p]].enthalpy(t[p]))
             .collect()
+    }
+}
+
+/// What lies across one side of an unknown's cell.
+enum Link {
+    /// Another unknown (added from the cell on its left or above).
+    Face(Face),
+    /// A zone, through a surface resistance.
+    Boundary(BFace),
+    /// Nothing: an adiabatic edge, or a solid pair added from the other cell.
+    None,
+}
+
+/// The link of unknown `p` in cell (i, j) across `side`.
+fn neighbour(mesh: &Mesh, unk_of: &[usize], p: usize, (i, j): (usize, usize), side: Side) -> Link {
+    let g = &mesh.grid;
+    let (nx, nz) = (g.nx(), g.nz());
+    let horizontal = matches!(side, Side::Left | Side::Right);
+    // Half-width normal to the face and the face's length.
+    let (d, area) = if horizontal {
+        (0.5 * g.dx(i), g.dz(j))
+    } else {
+        (0.5 * g.dz(j), g.dx(i))
+    };
+    let across = match side {
+        Side::Right => (i + 1 < nx).then(|| (i + 1, j)),
+        Side::Left => i.checked_sub(1).map(|a| (a, j)),
+        Side::Bottom => (j + 1 < nz).then(|| (i, j + 1)),
+        Side::Top => j.checked_sub(1).map(|b| (i, b)),
+    };
+    let bface = |zone: usize, r: f64| {
+        Link::Boundary(BFace {
+            p,
+            d,
+            area,
+            r,
+            zone,
+            side,
+            group: 0,
+        })
+    };
+    match across {
+        Some((a, b)) => match mesh.cells[g.id(a, b)] {
+            Cell::Solid(_) if matches!(side, Side::Right | Side::Bottom) => Link::Face(Face {
+                p,
+                q: unk_of[g.id(a, b)],
+                dp: d,
+                dq: if horizontal {
+                    0.5 * g.dx(a)
+                } else {
+                    0.5 * g.dz(b)
+                },
+                area,
+            }),
+            Cell::Solid(_) => Link::None,
+            Cell::Zone(z) => {
+                let zone = &mesh.zones[z];
+                bface(
+                    z,
+                    if horizontal {
+                        zone.r_vertical
+                    } else {
+                        zone.r_horizontal
+                    },
+                )
+            }
+        },
+        None => {
+            let edge = match side {
+                Side::Right => mesh.right[j],
+                Side::Left => mesh.left[j],
+                Side::Bottom => mesh.bottom[i],
+                Side::Top => mesh.top[i],
+            };
+            match edge {
+                EdgeBc::Zone { zone, r } => bface(zone, r),
+                EdgeBc::Adiabatic => Link::None,
+            }
+        }
+    }
+}
+
+/// The lower-triangle CSC pattern of the system matrix for `n` unknowns joined by `faces`:
+/// column c holds c and every neighbour r > c, rows sorted. Returns (column pointers, row
+/// indices, value slot of each diagonal, value slot of each face's off-diagonal).
+pub fn lower_pattern(n: usize, faces: &[Face]) -> (Vec<usize>, Vec<usize>, Vec<usize>, Vec<usize>) {
+    let mut nbrs: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
+    for (f, face) in faces.iter().enumerate() {
+        nbrs[face.p.min(face.q)].push((face.p.max(face.q), f));
+    }
+    let mut col_ptr = Vec::with_capacity(n + 1);
+    let mut row_idx = Vec::new();
+    let mut diag_slot = vec![0; n];
+    let mut face_slot = vec![0; faces.len()];
+    col_ptr.push(0);
+    for (c, list) in nbrs.iter_mut().enumerate() {
+        list.sort_unstable();
+        diag_slot[c] = row_idx.len();
+        row_idx.push(c);
+        for &(r, f) in list.iter() {
+            face_slot[f] = row_idx.len();
+            row_idx.push(r);
+        }
+        col_ptr.push(row_idx.len());
+    }
+    (col_ptr, row_idx, diag_slot, face_slot)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::mesh::{Grid, Zone};
+
+    /// A 2 × 2 grid with the top-left cell air of zone 0: three unknowns, two interior faces,
+    /// two boundary faces to the air (its right and lower neighbours' sides), and the lower CSC
+    /// pattern with one diagonal and its neighbours per column.
+    #[test]
+    fn faces_and_pattern_of_a_small_grid() {
+        let grid = Grid {
+            xe: vec![0.0, 1.0, 2.0],
+            ze: vec![0.0, 1.0, 2.0],
+        };
+        let mut mesh = Mesh::uniform(grid, Material::inert("m", 1.0, 1e6));
+        let z = mesh.add_zone(Zone {
+            name: "air".into(),
+            r_horizontal: 0.1,
+            r_vertical: 0.2,
+        });
+        mesh.cells[0] = Cell::Zone(z);
+        let net = Network::new(&mesh);
+        assert_eq!(net.n, 3);
+        assert_eq!(net.unk_of, vec![usize::MAX, 0, 1, 2]);
+        assert_eq!(net.faces.len(), 2);
+        assert_eq!(net.bfaces.len(), 2);
+        // The cell right of the air sees it on its left (a wall: r_vertical), the cell below on
+        // its top (a floor: r_horizontal).
+        let left = net.bfaces.iter().find(|b| b.side == Side::Left).unwrap();
+        let top = net.bfaces.iter().find(|b| b.side == Side::Top).unwrap();
+        assert_eq!((left.p, left.r, top.p, top.r), (0, 0.2, 1, 0.1));
+        assert_eq!(net.col_ptr, vec![0, 2, 4, 5]);
+        assert_eq!(net.row_idx, vec![0, 2, 1, 2, 2]);
+        assert_eq!(net.diag_slot, vec![0, 2, 4]);
+        assert!((left.conductance(1.0, 0.3) - 1.0 / (0.5 + 0.2 + 0.3)).abs() < 1e-15);
     }
 }
