@@ -227,7 +227,12 @@ impl From<MethodArg> for KMethod {
     }
 }
 
-/// Exit code: 0 ok, 2 bad input or usage, 1 runtime or I/O failure.
+/// Exit code when results were written but a stated criterion was not met.
+pub const EXIT_CRITERION: i32 = 3;
+
+/// Exit code: 0 ok; 2 bad input or usage; 1 runtime or I/O failure; 3 results written but a
+/// stated criterion not met (not periodic, frost in the protected zone, no design within the
+/// bounds).
 pub fn main_exit_code() -> i32 {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -237,7 +242,13 @@ pub fn main_exit_code() -> i32 {
         }
     };
     match execute(cli) {
-        Ok(()) => 0,
+        Ok(unmet) if unmet.is_empty() => 0,
+        Ok(unmet) => {
+            for u in unmet {
+                eprintln!("criterion not met: {u}");
+            }
+            EXIT_CRITERION
+        }
         Err(e) => {
             eprintln!("error: {e}");
             if e.is_input() {
@@ -249,21 +260,40 @@ pub fn main_exit_code() -> i32 {
     }
 }
 
-fn execute(cli: Cli) -> Result<(), Error> {
+/// Run a command; returns the stated criteria the results do not meet (empty: all met).
+fn execute(cli: Cli) -> Result<Vec<String>, Error> {
     match cli.command {
         Command::Check { case } => {
             print!("{}", text::check_text(&load_case(&case)?)?);
-            Ok(())
+            Ok(Vec::new())
         }
         Command::Size(a) => size(a),
         Command::Soil(a) => {
             print!("{}", soil(&a)?);
-            Ok(())
+            Ok(Vec::new())
         }
-        Command::Climate(a) => climate(a),
-        Command::Plot(a) => plot(a),
+        Command::Climate(a) => climate(a).map(|_| Vec::new()),
+        Command::Plot(a) => plot(a).map(|_| Vec::new()),
         Command::Run(a) => run_case(a),
     }
+}
+
+/// The stated criteria a run's summary does not meet.
+fn unmet(s: &files::Summary) -> Vec<String> {
+    let mut u = Vec::new();
+    if !s.spin_up_converged {
+        u.push(format!(
+            "the spin-up did not reach a periodic year ({}); raise simulation.max_spin_up_years",
+            s.spin_up_criterion
+        ));
+    }
+    if s.frost_in_protected_zone {
+        u.push(format!(
+            "frost enters the protected zone below the footing (margin {:.2} m)",
+            s.frost_margin_m
+        ));
+    }
+    u
 }
 
 /// A range check of a command-line value.
@@ -303,7 +333,7 @@ fn bar(quiet: bool, len: Option<u64>) -> indicatif::ProgressBar {
     }
 }
 
-fn run_case(a: RunArgs) -> Result<(), Error> {
+fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
     let mut case = load_case(&a.case)?;
     if let Some(m) = a.mesh {
         case.simulation.mesh = m.into();
@@ -330,12 +360,10 @@ fn run_case(a: RunArgs) -> Result<(), Error> {
     if !a.no_plots {
         written.extend(render(&a.out, a.animate)?);
     }
-    print!(
-        "{}",
-        text::result_table(&files::Summary::new(&case, &result, &cc))
-    );
+    let summary = files::Summary::new(&case, &result, &cc);
+    print!("{}", text::result_table(&summary));
     print_files(&a.out, &written);
-    Ok(())
+    Ok(unmet(&summary))
 }
 
 /// Plots and report.html of the run in `dir`.
@@ -349,7 +377,7 @@ fn render(dir: &Path, animate: bool) -> Result<Vec<PathBuf>, Error> {
     Ok(written)
 }
 
-fn size(a: SizeArgs) -> Result<(), Error> {
+fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
     let mut case: Case = load_case(&a.case)?;
     if let Some(m) = a.mesh {
         case.simulation.mesh = m.into();
@@ -392,7 +420,19 @@ fn size(a: SizeArgs) -> Result<(), Error> {
         report::sizing::text(&files::SizingFile::new(&case, &result))
     );
     print_files(&a.out, &written);
-    Ok(())
+    let mut u = Vec::new();
+    if result.no_insulation_needed.is_none() && result.chosen.is_none() {
+        u.push("no design within the bounds meets the frost margin".to_string());
+    }
+    if let Some((c, r)) = &result.chosen_run {
+        let s = files::Summary::new(c, r, &estimate::cross_check(c));
+        u.extend(
+            unmet(&s)
+                .into_iter()
+                .filter(|m| m.starts_with("the spin-up")),
+        );
+    }
+    Ok(u)
 }
 
 fn soil(a: &SoilArgs) -> Result<String, Error> {

@@ -32,7 +32,7 @@ pub const MONOTONE_TOL_M: f64 = 0.01;
 pub struct Design {
     /// Values of the varied dimensions, m.
     pub values: Vec<f64>,
-    /// Frost margin (footing base − frost under the footing), m; NaN if the run failed.
+    /// Frost margin to the protected zone, m; NaN if the design could not be built.
     pub frost_margin_m: f64,
     /// Deepest frost under the footing, m.
     pub frost_depth_under_footing_m: f64,
@@ -440,7 +440,7 @@ fn search_designs(search: &Search, out: &mut SizingResult) -> Result<()> {
 
 fn margin_meaning(m: f64) -> String {
     format!(
-        "frost_margin_m = footing base depth − deepest frost under the footing (the half-frozen line); a design passes when it is at least {m:.2} m, i.e. frost stays at least that far above the footing base"
+        "frost_margin_m = the least distance between the frozen ground (the half-frozen line) and the protected zone below the footing (the soil below the base, widening outward and down from each base corner at footing.protected_zone_angle_deg); a design passes when it is at least {m:.2} m, i.e. frost stays at least that far from the zone"
     )
 }
 

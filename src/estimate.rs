@@ -129,11 +129,12 @@ fn floor_resistance_and_edges(case: &Case) -> (f64, Vec<(methods::EdgeInsulation
 
 /// Open-ground frost by the published formulas for the top stratum: (surface freezing index
 /// °C·d, freezing season d, Stefan depth m, modified-Berggren depth m). The surface index is the
-/// n-factor times the air index of the design sinusoid, or of the coldest winter of a series.
+/// n-factor times the air index of the design winter (or of the sinusoid without one), or of the
+/// coldest winter of a series.
 fn frost_depths(case: &Case) -> (f64, f64, f64, f64) {
     let soil = &case.strata[0].material;
     let (fi_air, season) =
-        methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k);
+        methods::sinusoid_freezing_index(case.climate.mean_c, design_amplitude(case));
     let fi_air = match &case.climate.source {
         ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s)
             .iter()
@@ -216,4 +217,14 @@ fn basement_check(case: &Case, z: f64, r_f: f64) -> BasementCheck {
         iso13370_effective_u_value_w_per_m2k: (a * f + z * p * w) / (a + z * p),
         wall_resistance_m2k_per_w: 1.0 / w,
     }
+}
+
+/// The amplitude of the design winter's colder half, or the sinusoid's without a design winter
+/// (all freezing falls in the colder half, so the freezing index and season are those of the
+/// sinusoid with that amplitude), K.
+fn design_amplitude(case: &Case) -> f64 {
+    case.climate
+        .design_winter
+        .as_ref()
+        .map_or(case.climate.amplitude_k, |d| d.amplitude_k)
 }

@@ -204,6 +204,20 @@ pub fn sinusoid_freezing_index(mean_c: f64, amplitude_k: f64) -> (f64, f64) {
     )
 }
 
+/// Mean annual temperature below the seasonally frozen layer by the thermal offset of freezing
+/// ground (the TTOP model), °C: T = (k_t I_t − k_f I_f)/(k_t P) with the surface thawing and
+/// freezing indices I_t, I_f (°C·d, n-factors applied), the thawed and frozen conductivities k_t,
+/// k_f (W/(m·K)) and P = 365 d. Frozen ground conducts better, so the ground below the frost
+/// is colder on average than the surface; at T ≤ 0 °C the ground stays frozen (permafrost).
+pub fn thermal_offset_mean(
+    k_thawed: f64,
+    k_frozen: f64,
+    thawing_index: f64,
+    freezing_index: f64,
+) -> f64 {
+    (k_thawed * thawing_index - k_frozen * freezing_index) / (k_thawed * 365.0)
+}
+
 #[cfg(test)]
 mod tests {
     //! Check values are the [DERIVED] figures of the project's methods notes, each computed there

@@ -44,6 +44,22 @@ pub fn run_ok<S: AsRef<std::ffi::OsStr>>(args: &[S]) -> String {
     String::from_utf8_lossy(&out.stdout).into_owned()
 }
 
+/// Run the frostline binary with `args`; assert that it wrote its results (exit code 0, or 3 when
+/// a stated criterion is not met) and return its stdout and exit code.
+pub fn run_written<S: AsRef<std::ffi::OsStr>>(args: &[S]) -> (String, i32) {
+    let out = crate::cli::bin().args(args).output().unwrap();
+    let code = out.status.code().unwrap_or(-1);
+    assert!(
+        code == 0 || code == 3,
+        "frostline {:?} exit {code}: {}",
+        args.iter()
+            .map(|a| a.as_ref().to_owned())
+            .collect::<Vec<_>>(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    (String::from_utf8_lossy(&out.stdout).into_owned(), code)
+}
+
 /// Parse the JSON file at `path`.
 pub fn read_json(path: &std::path::Path) -> serde_json::Value {
     serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap()

@@ -1,7 +1,7 @@
 //! Frost-protection sizing: the example, the chosen design re-run, a step smaller, a mild climate,
 //! monotonicity, and an unheated building.
 use crate::cli::scratch;
-use crate::common::{read_json, run_ok};
+use crate::common::{read_json, run_ok, run_written};
 use frostline::case::load_case;
 use frostline::design::apply;
 use frostline::run::run;
@@ -21,7 +21,7 @@ fn size(case: &Path, out: &Path, extra: &[&str]) -> Value {
         "--quiet".into(),
     ];
     args.extend(extra.iter().map(std::ffi::OsString::from));
-    let text = run_ok(&args);
+    let (text, _) = run_written(&args);
     assert!(text.contains("licensed engineer"), "{text}");
     let s: Value =
         serde_json::from_slice(&std::fs::read(out.join("sizing.json")).unwrap()).unwrap();

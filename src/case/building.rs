@@ -206,6 +206,13 @@ fn footing(c: &Ctx, f: &RawFooting, slab: &Slab, wall: &Wall) -> Result<Footing>
         thickness_m: c.range(&f.thickness_m, "footing.thickness_m", 0.0, 3.0, "m")?,
         base_depth_m: c.range(&f.base_depth_m, "footing.base_depth_m", 0.0, 6.0, "m")?,
         material: c.material(&f.material, "footing.material", "concrete")?,
+        protected_zone_angle_deg: c.opt(
+            &f.protected_zone_angle_deg,
+            "footing.protected_zone_angle_deg",
+            (0.0, 80.0),
+            "degrees from the vertical",
+            45.0,
+        )?,
     };
     if footing.width_m < wall.thickness_m {
         return Err(c.err(

@@ -1,7 +1,7 @@
 //! Validation of `[climate]`: a sinusoid, a measured series, or a design year built from a
 //! series' Gumbel design freezing index; n-factors, snow cover and the outdoor surface resistance.
 use super::ctx::Ctx;
-use super::model::{Climate, ClimateSource, DesignYear};
+use super::model::{Climate, ClimateSource, DesignWinter, DesignYear, Stratum};
 use super::raw::{RawClimate, S};
 use crate::error::{Error, InputKind, Result};
 use crate::physics::climate::{self as pc, DailySeries, FitMethod};
@@ -12,7 +12,7 @@ struct Source {
     amplitude_k: f64,
     coldest_day: f64,
     source: ClimateSource,
-    design: Option<DesignYear>,
+    design_winter: Option<DesignWinter>,
 }
 
 /// `[climate]`.
@@ -37,7 +37,7 @@ pub fn climate(c: &Ctx, cl: &RawClimate) -> Result<Climate> {
         amplitude_k: s.amplitude_k,
         coldest_day: s.coldest_day,
         source: s.source,
-        design: s.design,
+        design_winter: s.design_winter,
         r_se: c.opt(
             &cl.surface_resistance_m2k_per_w,
             "climate.surface_resistance_m2k_per_w",
@@ -116,16 +116,24 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
             amplitude_k: a,
             coldest_day,
             source: ClimateSource::Series(series),
-            design: None,
+            design_winter: None,
         });
     }
-    let (amplitude_k, design) = design_year(c, cl, v, key, &series, m)?;
+    let design = design_year(c, cl, v, key, &series)?;
+    let design_winter = design_winter(
+        c,
+        v,
+        key,
+        (m, a),
+        design.design_freezing_index_c_days,
+        Some(design),
+    )?;
     Ok(Source {
         mean_c: m,
-        amplitude_k,
+        amplitude_k: a,
         coldest_day,
         source: ClimateSource::Sinusoid,
-        design: Some(design),
+        design_winter: Some(design_winter),
     })
 }
 
@@ -149,12 +157,21 @@ fn sinusoid(c: &Ctx, cl: &RawClimate) -> Result<Source> {
         c.err(m.span(), "climate.mean_c", InputKind::OutOfScope, format!(
             "{} °C is out of range; allowed: 0.1 to 30 °C (the model assumes ground that thaws every year: no permafrost)", m.get_ref()))
     })?;
+    let amplitude_k = c.range_incl(&a, "climate.amplitude_k", 0.0, 30.0, "K")?;
+    let key = "climate.design_freezing_index_c_days";
+    let design_winter = match &cl.design_freezing_index_c_days {
+        None => None,
+        Some(f) => {
+            let fi = c.range(f, key, 0.0, 10_000.0, "°C·d")?;
+            Some(design_winter(c, f, key, (mean_c, amplitude_k), fi, None)?)
+        }
+    };
     Ok(Source {
         mean_c,
-        amplitude_k: c.range_incl(&a, "climate.amplitude_k", 0.0, 30.0, "K")?,
+        amplitude_k,
         coldest_day: c.range_incl(&d, "climate.coldest_day", 1.0, 365.0, "day of year")?,
         source: ClimateSource::Sinusoid,
-        design: None,
+        design_winter,
     })
 }
 
@@ -176,16 +193,16 @@ fn read(c: &Ctx, v: &S<String>, key: &str, max_gap_days: usize) -> Result<DailyS
     })
 }
 
-/// The design year's amplitude and provenance: the sinusoid with the series' mean whose air
-/// freezing index is the return-period design index.
+/// The return-period design freezing index of a series (Gumbel fit of its winters) and its
+/// provenance.
 fn design_year(
     c: &Ctx,
     cl: &RawClimate,
     v: &S<String>,
     key: &str,
     series: &DailySeries,
-    mean_c: f64,
-) -> Result<(f64, DesignYear)> {
+) -> Result<DesignYear> {
+    let _ = key;
     let t = cl.return_period_years.as_ref().map_or(Ok(100.0), |v| {
         c.range(v, "climate.return_period_years", 1.0, 10_000.0, "years")
     })?;
@@ -202,26 +219,65 @@ fn design_year(
         }
     };
     let s = pc::summarize(series, t, method)?;
-    let amplitude_k = pc::amplitude_for_freezing_index(mean_c, s.design_freezing_index_c_days);
-    if amplitude_k > 40.0 {
+    Ok(DesignYear {
+        series: v.get_ref().clone(),
+        return_period_years: t,
+        design_freezing_index_c_days: s.design_freezing_index_c_days,
+        fit_method: method,
+    })
+}
+
+/// The design winter for the normal sinusoid (mean °C, amplitude K) and design air freezing
+/// index `fi` (°C·d): the colder half's amplitude A_w that gives `fi`; a design winter milder
+/// than the normal one is refused.
+fn design_winter<T>(
+    c: &Ctx,
+    at: &S<T>,
+    key: &str,
+    (mean_c, amplitude_k): (f64, f64),
+    fi: f64,
+    from_series: Option<DesignYear>,
+) -> Result<DesignWinter> {
+    let normal_fi = crate::methods::sinusoid_freezing_index(mean_c, amplitude_k).0;
+    if fi < normal_fi {
+        return Err(c.err(at.span(), key, InputKind::OutOfRange, format!(
+            "a design freezing index of {fi:.0} °C·d is below the normal climate's {normal_fi:.0} °C·d (mean {mean_c:.2} °C, amplitude {amplitude_k:.2} K); allowed: at least the normal winter's index")));
+    }
+    let a_w = pc::amplitude_for_freezing_index(mean_c, fi).max(amplitude_k);
+    if a_w > 40.0 {
         return Err(c.err(
-            v.span(),
+            at.span(),
             key,
             InputKind::OutOfScope,
-            format!(
-                "the design year needs an amplitude of {amplitude_k:.1} K; allowed: at most 40 K"
-            ),
+            format!("the design winter needs an amplitude of {a_w:.1} K; allowed: at most 40 K"),
         ));
     }
-    Ok((
-        amplitude_k,
-        DesignYear {
-            series: v.get_ref().clone(),
-            return_period_years: t,
-            design_freezing_index_c_days: s.design_freezing_index_c_days,
-            fit_method: method,
-        },
-    ))
+    Ok(DesignWinter {
+        freezing_index_c_days: fi,
+        amplitude_k: a_w,
+        from_series,
+    })
+}
+
+/// Permafrost is out of scope: the mean ground temperature below the frozen layer, by the thermal
+/// offset of the top stratum under the normal climate's surface indices (n-factors applied), must
+/// be above 0 °C.
+pub fn no_permafrost(c: &Ctx, cl: &Climate, strata: &[Stratum]) -> Result<()> {
+    let m = &strata[0].material;
+    let (i_f_air, _) = crate::methods::sinusoid_freezing_index(cl.mean_c, cl.amplitude_k);
+    let i_t_air = i_f_air + cl.mean_c * 365.0;
+    let t = crate::methods::thermal_offset_mean(
+        m.k_unfrozen,
+        m.k_frozen,
+        cl.n_thawing * i_t_air,
+        cl.n_freezing * i_f_air,
+    );
+    if m.freezes() && t <= 0.0 {
+        return Err(c.err_file("climate", InputKind::OutOfScope, format!(
+            "the normal climate (mean {:.2} °C, amplitude {:.2} K, n-factors {:.2}/{:.2}) over {} gives a mean ground temperature of {t:.2} °C below the frozen layer (thermal offset of freezing ground): permafrost; allowed: above 0 °C (frostline models ground that thaws every year)",
+            cl.mean_c, cl.amplitude_k, cl.n_freezing, cl.n_thawing, m.name)));
+    }
+    Ok(())
 }
 
 /// Twelve monthly snow depths, January first (none by default).

@@ -100,6 +100,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let climate = climate::climate(c, &raw.climate)?;
     let simulation = simulation::simulation(c, &raw.simulation, building.b_prime_m)?;
     let strata = soil::strata(c, &raw.soil)?;
+    climate::no_permafrost(c, &climate, &strata)?;
     let basement = building::basement(c, raw.basement.as_ref(), &cons, &simulation)?;
     let fill = insulation::fill(c, raw.fill.as_ref())?;
     let parts = insulation::Parts {

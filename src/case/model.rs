@@ -96,6 +96,9 @@ pub struct Footing {
     pub base_depth_m: f64,
     /// Material.
     pub material: Material,
+    /// Spread of the protected zone below the base from the vertical, degrees. Default 45
+    /// (common practice for the load spread under a footing).
+    pub protected_zone_angle_deg: f64,
 }
 
 /// A heated basement: the floor below ground level, optionally with backfill beside the wall.
@@ -190,8 +193,7 @@ pub enum ClimateSource {
     Series(DailySeries),
 }
 
-/// A design year built from a measured series: the sinusoid with the series' mean whose freezing
-/// index is the design freezing index.
+/// Where a design freezing index comes from when it is a statistic of a measured series.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct DesignYear {
     /// The series file.
@@ -212,8 +214,8 @@ pub struct DesignYear {
 pub struct Climate {
     /// Source of the outdoor temperature.
     pub source: ClimateSource,
-    /// Design-year provenance, when the sinusoid was built from a series.
-    pub design: Option<DesignYear>,
+    /// The design winter run once after the spin-up on the normal climate, if any.
+    pub design_winter: Option<DesignWinter>,
     /// n-factor for freezing (surface / air freezing index). Default 1.
     pub n_freezing: f64,
     /// n-factor for thawing. Default 1.
@@ -222,14 +224,30 @@ pub struct Climate {
     pub snow_depth_m: [f64; 12],
     /// Snow conductivity, W/(m·K). Default 0.2 (settled snow, common practice).
     pub snow_k: f64,
-    /// Annual mean air temperature, °C.
+    /// Annual mean air temperature of the normal climate, °C.
     pub mean_c: f64,
-    /// Amplitude, K.
+    /// Amplitude of the normal climate, K.
     pub amplitude_k: f64,
     /// Day of year of the minimum (1–365).
     pub coldest_day: f64,
     /// External surface resistance, m²·K/W. Default 0.04 (ISO 6946).
     pub r_se: f64,
+}
+
+/// A design winter: one year from the warmest day of the normal climate whose colder half (the
+/// half where the normal sinusoid lies below its mean) has the amplitude that gives the design
+/// air freezing index, θ = mean − A_w cos(2π (t − t_c)/365), the warmer halves keeping the
+/// normal amplitude. The freezing index of such a year depends only on A_w:
+/// F = (P/π)(A_w sin θ₀ − θ_m θ₀), θ₀ = arccos(θ_m/A_w) (the sinusoid's, because all freezing
+/// falls in the colder half).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct DesignWinter {
+    /// Design air freezing index, °C·d.
+    pub freezing_index_c_days: f64,
+    /// Amplitude of the design winter's colder half, K.
+    pub amplitude_k: f64,
+    /// The series and statistics it comes from, when it is a series' return-period index.
+    pub from_series: Option<DesignYear>,
 }
 
 /// Numerical settings.

@@ -127,6 +127,7 @@ pub struct RawFooting {
     pub base_depth_m: S<f64>,
     #[serde(default)]
     pub material: Option<S<RawMaterial>>,
+    pub protected_zone_angle_deg: Option<S<f64>>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -209,6 +210,7 @@ pub struct RawClimate {
     pub mean_c: Option<S<f64>>,
     pub amplitude_k: Option<S<f64>>,
     pub coldest_day: Option<S<f64>>,
+    pub design_freezing_index_c_days: Option<S<f64>>,
     pub series: Option<S<String>>,
     pub design_from_series: Option<S<String>>,
     pub return_period_years: Option<S<f64>>,

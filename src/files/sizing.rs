@@ -2,7 +2,7 @@
 //! design, the cross-checks), `sizing.csv` and `chosen_case.toml` (a complete case `frostline
 //! run` accepts and reproduces).
 use super::tables::fmt;
-use crate::case::{Case, ClimateSource, Vary};
+use crate::case::{Case, Vary};
 use crate::design::{dimension_label, Design, SizingResult};
 use serde::{Deserialize, Serialize};
 
@@ -15,8 +15,8 @@ where frost reaches deeper; corner protection must be designed separately.";
 /// The published-method cross-checks of a sizing.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SizingCheck {
-    /// The design air freezing index: the design year's or the sinusoid's, or the coldest winter
-    /// of a series, °C·d.
+    /// The design air freezing index: the design winter's (or the sinusoid's without one), or the
+    /// coldest winter of a series, °C·d.
     pub design_air_freezing_index_c_days: f64,
     /// Modified-Berggren open-ground frost depth, m.
     pub modified_berggren_open_ground_frost_depth_m: f64,
@@ -91,16 +91,9 @@ impl SizingFile {
 
 /// The cross-checks and the findings in words.
 fn checks(case: &Case) -> (SizingCheck, Vec<String>) {
-    let fi = match &case.climate.source {
-        ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s)
-            .iter()
-            .map(|w| w.value)
-            .fold(0.0, f64::max),
-        ClimateSource::Sinusoid => {
-            crate::methods::sinusoid_freezing_index(case.climate.mean_c, case.climate.amplitude_k).0
-        }
-    };
     let cc = crate::estimate::cross_check(case);
+    // The air index: the surface index the cross-checks use, without the n-factor.
+    let fi = cc.freezing_index_c_days / case.climate.n_freezing;
     let open = cc.modified_berggren_frost_depth_m;
     let mut flags = Vec::new();
     if open < case.footing.base_depth_m {

@@ -1,6 +1,6 @@
 //! `summary.json`: the headline results in SI units, the numerical record, every simulated year
 //! and the published-method cross-checks.
-use crate::case::{Case, ClimateSource, DesignYear};
+use crate::case::{Case, ClimateSource, DesignWinter};
 use crate::estimate::CrossCheck;
 use crate::run::{self, RunResult, WinterResult, Year};
 use serde::{Deserialize, Serialize};
@@ -13,6 +13,27 @@ foundations and frost protection.";
 /// The coordinate convention, stated in file headers.
 pub const COORDINATES: &str =
     "x horizontal, 0 at the exterior face of the foundation wall, positive outward; z depth below finished ground level, positive down";
+
+/// What `frost_margin_m` means.
+pub const MARGIN_DEFINITION: &str = "the least distance between the frozen ground (the half-frozen line) and the protected zone below the footing: the soil below the base, widening outward and down from each base corner at protected_zone_angle_deg from the vertical; negative when frost enters the zone";
+
+/// What the reported periods are, by climate.
+pub fn periods(case: &Case) -> &'static str {
+    match (&case.climate.source, &case.climate.design_winter) {
+        (ClimateSource::Series(_), _) => "a measured series run season by season after a spin-up on its first season; frost and heat figures from the worst season (least frost margin, then deepest open-ground frost)",
+        (_, Some(_)) => "a spin-up on the normal climate to a periodic year, then the design winter once: frost figures and the peak heat loss from the design winter's year, annual and monthly heat loss from the periodic normal year",
+        _ => "a spin-up on the sinusoidal year to a periodic year, which is reported",
+    }
+}
+
+/// The spin-up criterion in words.
+pub fn spin_up_criterion(case: &Case) -> String {
+    let heat = match case.climate.source {
+        ClimateSource::Series(_) => "the season's heat loss changed less than 0.5 % from the previous season's",
+        ClimateSource::Sinusoid => "the year's heat loss is within 0.5 % of the periodic year's by the periodicity estimate",
+    };
+    format!("{heat}, and the largest frost depths and the frost margin changed less than 1 cm from the previous year")
+}
 
 /// Grid size.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -59,8 +80,6 @@ pub struct BasementSummary {
     pub basement_floor_u_value_w_per_m2k: f64,
     /// (floor + below-ground wall) / ((A + z P) Δθ), W/(m²·K).
     pub effective_u_value_w_per_m2k: f64,
-    /// Deepest frost within 0.5 m outside the wall, m.
-    pub frost_depth_beside_wall_m: f64,
     /// What the values mean.
     pub basement_note: String,
 }
@@ -94,22 +113,32 @@ pub struct Summary {
     pub peak_heat_loss_w: f64,
     /// Mean heat loss per metre of exposed perimeter, W/m.
     pub heat_loss_per_perimeter_w_per_m: f64,
-    /// Floor U-value, W/(m²·K).
-    pub floor_u_value_w_per_m2k: f64,
+    /// Floor U-value, W/(m²·K) (null for an unheated building).
+    pub floor_u_value_w_per_m2k: Option<f64>,
     /// Steady heat loss at the annual means, W.
     pub steady_state_heat_loss_w: f64,
     /// Deepest frost in open ground, m.
     pub frost_depth_open_ground_m: f64,
-    /// Deepest frost under the footing, m.
+    /// Deepest frost just outside the footing's outer face, m.
+    pub frost_depth_at_footing_face_m: f64,
+    /// Deepest frost below the footing base within its width, m (0: none).
     pub frost_depth_under_footing_m: f64,
+    /// Deepest frost within 0.5 m outside the wall (backfill above a footing included), m.
+    pub frost_depth_beside_wall_m: f64,
+    /// Least distance from the frost line to the footing's outer base corner, m (null: no frost).
+    pub frost_distance_to_base_corner_m: Option<f64>,
+    /// Whether frozen ground entered the protected zone below the footing.
+    pub frost_in_protected_zone: bool,
     /// Footing base depth, m.
     pub footing_base_depth_m: f64,
-    /// Footing base depth − frost under the footing, m.
+    /// Spread of the protected zone from the vertical, degrees.
+    pub protected_zone_angle_deg: f64,
+    /// Least signed distance between the frozen ground and the protected zone, m.
     pub frost_margin_m: f64,
-    /// Day of year of the deepest frost under the footing (open ground when none).
-    pub date_of_max_frost_depth: usize,
-    /// Day of year of the saved field.
-    pub field_day_of_year: usize,
+    /// What the frost margin means.
+    pub frost_margin_definition: String,
+    /// Day of year of the least frost margin, the day of the saved field.
+    pub design_day_of_year: usize,
     /// Frost-line temperature, °C.
     pub frost_line_temperature_c: f64,
     /// Relative energy-balance error of the reported period.
@@ -118,6 +147,8 @@ pub struct Summary {
     pub spin_up_years: usize,
     /// Whether the spin-up criterion was met.
     pub spin_up_converged: bool,
+    /// The spin-up criterion.
+    pub spin_up_criterion: String,
     /// Extra first spin-up years in steps of several days.
     pub coarse_spin_up_years: usize,
     /// Their step, days.
@@ -161,9 +192,11 @@ pub struct Summary {
     /// What the reported period is.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reported_period: Option<String>,
-    /// Design-year provenance.
+    /// The design winter run once after the spin-up on the normal climate.
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub design_year: Option<DesignYear>,
+    pub design_winter: Option<DesignWinter>,
+    /// What the reported periods are.
+    pub periods: String,
     /// The climate as run.
     pub climate: ClimateInfo,
     /// Heated-basement values.
@@ -195,15 +228,21 @@ impl Summary {
             floor_u_value_w_per_m2k: h.floor_u_value_w_per_m2k,
             steady_state_heat_loss_w: r.steady_heat_loss_w,
             frost_depth_open_ground_m: h.frost_depth_open_ground_m,
+            frost_depth_at_footing_face_m: h.frost_depth_at_footing_face_m,
             frost_depth_under_footing_m: h.frost_depth_under_footing_m,
+            frost_depth_beside_wall_m: h.frost_depth_beside_wall_m,
+            frost_distance_to_base_corner_m: h.frost_distance_to_base_corner_m,
+            frost_in_protected_zone: h.frost_in_protected_zone,
             footing_base_depth_m: case.footing.base_depth_m,
+            protected_zone_angle_deg: case.footing.protected_zone_angle_deg,
             frost_margin_m: h.frost_margin_m,
-            date_of_max_frost_depth: h.date_of_max_frost_depth,
-            field_day_of_year: r.field.day_of_year,
+            frost_margin_definition: MARGIN_DEFINITION.into(),
+            design_day_of_year: h.design_day_of_year,
             frost_line_temperature_c: run::frost_line_c(case),
             energy_balance_error: y.energy_balance_error,
             spin_up_years: r.spin_up_years(),
             spin_up_converged: r.spin_up_converged,
+            spin_up_criterion: spin_up_criterion(case),
             coarse_spin_up_years: r.coarse_spin_up_years,
             coarse_year_step_days: case.simulation.coarse_year_step_days,
             cells: r.mesh.solid_cells(),
@@ -227,7 +266,8 @@ impl Summary {
             winters: series.then(|| r.winters.clone()),
             reported_winter: series.then(|| r.winters[r.reported - r.spin_up_years].winter),
             reported_period: series.then(|| "the worst winter of the measured series (deepest frost under the footing, then in open ground)".to_string()),
-            design_year: case.climate.design.clone(),
+            design_winter: case.climate.design_winter.clone(),
+            periods: periods(case).into(),
             climate: climate_info(case),
             basement: basement_summary(case, r),
         }
@@ -236,9 +276,12 @@ impl Summary {
 
 fn climate_info(case: &Case) -> ClimateInfo {
     let cl = &case.climate;
-    let kind = match (&cl.source, &cl.design) {
+    let kind = match (&cl.source, &cl.design_winter) {
         (ClimateSource::Series(_), _) => "measured series",
-        (_, Some(_)) => "design year from a series",
+        (_, Some(d)) if d.from_series.is_some() => {
+            "normal sinusoid of a series with its return-period design winter"
+        }
+        (_, Some(_)) => "normal sinusoid with a design winter",
         _ => "sinusoid",
     };
     ClimateInfo {
@@ -264,7 +307,6 @@ fn basement_summary(case: &Case, r: &RunResult) -> Option<BasementSummary> {
         wall_u_value_w_per_m2k: v.wall_u_value_w_per_m2k,
         basement_floor_u_value_w_per_m2k: v.floor_u_value_w_per_m2k,
         effective_u_value_w_per_m2k: v.effective_u_value_w_per_m2k,
-        frost_depth_beside_wall_m: v.frost_depth_beside_wall_m,
         basement_note: "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported separately.".into(),
     })
 }

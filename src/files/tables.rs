@@ -36,12 +36,22 @@ pub struct DailyRow {
     /// Frost depth in open ground, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub frost_depth_open_ground_m: f64,
-    /// Frost depth under the footing, m.
+    /// Frost depth just outside the footing's outer face, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_depth_at_footing_face_m: f64,
+    /// Deepest frost below the footing base within its width, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub frost_depth_under_footing_m: f64,
     /// Frost depth within 0.5 m outside the wall, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub frost_depth_beside_wall_m: f64,
+    /// Least distance from the frost line to the footing's outer base corner, m (empty: no
+    /// frost).
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_distance_to_base_corner_m: f64,
+    /// Signed distance between the frozen ground and the protected zone, m.
+    #[serde(deserialize_with = "f64_or_nan")]
+    pub frost_margin_m: f64,
 }
 
 impl From<&DailyRow> for Day {
@@ -52,8 +62,11 @@ impl From<&DailyRow> for Day {
             indoor_c: r.indoor_temperature_c,
             heat_loss_w: r.ground_heat_loss_w,
             frost_open_m: r.frost_depth_open_ground_m,
+            frost_face_m: r.frost_depth_at_footing_face_m,
             frost_footing_m: r.frost_depth_under_footing_m,
             frost_beside_wall_m: r.frost_depth_beside_wall_m,
+            frost_corner_distance_m: r.frost_distance_to_base_corner_m,
+            frost_margin_m: r.frost_margin_m,
         }
     }
 }
@@ -72,9 +85,9 @@ pub struct MonthlyRow {
     /// Largest open-ground frost depth, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub max_frost_depth_open_ground_m: f64,
-    /// Largest frost depth under the footing, m.
+    /// Largest frost depth just outside the footing's outer face, m.
     #[serde(deserialize_with = "f64_or_nan")]
-    pub max_frost_depth_under_footing_m: f64,
+    pub max_frost_depth_at_footing_face_m: f64,
 }
 
 /// One row of `winters.csv`.
@@ -85,9 +98,9 @@ pub struct WinterRow {
     /// Air freezing index, °C·d.
     #[serde(deserialize_with = "f64_or_nan")]
     pub freezing_index_c_days: f64,
-    /// Deepest frost under the footing, m.
+    /// Least frost margin to the protected zone, m.
     #[serde(deserialize_with = "f64_or_nan")]
-    pub frost_depth_under_footing_m: f64,
+    pub frost_margin_m: f64,
     /// Deepest open-ground frost, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub frost_depth_open_ground_m: f64,
@@ -133,35 +146,40 @@ pub fn csv_bytes(
 /// `daily.csv`.
 pub fn daily(head: &str, r: &RunResult) -> Result<Vec<u8>> {
     csv_bytes(
-        &format!("{head}\nReported (final) year, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
-        &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m"],
+        &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
+        &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
         r.days.iter().map(|d| {
-            vec![d.day_of_year.to_string(), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4)]
+            vec![d.day_of_year.to_string(), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4)]
         }),
     )
 }
 
-/// `monthly.csv`: calendar months of the reported period (365-day calendar; day 366 of a leap
-/// year stays in December).
+/// `monthly.csv`: calendar months (365-day calendar; day 366 of a leap year stays in December):
+/// heat loss and outdoor temperature of the heat-loss year (the normal year when a design winter
+/// was run), frost depths of the reported period.
 pub fn monthly(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+    let month = |d: &Day| month_of((d.day_of_year as f64 - 0.5).min(364.5));
     let (mut kwh, mut tout, mut n) = ([0.0; 12], [0.0; 12], [0usize; 12]);
     let (mut fo, mut ff) = ([0.0f64; 12], [0.0f64; 12]);
-    for d in &r.days {
-        let m = month_of((d.day_of_year as f64 - 0.5).min(364.5));
+    for d in r.heat_days() {
+        let m = month(d);
         kwh[m] += d.heat_loss_w * 24.0 / 1000.0;
         tout[m] += d.outdoor_c;
         n[m] += 1;
+    }
+    for d in &r.days {
+        let m = month(d);
         fo[m] = fo[m].max(d.frost_open_m);
-        ff[m] = ff[m].max(d.frost_footing_m);
+        ff[m] = ff[m].max(d.frost_face_m);
     }
     csv_bytes(
-        &format!("{head}\nCalendar months of the reported year (365-day calendar)."),
+        &format!("{head}\nCalendar months (365-day calendar): heat loss and outdoor temperature of the heat-loss year, frost of the reported period."),
         &[
             "month",
             "ground_heat_loss_kwh",
             "mean_outdoor_temperature_c",
             "max_frost_depth_open_ground_m",
-            "max_frost_depth_under_footing_m",
+            "max_frost_depth_at_footing_face_m",
         ],
         (0..12).map(|m| {
             vec![
@@ -214,9 +232,9 @@ pub fn field(head: &str, r: &RunResult) -> Result<Vec<u8>> {
 pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Vec<u8>> {
     csv_bytes(
         &format!("{head}\nEvery complete season (1 July - 30 June) of the measured series, named by the year it starts."),
-        &["winter", "freezing_index_c_days", "frost_depth_under_footing_m", "frost_depth_open_ground_m", "frost_depth_beside_wall_m", "ground_heat_loss_kwh", "energy_balance_error"],
+        &["winter", "freezing_index_c_days", "frost_margin_m", "frost_depth_under_footing_m", "frost_depth_open_ground_m", "frost_depth_beside_wall_m", "ground_heat_loss_kwh", "energy_balance_error"],
         winters.iter().map(|w| {
-            vec![w.winter.to_string(), fmt(w.freezing_index_c_days, 1), fmt(w.frost_depth_under_footing_m, 4), fmt(w.frost_depth_open_ground_m, 4), fmt(w.frost_depth_beside_wall_m, 4), fmt(w.heat_loss_kwh, 1), format!("{:.2e}", w.energy_balance_error)]
+            vec![w.winter.to_string(), fmt(w.freezing_index_c_days, 1), fmt(w.frost_margin_m, 4), fmt(w.frost_depth_under_footing_m, 4), fmt(w.frost_depth_open_ground_m, 4), fmt(w.frost_depth_beside_wall_m, 4), fmt(w.heat_loss_kwh, 1), format!("{:.2e}", w.energy_balance_error)]
         }),
     )
 }
@@ -290,7 +308,7 @@ mod tests {
                 "ground_heat_loss_kwh",
                 "mean_outdoor_temperature_c",
                 "max_frost_depth_open_ground_m",
-                "max_frost_depth_under_footing_m",
+                "max_frost_depth_at_footing_face_m",
             ],
             rows,
         )

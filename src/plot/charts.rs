@@ -277,7 +277,7 @@ pub fn probes(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> 
 }
 
 /// Per-winter results of a measured series, read from `winters.csv` if the run has one:
-/// (winter, frost under footing m, frost open ground m).
+/// (winter, least frost margin m, frost open ground m).
 pub fn read_winters(dir: &Path) -> Result<Option<Vec<(i64, f64, f64)>>> {
     if !dir.join("winters.csv").exists() {
         return Ok(None);
@@ -286,13 +286,7 @@ pub fn read_winters(dir: &Path) -> Result<Option<Vec<(i64, f64, f64)>>> {
         crate::files::tables::read_rows(dir, "winters.csv")?;
     let w: Vec<(i64, f64, f64)> = rows
         .iter()
-        .map(|r| {
-            (
-                r.winter,
-                r.frost_depth_under_footing_m,
-                r.frost_depth_open_ground_m,
-            )
-        })
+        .map(|r| (r.winter, r.frost_margin_m, r.frost_depth_open_ground_m))
         .collect();
     Ok((!w.is_empty()).then_some(w))
 }

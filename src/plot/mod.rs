@@ -4,12 +4,11 @@
 //! and optionally an animation of the field through the year. PNG and SVG; fonts are embedded
 //! (DejaVu Sans), so no system font package is needed.
 pub mod data;
-pub mod isolines;
 
+use crate::analysis::isolines::{self, isolines};
 use crate::error::{Error, InputKind, Result};
 use crate::files::{PlotEntry, PlotIndex};
 use data::PlotData;
-use isolines::isolines;
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;

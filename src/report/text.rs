@@ -7,25 +7,42 @@ use crate::physics::climate::ClimateSummary;
 use crate::physics::library::{soil_properties, KMethod, SoilFile};
 
 /// One row of a result table: label and unit in 35 characters, then each value in 10, with
-/// `prec` decimals.
+/// `prec` decimals ("–" for a value that is not finite).
 fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
     let w = 35usize.saturating_sub(unit.chars().count());
     let mut s = format!("    {label:<w$}{unit}");
     for v in vals {
-        s += &format!("  {v:>10.prec$}");
+        if v.is_finite() {
+            s += &format!("  {v:>10.prec$}");
+        } else {
+            s += &format!("  {:>10}", "–");
+        }
     }
     s + "\n"
 }
 
 /// The short result table printed after a run.
 pub fn result_table(s: &Summary) -> String {
-    let c = &s.cross_check;
     let mut t = format!("{}\n", s.case_name);
     t += &format!(
         "  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
         s.characteristic_dimension_m, s.floor_area_m2, s.exposed_perimeter_m
     );
-    t += "\n  Heat loss to the ground                     model      ISO 13370\n";
+    t += &heat_rows(s);
+    t += &frost_rows(s);
+    t += &basement_rows(s);
+    if s.design_winter.is_some() {
+        t += &format!("\n  Periods: {}.\n", s.periods);
+    }
+    t += &numerics_line(s);
+    t += &format!("\n  Caution: {CAUTION}\n");
+    t
+}
+
+fn heat_rows(s: &Summary) -> String {
+    let c = &s.cross_check;
+    let mut t =
+        String::from("\n  Heat loss to the ground                     model      ISO 13370\n");
     t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
     t += &row(
         "mean",
@@ -33,20 +50,37 @@ pub fn result_table(s: &Summary) -> String {
         1,
         &[s.mean_heat_loss_w, c.iso13370_mean_heat_loss_w],
     );
-    t += &row("peak (daily mean)", "W", 1, &[s.peak_heat_loss_w]);
+    let peak = if s.design_winter.is_some() {
+        "peak (daily mean, design winter)"
+    } else {
+        "peak (daily mean)"
+    };
+    t += &row(peak, "W", 1, &[s.peak_heat_loss_w]);
     t += &row(
         "per metre of exposed perimeter",
         "W/m",
         2,
         &[s.heat_loss_per_perimeter_w_per_m],
     );
-    t += &row(
-        "floor U-value",
-        "W/(m²K)",
-        3,
-        &[s.floor_u_value_w_per_m2k, c.iso13370_u_value_w_per_m2k],
+    if s.basement.is_none() {
+        t += &row(
+            "floor U-value",
+            "W/(m²K)",
+            3,
+            &[
+                s.floor_u_value_w_per_m2k.unwrap_or(f64::NAN),
+                c.iso13370_u_value_w_per_m2k,
+            ],
+        );
+    }
+    t
+}
+
+fn frost_rows(s: &Summary) -> String {
+    let c = &s.cross_check;
+    let mut t = String::from(
+        "\n  Frost (depths below ground level)           model      Stefan  mod. Berggren\n",
     );
-    t += "\n  Frost depth (below ground level)            model      Stefan  mod. Berggren\n";
     t += &row(
         "open ground",
         "m",
@@ -58,23 +92,45 @@ pub fn result_table(s: &Summary) -> String {
         ],
     );
     t += &row(
-        "under the footing",
+        "at the footing's outer face",
+        "m",
+        2,
+        &[s.frost_depth_at_footing_face_m],
+    );
+    t += &row(
+        "below the footing base",
         "m",
         2,
         &[s.frost_depth_under_footing_m],
     );
+    t += &row(
+        "beside the wall (within 0.5 m)",
+        "m",
+        2,
+        &[s.frost_depth_beside_wall_m],
+    );
     t += &row("footing base", "m", 2, &[s.footing_base_depth_m]);
-    let margin = row("margin (base − frost)", "m", 2, &[s.frost_margin_m]);
-    t += &if s.frost_margin_m < 0.0 {
-        margin.replace('\n', "  FROST BELOW FOOTING BASE\n")
+    t += &row(
+        "closest to the outer base corner",
+        "m",
+        2,
+        &[s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN)],
+    );
+    let label = format!(
+        "margin to the {:.0}° protected zone",
+        s.protected_zone_angle_deg
+    );
+    let margin = row(&label, "m", 2, &[s.frost_margin_m]);
+    t += &if s.frost_in_protected_zone {
+        margin.replace('\n', "  FROST IN THE PROTECTED ZONE\n")
     } else {
         margin
     };
     t += &row(
-        "deepest on day of year",
+        "day of the least margin",
         "",
         0,
-        &[s.date_of_max_frost_depth as f64],
+        &[s.design_day_of_year as f64],
     );
     t += &row(
         "freezing index (n × air)",
@@ -82,47 +138,45 @@ pub fn result_table(s: &Summary) -> String {
         0,
         &[c.freezing_index_c_days],
     );
-    if let (Some(b), Some(bc)) = (&s.basement, &c.basement) {
-        t += "\n  Heated basement                             model      ISO 13370\n";
-        t += &row(
-            "floor U-value",
-            "W/(m²K)",
-            3,
-            &[
-                b.basement_floor_u_value_w_per_m2k,
-                bc.iso13370_basement_floor_u_value_w_per_m2k,
-            ],
-        );
-        t += &row(
-            "wall U-value (below ground)",
-            "W/(m²K)",
-            3,
-            &[b.wall_u_value_w_per_m2k, bc.iso13370_wall_u_value_w_per_m2k],
-        );
-        t += &row(
-            "effective U-value",
-            "W/(m²K)",
-            3,
-            &[
-                b.effective_u_value_w_per_m2k,
-                bc.iso13370_effective_u_value_w_per_m2k,
-            ],
-        );
-        t += &row(
-            "wall / floor heat loss",
-            "kWh",
-            0,
-            &[b.wall_heat_loss_kwh, b.floor_heat_loss_kwh],
-        );
-        t += &row(
-            "frost beside the wall (0.5 m)",
-            "m",
-            2,
-            &[b.frost_depth_beside_wall_m],
-        );
-    }
-    t += &numerics_line(s);
-    t += &format!("\n  Caution: {CAUTION}\n");
+    t
+}
+
+fn basement_rows(s: &Summary) -> String {
+    let (Some(b), Some(bc)) = (&s.basement, &s.cross_check.basement) else {
+        return String::new();
+    };
+    let mut t =
+        String::from("\n  Heated basement (ISO 13370 definitions)     model      ISO 13370\n");
+    t += &row(
+        "basement floor U-value",
+        "W/(m²K)",
+        3,
+        &[
+            b.basement_floor_u_value_w_per_m2k,
+            bc.iso13370_basement_floor_u_value_w_per_m2k,
+        ],
+    );
+    t += &row(
+        "basement wall U-value (below ground)",
+        "W/(m²K)",
+        3,
+        &[b.wall_u_value_w_per_m2k, bc.iso13370_wall_u_value_w_per_m2k],
+    );
+    t += &row(
+        "effective U′ over A + z·P",
+        "W/(m²K)",
+        3,
+        &[
+            b.effective_u_value_w_per_m2k,
+            bc.iso13370_effective_u_value_w_per_m2k,
+        ],
+    );
+    t += &row(
+        "wall / floor heat loss",
+        "kWh",
+        0,
+        &[b.wall_heat_loss_kwh, b.floor_heat_loss_kwh],
+    );
     t
 }
 
@@ -185,14 +239,12 @@ pub fn check_text(case: &Case) -> Result<String> {
     let m = &case.strata[0].material;
     s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
         m.k_unfrozen, m.k_frozen, m.c_unfrozen / 1e6, m.c_frozen / 1e6, m.latent / 1e6);
-    let kind = match (&case.climate.source, &case.climate.design) {
-        (ClimateSource::Series(sr), _) => {
-            format!("measured series {} ({} days)", sr.source, sr.values.len())
-        }
-        (_, Some(d)) => format!(
-            "design year from {} ({:.0}-year index {:.0} °C·d)",
-            d.series, d.return_period_years, d.design_freezing_index_c_days
-        ),
+    let kind = match (&case.climate.source, &case.climate.design_winter) {
+        (ClimateSource::Series(sr), _) => format!("measured series {} ({} days)", sr.source, sr.values.len()),
+        (_, Some(d)) => match &d.from_series {
+            Some(y) => format!("normal year of {} and its {:.0}-year design winter ({:.0} °C·d, colder half's amplitude {:.2} K)", y.series, y.return_period_years, d.freezing_index_c_days, d.amplitude_k),
+            None => format!("normal year and a design winter ({:.0} °C·d, colder half's amplitude {:.2} K)", d.freezing_index_c_days, d.amplitude_k),
+        },
         _ => "sinusoid".into(),
     };
     s += &format!(

@@ -2,11 +2,13 @@
 //! recording the daily heat loss, frost depths, probe temperatures and fields of a period (a year
 //! or a season), with the energy balance of every step.
 use super::forcing::{self, DayIn};
+use super::frost::FrostLines;
 use super::result::{Day, Field, Progress, Year};
-use super::{FrostLines, GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW};
+use super::{GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW};
+use crate::analysis::frost_scalar;
 use crate::analysis::point_temperature;
 use crate::case::Case;
-use crate::error::Result;
+use crate::error::{Error, InputKind, Result};
 use crate::geometry::{INDOOR, OUTDOOR};
 use crate::mesh::Mesh;
 use crate::solver::{Network, Solver, SolverParams, StepEnergy};
@@ -24,6 +26,8 @@ pub struct Period {
     pub field: Field,
     /// The period's totals.
     pub year: Year,
+    /// The deepest soil that stayed frozen on every day of the period, m (None: all thawed).
+    pub never_thawed_m: Option<f64>,
 }
 
 /// The state and fixed data of a run.
@@ -52,7 +56,7 @@ pub struct Driver<'a> {
 #[derive(Default)]
 struct Sums {
     from_zones: f64,
-    abs_from_zones: f64,
+    boundary_abs: f64,
     stored: f64,
     groups: [f64; 4],
     indoor: f64,
@@ -64,19 +68,21 @@ impl Sums {
             self.groups[g] += v;
         }
         self.from_zones += e.from_zone.iter().sum::<f64>();
-        self.abs_from_zones += e.from_zone.iter().map(|v| v.abs()).sum::<f64>();
+        self.boundary_abs += e.boundary_abs;
         self.stored += e.stored;
         self.indoor += e.from_zone[INDOOR];
     }
 }
 
-/// The best candidates for the design day's field while a period runs.
+/// The least throughput the energy balance is normalised by, J per metre of section: below it
+/// (a section at equilibrium) the relative error is residual / 1 kJ.
+pub const ENERGY_FLOOR_J_PER_M: f64 = 1e3;
+
+/// The design day while a period runs: the day of the least frost margin (the first of equals).
 #[derive(Default)]
 struct DesignDay {
-    best_footing: Option<f64>,
-    best_open_winter: Option<f64>,
-    footing: Option<Field>,
-    open_winter: Option<Field>,
+    best: Option<(f64, usize)>,
+    field: Option<Field>,
 }
 
 impl Driver<'_> {
@@ -98,7 +104,12 @@ impl Driver<'_> {
                 .set_extra_horizontal_resistance(OUTDOOR, forcing::snow_r(cl, mid.month));
             let air = match mid.measured_c {
                 Some(_) => chunk.iter().filter_map(|d| d.measured_c).sum::<f64>() / n,
-                None => forcing::mean_over(cl, chunk[0].cal, chunk[0].cal + n),
+                None => forcing::mean_over_with(
+                    cl,
+                    chunk[0].cold_amplitude_k,
+                    chunk[0].cal,
+                    chunk[0].cal + n,
+                ),
             };
             let indoor = chunk
                 .iter()
@@ -116,7 +127,8 @@ impl Driver<'_> {
         Ok(())
     }
 
-    /// Simulate `days`, recording everything.
+    /// Simulate `days`, recording everything. Frost at the domain bottom is out of scope (an
+    /// error).
     pub fn period(
         &mut self,
         days: &[DayIn],
@@ -129,11 +141,14 @@ impl Driver<'_> {
         let mut fields = Array3::<f32>::zeros((days.len(), nz, nx));
         let mut sums = Sums::default();
         let mut design = DesignDay::default();
+        let mut thawed = vec![false; self.net.n];
         for (d, day) in days.iter().enumerate() {
             let (day_in, out_mean) = self.step_day(day, &mut sums)?;
             let rec = self.record_day(day, day_in, out_mean, &mut probes);
+            self.check_bottom(year, day)?;
+            self.mark_thawed(&mut thawed);
             let grid = self.grid_field();
-            design.offer(&rec, &grid);
+            design.offer(d, &rec, &grid);
             fields
                 .index_axis_mut(ndarray::Axis(0), d)
                 .assign(&grid.mapv(|v| v as f32));
@@ -144,15 +159,57 @@ impl Driver<'_> {
                 max_years,
             });
         }
-        let field = design.choose(&days_out, &fields);
-        let year = self.totals(&days_out, &sums, design.best_footing);
+        let field = design.field.take().unwrap_or_else(|| Field {
+            day_of_year: 0,
+            t: self.grid_field(),
+        });
+        let year = self.totals(&days_out, &sums);
         Ok(Period {
             days: days_out,
             probes,
             fields,
             field,
             year,
+            never_thawed_m: self.never_thawed(&thawed),
         })
+    }
+
+    /// Frozen ground in the bottom row of cells: the frost reached the domain's bottom.
+    fn check_bottom(&self, year: usize, day: &DayIn) -> Result<()> {
+        let g = &self.mesh.grid;
+        let j = g.nz() - 1;
+        let frozen = (0..g.nx()).any(|i| {
+            let p = self.net.unk_of[g.id(i, j)];
+            p != usize::MAX
+                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p])
+                    <= self.lines.t_line
+        });
+        if frozen {
+            return Err(Error::in_file(&self.case.file, "simulation.domain_depth_m", InputKind::OutOfScope, format!(
+                "frost reached the bottom of the domain (z = {:.1} m) on day {} of simulated year {}: the ground freezes deeper than the model covers (permafrost, or a climate too cold for a seasonal-frost model); allowed: frost above the domain bottom",
+                g.ze[g.nz()], day.doy, year + 1)));
+        }
+        Ok(())
+    }
+
+    /// Mark the unknowns above the frost line (thawed) today.
+    fn mark_thawed(&self, thawed: &mut [bool]) {
+        for (p, th) in thawed.iter_mut().enumerate() {
+            if !*th
+                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p]) > self.lines.t_line
+            {
+                *th = true;
+            }
+        }
+    }
+
+    /// The deepest freezing material that stayed frozen on every day, m.
+    fn never_thawed(&self, thawed: &[bool]) -> Option<f64> {
+        let g = &self.mesh.grid;
+        (0..self.net.n)
+            .filter(|&p| !thawed[p] && self.net.materials[self.net.mat[p]].freezes())
+            .map(|p| g.ze[self.net.cell_of[p] / g.nx() + 1])
+            .reduce(f64::max)
     }
 
     /// The steps of one day; returns the heat from the indoor air (J/m) and the mean air
@@ -170,7 +227,7 @@ impl Driver<'_> {
                 Some(v) => v,
                 None => {
                     let t0 = day.cal + s as f64 * dt / 86400.0;
-                    forcing::mean_over(cl, t0, t0 + dt / 86400.0)
+                    forcing::mean_over_with(cl, day.cold_amplitude_k, t0, t0 + dt / 86400.0)
                 }
             };
             out_mean += air / steps_per_day as f64;
@@ -192,7 +249,7 @@ impl Driver<'_> {
     /// The day's record (frost depths at the end of the day) and its probe temperatures.
     fn record_day(&self, day: &DayIn, day_in: f64, out_mean: f64, probes: &mut [Vec<f64>]) -> Day {
         let case = self.case;
-        let (fo, ff, fw) = self.lines.depths(self.mesh, self.net, &self.t);
+        let f = self.lines.measure(self.mesh, self.net, &self.t);
         let indoor = forcing::indoor_c(case, day.month, out_mean);
         let zt = forcing::zone_temps(case, indoor, forcing::surface(&case.climate, out_mean));
         for (k, p) in case.probes.iter().enumerate() {
@@ -206,9 +263,12 @@ impl Driver<'_> {
             outdoor_c: out_mean,
             indoor_c: indoor,
             heat_loss_w: day_in / 86400.0 * case.building.exposed_perimeter_m,
-            frost_open_m: fo,
-            frost_footing_m: ff,
-            frost_beside_wall_m: fw,
+            frost_open_m: f.open_m,
+            frost_face_m: f.at_face_m,
+            frost_footing_m: f.under_footing_m,
+            frost_beside_wall_m: f.beside_wall_m,
+            frost_corner_distance_m: f.corner_distance_m,
+            frost_margin_m: f.margin_m,
         }
     }
 
@@ -218,7 +278,7 @@ impl Driver<'_> {
     }
 
     /// The period's totals (whole building, kWh) and its energy balance.
-    fn totals(&self, days: &[Day], sums: &Sums, best_footing: Option<f64>) -> Year {
+    fn totals(&self, days: &[Day], sums: &Sums) -> Year {
         let perimeter = self.case.building.exposed_perimeter_m;
         let to_kwh = |j: f64| j * perimeter / 3.6e6;
         let max = |f: fn(&Day) -> f64| days.iter().map(f).fold(0.0, f64::max);
@@ -229,57 +289,27 @@ impl Driver<'_> {
             wall_above_ground_heat_loss_kwh: to_kwh(sums.groups[GROUP_WALL_ABOVE]),
             max_frost_beside_wall_m: max(|d| d.frost_beside_wall_m),
             max_frost_open_m: max(|d| d.frost_open_m),
-            max_frost_footing_m: best_footing.unwrap_or(0.0).max(0.0),
-            energy_balance_error: if sums.abs_from_zones > 0.0 {
-                (sums.from_zones - sums.stored) / sums.abs_from_zones
-            } else {
-                0.0
-            },
+            max_frost_footing_m: max(|d| d.frost_footing_m),
+            max_frost_face_m: max(|d| d.frost_face_m),
+            min_frost_margin_m: days
+                .iter()
+                .map(|d| d.frost_margin_m)
+                .fold(f64::INFINITY, f64::min),
+            energy_balance_error: (sums.from_zones - sums.stored)
+                / sums.boundary_abs.max(ENERGY_FLOOR_J_PER_M),
         }
     }
 }
 
 impl DesignDay {
-    /// Consider the day `rec` with field `grid`: the deepest frost under the footing, and the
-    /// deepest open-ground frost while the air is still below freezing.
-    fn offer(&mut self, rec: &Day, grid: &Array2<f64>) {
-        let ff = rec.frost_footing_m;
-        if self.best_footing.is_none_or(|b| ff > b) {
-            self.best_footing = Some(ff);
-            if ff > 0.0 {
-                self.footing = Some(Field {
-                    day_of_year: rec.day_of_year,
-                    t: grid.clone(),
-                });
-            }
-        }
-        // Without frost under the footing, the field shown is that of the deepest open-ground
-        // frost while the air is still below freezing (the end of the freezing season), not of a
-        // late, slowly creeping frozen layer in summer.
-        let fo = rec.frost_open_m;
-        if rec.outdoor_c < 0.0 && self.best_open_winter.is_none_or(|b| fo > b) {
-            self.best_open_winter = Some(fo);
-            self.open_winter = Some(Field {
+    /// Keep day `d`'s field if its frost margin is the least so far.
+    fn offer(&mut self, d: usize, rec: &Day, grid: &Array2<f64>) {
+        if self.best.is_none_or(|(m, _)| rec.frost_margin_m < m) {
+            self.best = Some((rec.frost_margin_m, d));
+            self.field = Some(Field {
                 day_of_year: rec.day_of_year,
                 t: grid.clone(),
             });
-        }
-    }
-
-    /// The design day's field: deepest frost under the footing, else the open-ground winter day,
-    /// else (no frost at all) the coldest day.
-    fn choose(&mut self, days: &[Day], fields: &Array3<f32>) -> Field {
-        if let Some(f) = self.footing.take().or(self.open_winter.take()) {
-            return f;
-        }
-        let k = days
-            .iter()
-            .enumerate()
-            .min_by(|a, b| a.1.outdoor_c.total_cmp(&b.1.outdoor_c))
-            .map_or(0, |(k, _)| k);
-        Field {
-            day_of_year: days.get(k).map_or(0, |d| d.day_of_year),
-            t: fields.index_axis(ndarray::Axis(0), k).mapv(f64::from),
         }
     }
 }

@@ -21,6 +21,9 @@ pub struct DayIn {
     pub month: usize,
     /// Measured daily mean air temperature, if the climate is a series.
     pub measured_c: Option<f64>,
+    /// Amplitude of the sinusoid's colder half on this day, K: the normal amplitude, or the
+    /// design winter's.
+    pub cold_amplitude_k: f64,
 }
 
 /// Ground-surface temperature for air temperature `t` (°C), by the n-factors.
@@ -40,13 +43,45 @@ pub fn snow_r(cl: &Climate, m: usize) -> f64 {
 /// Mean air temperature of the sinusoid over calendar time [d0, d1] (days since 1 January
 /// 00:00), °C; its value at d0 when the interval is empty.
 pub fn mean_over(cl: &Climate, d0: f64, d1: f64) -> f64 {
+    mean_over_with(cl, cl.amplitude_k, d0, d1)
+}
+
+/// [`mean_over`] for the sinusoid whose colder half (cos ω(t − t_c) > 0, the half below the mean)
+/// has amplitude `a_cold` (K) and whose warmer half keeps the normal amplitude: the interval is
+/// split where the sinusoid crosses its mean, t = t_c + 365/4 + k·365/2, and each piece
+/// integrated exactly, ∫ cos ω(t − t_c) dt = sin ω(t − t_c)/ω.
+pub fn mean_over_with(cl: &Climate, a_cold: f64, d0: f64, d1: f64) -> f64 {
     let w = 2.0 * std::f64::consts::PI / 365.0;
     // The coldest day's middle is the minimum: day-of-year D spans [D − 1, D) in calendar days.
     let c = cl.coldest_day - 0.5;
+    let amp = |t: f64| {
+        if (w * (t - c)).cos() > 0.0 {
+            a_cold
+        } else {
+            cl.amplitude_k
+        }
+    };
     if d1 - d0 < 1e-12 {
-        return cl.mean_c - cl.amplitude_k * (w * (d0 - c)).cos();
+        return cl.mean_c - amp(d0) * (w * (d0 - c)).cos();
     }
-    cl.mean_c - cl.amplitude_k * ((w * (d1 - c)).sin() - (w * (d0 - c)).sin()) / (w * (d1 - d0))
+    if a_cold == cl.amplitude_k {
+        return cl.mean_c
+            - cl.amplitude_k * ((w * (d1 - c)).sin() - (w * (d0 - c)).sin()) / (w * (d1 - d0));
+    }
+    let half = 365.0 / 2.0;
+    let first = ((d0 - c - 365.0 / 4.0) / half).floor() as i64 + 1;
+    let mut cuts = vec![d0];
+    let mut k = first;
+    while c + 365.0 / 4.0 + k as f64 * half < d1 {
+        cuts.push(c + 365.0 / 4.0 + k as f64 * half);
+        k += 1;
+    }
+    cuts.push(d1);
+    let integral: f64 = cuts
+        .windows(2)
+        .map(|p| amp(0.5 * (p[0] + p[1])) * ((w * (p[1] - c)).sin() - (w * (p[0] - c)).sin()) / w)
+        .sum();
+    cl.mean_c - integral / (d1 - d0)
 }
 
 /// Indoor air temperature in `month` (0–11) when the outdoor air is at `air`, °C: the case's
@@ -69,8 +104,9 @@ pub fn zone_temps(case: &Case, indoor: f64, outdoor: f64) -> Vec<f64> {
     z
 }
 
-/// The 365 days of the design year, from the start of the day holding the warmest time.
-pub fn design_year_days(cl: &Climate) -> Vec<DayIn> {
+/// The 365 days of a sinusoidal year, from the start of the day holding the warmest time, with
+/// the colder half's amplitude `a_cold` (K).
+pub fn sinusoid_year_days(cl: &Climate, a_cold: f64) -> Vec<DayIn> {
     let day0 = (cl.coldest_day - 0.5 + 182.5).rem_euclid(365.0).floor();
     (0..365)
         .map(|d| {
@@ -80,6 +116,7 @@ pub fn design_year_days(cl: &Climate) -> Vec<DayIn> {
                 doy: (cal as usize % 365) + 1,
                 month: month_of(cal + 0.5),
                 measured_c: None,
+                cold_amplitude_k: a_cold,
             }
         })
         .collect()
@@ -96,6 +133,7 @@ pub fn series_seasons(s: &DailySeries) -> Vec<(i64, Vec<DayIn>)> {
             doy: day_of_year(dn) as usize,
             month: m as usize - 1,
             measured_c: Some(s.values[k]),
+            cold_amplitude_k: 0.0,
         }
     };
     seasons(s.first_day, s.values.len())
@@ -104,15 +142,35 @@ pub fn series_seasons(s: &DailySeries) -> Vec<(i64, Vec<DayIn>)> {
         .collect()
 }
 
-/// The spin-up days and the recorded seasons of the case's climate: the design year and no
-/// seasons, or a series' first season and all its seasons.
-pub fn schedule(case: &Case) -> (Vec<DayIn>, Vec<(i64, Vec<DayIn>)>) {
-    match &case.climate.source {
-        ClimateSource::Sinusoid => (design_year_days(&case.climate), Vec::new()),
+/// What a run simulates after its start state.
+pub struct Schedule {
+    /// The year repeated in the spin-up: the normal sinusoidal year, or a series' first season.
+    pub spin: Vec<DayIn>,
+    /// The design year run once after the spin-up, if the climate has a design winter.
+    pub design: Option<Vec<DayIn>>,
+    /// Every season of a measured series, run in order after the spin-up.
+    pub seasons: Vec<(i64, Vec<DayIn>)>,
+}
+
+/// The schedule of the case's climate.
+pub fn schedule(case: &Case) -> Schedule {
+    let cl = &case.climate;
+    match &cl.source {
+        ClimateSource::Sinusoid => Schedule {
+            spin: sinusoid_year_days(cl, cl.amplitude_k),
+            design: cl
+                .design_winter
+                .as_ref()
+                .map(|dw| sinusoid_year_days(cl, dw.amplitude_k)),
+            seasons: Vec::new(),
+        },
         ClimateSource::Series(s) => {
             let seasons = series_seasons(s);
-            let first = seasons.first().map(|x| x.1.clone()).unwrap_or_default();
-            (first, seasons)
+            Schedule {
+                spin: seasons.first().map(|x| x.1.clone()).unwrap_or_default(),
+                design: None,
+                seasons,
+            }
         }
     }
 }
@@ -124,7 +182,7 @@ mod tests {
     fn climate() -> Climate {
         Climate {
             source: ClimateSource::Sinusoid,
-            design: None,
+            design_winter: None,
             n_freezing: 0.8,
             n_thawing: 1.2,
             snow_depth_m: [0.2; 12],
@@ -147,9 +205,37 @@ mod tests {
         assert!((snow_r(&cl, 0) - 1.0).abs() < 1e-12);
     }
 
+    /// A design winter's year: continuous at the mean crossings, its mean over the colder half is
+    /// that of the stronger sinusoid, over the warmer half the normal one's, and its freezing
+    /// index equals the sinusoid formula's for the colder half's amplitude (the sum of daily
+    /// means below 0 °C, to 1 %).
+    #[test]
+    fn design_winter_sinusoid() {
+        let cl = climate();
+        let c = cl.coldest_day - 0.5;
+        let q = 365.0 / 4.0;
+        let a_w = 20.0;
+        let cold = mean_over_with(&cl, a_w, c - q, c + q);
+        let want = cl.mean_c - a_w * 2.0 / std::f64::consts::PI;
+        assert!((cold - want).abs() < 1e-9, "{cold} {want}");
+        let warm = mean_over_with(&cl, a_w, c + q, c + 3.0 * q);
+        assert!((warm - (cl.mean_c + cl.amplitude_k * 2.0 / std::f64::consts::PI)).abs() < 1e-9);
+        for t in [c + q, c - q, c + 5.0 * q] {
+            assert!((mean_over_with(&cl, a_w, t, t) - cl.mean_c).abs() < 1e-9);
+        }
+        let days = sinusoid_year_days(&cl, a_w);
+        let fi: f64 = days
+            .iter()
+            .map(|d| -mean_over_with(&cl, a_w, d.cal, d.cal + 1.0))
+            .filter(|v| *v > 0.0)
+            .sum();
+        let f = crate::methods::sinusoid_freezing_index(cl.mean_c, a_w).0;
+        assert!((fi - f).abs() < 0.01 * f, "{fi} {f}");
+    }
+
     #[test]
     fn design_year_starts_on_the_warmest_day() {
-        let days = design_year_days(&climate());
+        let days = sinusoid_year_days(&climate(), 14.0);
         assert_eq!(days.len(), 365);
         // Coldest at calendar time 19.5 d: the warmest half a year later, at 202.0 d, the start
         // of day of year 203.

@@ -6,24 +6,35 @@ use crate::case::Case;
 /// Headline numbers of a run.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Headline {
-    /// Annual ground heat loss, kWh (whole building).
+    /// Annual ground heat loss, kWh (whole building; the normal year when a design winter was
+    /// run).
     pub annual_heat_loss_kwh: f64,
     /// Mean heat loss, W.
     pub mean_heat_loss_w: f64,
-    /// Largest daily-mean heat loss, W.
+    /// Largest daily-mean heat loss of the reported period (the design winter's, if any), W.
     pub peak_heat_loss_w: f64,
     /// Mean heat loss per metre of exposed perimeter, W/m.
     pub heat_loss_per_perimeter_w_per_m: f64,
-    /// Annual mean loss / (A (mean indoor − mean outdoor)), W/(m²·K).
-    pub floor_u_value_w_per_m2k: f64,
+    /// Annual mean loss / (A (mean indoor − mean outdoor)), W/(m²·K); None when the mean
+    /// indoor and outdoor temperatures differ by less than 1 K (an unheated building).
+    pub floor_u_value_w_per_m2k: Option<f64>,
     /// Deepest frost in open ground, m.
     pub frost_depth_open_ground_m: f64,
-    /// Deepest frost under the footing, m.
+    /// Deepest frost just outside the footing's outer face, m.
+    pub frost_depth_at_footing_face_m: f64,
+    /// Deepest frost below the footing base within its width, m (0: none).
     pub frost_depth_under_footing_m: f64,
-    /// Footing base depth minus frost depth under the footing, m.
+    /// Deepest frost within 0.5 m outside the wall, m.
+    pub frost_depth_beside_wall_m: f64,
+    /// Least distance from the frost line to the footing's outer base corner, m (None: no
+    /// frost).
+    pub frost_distance_to_base_corner_m: Option<f64>,
+    /// Whether frozen ground entered the protected zone below the footing.
+    pub frost_in_protected_zone: bool,
+    /// Least signed distance between the frozen ground and the protected zone, m.
     pub frost_margin_m: f64,
-    /// Day of year of the deepest frost under the footing (open ground when none).
-    pub date_of_max_frost_depth: usize,
+    /// Day of year of the least frost margin (the day of the saved field).
+    pub design_day_of_year: usize,
 }
 
 /// Hours of the reported period (a season of a series may have 366 days).
@@ -31,35 +42,40 @@ pub fn reported_hours(r: &RunResult) -> f64 {
     24.0 * r.days.len().max(1) as f64
 }
 
+/// The least temperature difference a U-value is computed for, K.
+pub const MIN_DELTA_T_K: f64 = 1.0;
+
 /// Compute the headline numbers.
 pub fn headline(case: &Case, r: &RunResult) -> Headline {
     let y = r.final_year();
-    let mean_w = y.heat_loss_kwh * 1000.0 / reported_hours(r);
+    let heat = r.heat_year();
+    let mean_w = heat.heat_loss_kwh * 1000.0 / (24.0 * r.heat_days().len().max(1) as f64);
     let peak = r
         .days
         .iter()
         .map(|d| d.heat_loss_w)
         .fold(f64::NEG_INFINITY, f64::max);
     let dtemp = case.indoor_mean_c() - case.climate.mean_c;
-    let day_max = if y.max_frost_footing_m > 0.0 {
-        r.days
-            .iter()
-            .max_by(|a, b| a.frost_footing_m.total_cmp(&b.frost_footing_m))
-    } else {
-        r.days
-            .iter()
-            .max_by(|a, b| a.frost_open_m.total_cmp(&b.frost_open_m))
-    };
+    let corner = r
+        .days
+        .iter()
+        .map(|d| d.frost_corner_distance_m)
+        .fold(f64::INFINITY, f64::min);
     Headline {
-        annual_heat_loss_kwh: y.heat_loss_kwh,
+        annual_heat_loss_kwh: heat.heat_loss_kwh,
         mean_heat_loss_w: mean_w,
         peak_heat_loss_w: peak,
         heat_loss_per_perimeter_w_per_m: mean_w / case.building.exposed_perimeter_m,
-        floor_u_value_w_per_m2k: mean_w / (case.building.floor_area_m2 * dtemp),
+        floor_u_value_w_per_m2k: (dtemp.abs() >= MIN_DELTA_T_K)
+            .then(|| mean_w / (case.building.floor_area_m2 * dtemp)),
         frost_depth_open_ground_m: y.max_frost_open_m,
+        frost_depth_at_footing_face_m: y.max_frost_face_m,
         frost_depth_under_footing_m: y.max_frost_footing_m,
-        frost_margin_m: case.footing.base_depth_m - y.max_frost_footing_m,
-        date_of_max_frost_depth: day_max.map_or(0, |d| d.day_of_year),
+        frost_depth_beside_wall_m: y.max_frost_beside_wall_m,
+        frost_distance_to_base_corner_m: corner.is_finite().then_some(corner),
+        frost_in_protected_zone: y.min_frost_margin_m < 0.0,
+        frost_margin_m: y.min_frost_margin_m,
+        design_day_of_year: r.field.day_of_year,
     }
 }
 
@@ -79,20 +95,20 @@ pub struct BasementValues {
 /// Basement results, if the case has a basement.
 pub fn basement_values(case: &Case, r: &RunResult) -> Option<BasementValues> {
     let b = case.basement.as_ref()?;
-    let y = r.final_year();
+    let y = r.heat_year();
     let dtemp = case.indoor_mean_c() - case.climate.mean_c;
     let (a, p, z) = (
         case.building.floor_area_m2,
         case.building.exposed_perimeter_m,
         b.floor_depth_m,
     );
-    let hours = reported_hours(r);
+    let hours = 24.0 * r.heat_days().len().max(1) as f64;
     let floor_w = y.floor_heat_loss_kwh * 1000.0 / hours;
     let wall_w = y.wall_heat_loss_kwh * 1000.0 / hours;
     Some(BasementValues {
         floor_u_value_w_per_m2k: floor_w / (a * dtemp),
         wall_u_value_w_per_m2k: wall_w / (z * p * dtemp),
         effective_u_value_w_per_m2k: (floor_w + wall_w) / ((a + z * p) * dtemp),
-        frost_depth_beside_wall_m: y.max_frost_beside_wall_m,
+        frost_depth_beside_wall_m: r.final_year().max_frost_beside_wall_m,
     })
 }

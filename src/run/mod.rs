@@ -8,16 +8,17 @@
 //! - [`steady`]: steady heat flows of a section (for verification and estimates).
 pub mod driver;
 pub mod forcing;
+pub mod frost;
 pub mod headline;
 pub mod result;
 pub mod spinup;
 pub mod steady;
 
+pub use frost::{frost_line_c, FrostLines, ProtectedZone};
 pub use headline::{basement_values, headline, BasementValues, Headline};
 pub use result::{Day, Field, Progress, RunResult, WinterResult, Year};
 pub use steady::{steady_flows, steady_heat_flow};
 
-use crate::analysis::frost_depth_column;
 use crate::case::Case;
 use crate::error::Result;
 use crate::geometry::{Section, INDOOR};
@@ -75,55 +76,6 @@ pub fn model(case: &Case) -> (Section, Mesh, Network) {
     (section, mesh, net)
 }
 
-/// Where frost depths are measured: the columns under the footing, within 0.5 m outside the
-/// wall, and the far edge of open ground; the frost-line temperature.
-#[derive(Debug, Clone)]
-pub struct FrostLines {
-    /// Columns whose centres lie under the footing.
-    pub footing: Vec<usize>,
-    /// Columns whose centres lie within 0.5 m outside the wall's exterior face.
-    pub beside_wall: Vec<usize>,
-    /// The open-ground column (the far edge of the domain).
-    pub open: usize,
-    /// Frost-line temperature, °C.
-    pub t_line: f64,
-}
-
-impl FrostLines {
-    /// The lines of `case` on `mesh`.
-    pub fn new(mesh: &Mesh, case: &Case) -> Self {
-        let (x0, x1) = case.footing_x();
-        let g = &mesh.grid;
-        FrostLines {
-            footing: (0..g.nx())
-                .filter(|&i| (x0..=x1).contains(&g.xc(i)))
-                .collect(),
-            beside_wall: (0..g.nx())
-                .filter(|&i| g.xc(i) > 0.0 && g.xc(i) <= 0.5)
-                .collect(),
-            open: g.nx() - 1,
-            t_line: frost_line_c(case),
-        }
-    }
-
-    /// Frost depths (m) of the state `t`: (open ground, under the footing, beside the wall).
-    pub fn depths(&self, mesh: &Mesh, net: &Network, t: &[f64]) -> (f64, f64, f64) {
-        let deepest = |cols: &[usize]| {
-            cols.iter()
-                .filter_map(|&i| frost_depth_column(mesh, net, t, i, 0.0, self.t_line))
-                .fold(0.0, f64::max)
-        };
-        let open = frost_depth_column(mesh, net, t, self.open, 0.0, self.t_line).unwrap_or(0.0);
-        (open, deepest(&self.footing), deepest(&self.beside_wall))
-    }
-}
-
-/// Frost-line temperature: the midpoint of the top stratum's freezing interval (half the pore
-/// water frozen), °C.
-pub fn frost_line_c(case: &Case) -> f64 {
-    case.strata[0].material.t_frost_line()
-}
-
 /// Temperatures of the unknowns spread onto the grid (nz × nx, row j holding depth zc(j)), NaN
 /// for air cells.
 pub fn grid_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Array2<f64> {
@@ -179,23 +131,31 @@ fn run_here(
         time_steps: 0,
     };
     let steady_heat_loss_w = spinup::start(&mut drv)?;
-    let (spin_days, seasons) = forcing::schedule(case);
-    let coarse_spin_up_years = spinup::coarse_year(&mut drv, &spin_days, opts);
-    let total = case.simulation.max_spin_up_years + 1 + seasons.len();
-    let spin = spinup::spin_up(&mut drv, &spin_days, progress, total)?;
+    let sched = forcing::schedule(case);
+    let coarse_spin_up_years = spinup::coarse_year(&mut drv, &sched.spin, opts);
+    let total = case.simulation.max_spin_up_years
+        + 1
+        + sched.seasons.len()
+        + usize::from(sched.design.is_some());
+    let spin = spinup::spin_up(&mut drv, &sched.spin, progress, total)?;
     let mut years = spin.years;
-    let (last, reported, spin_up_years, winters, periodicity) = if seasons.is_empty() {
-        // For a design year, the reported year is the last spin-up year, which ended just now.
-        let periodicity = spinup::periodicity(&mut drv, &spin.year_start)?;
-        let n = years.len();
-        (spin.last, n - 1, n - 1, Vec::new(), Some(periodicity))
+    let n = years.len();
+    let mut normal = None;
+    let (last, reported, spin_up_years, winters) = if let Some(design) = &sched.design {
+        // The design winter, once, from the periodic state of the normal climate.
+        let p = drv.period(design, progress, (n, total))?;
+        years.push(p.year.clone());
+        normal = Some((spin.last.days, n - 1));
+        (p, n, n, Vec::new())
+    } else if sched.seasons.is_empty() {
+        // The reported year is the last spin-up year.
+        (spin.last, n - 1, n - 1, Vec::new())
     } else {
         // The spin-up ends with the first season; the series then runs through from its start.
-        let n = years.len();
         let (winters, season_years, worst, k) =
-            spinup::seasons(&mut drv, &seasons, progress, (n, total))?;
+            spinup::seasons(&mut drv, &sched.seasons, progress, (n, total))?;
         years.extend(season_years);
-        (worst, n + k, n, winters, None)
+        (worst, n + k, n, winters)
     };
     Ok(RunResult {
         days: last.days,
@@ -204,7 +164,8 @@ fn run_here(
         reported,
         spin_up_years,
         coarse_spin_up_years,
-        periodicity_heat_loss_kwh: periodicity,
+        periodicity_heat_loss_kwh: spin.periodicity_kwh,
+        normal,
         winters,
         spin_up_converged: spin.converged,
         field: last.field,

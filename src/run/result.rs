@@ -18,10 +18,19 @@ pub struct Day {
     pub heat_loss_w: f64,
     /// Frost depth in open ground at the far edge, end of day, m.
     pub frost_open_m: f64,
-    /// Frost depth under the footing, end of day, m.
+    /// Frost depth just outside the footing's outer face, end of day, m.
+    pub frost_face_m: f64,
+    /// Deepest frozen point below the footing base within the footing's width, end of day, m
+    /// (0: none).
     pub frost_footing_m: f64,
     /// Frost depth within 0.5 m of the wall's exterior face, end of day, m.
     pub frost_beside_wall_m: f64,
+    /// Least distance from the frost line to the footing's outer base corner, m (infinite
+    /// without frost).
+    pub frost_corner_distance_m: f64,
+    /// Signed distance between the frozen ground and the protected zone, m (negative: frost in
+    /// the zone).
+    pub frost_margin_m: f64,
 }
 
 /// One simulated year.
@@ -39,9 +48,13 @@ pub struct Year {
     pub max_frost_beside_wall_m: f64,
     /// Deepest frost in open ground, m.
     pub max_frost_open_m: f64,
-    /// Deepest frost under the footing, m.
+    /// Deepest frost below the footing base within its width, m.
     pub max_frost_footing_m: f64,
-    /// Relative energy-balance error of the year.
+    /// Deepest frost just outside the footing's outer face, m.
+    pub max_frost_face_m: f64,
+    /// Least frost margin to the protected zone, m.
+    pub min_frost_margin_m: f64,
+    /// Relative energy-balance error of the year: (Σ heat in − Σ stored)/Σ |boundary heat flows|.
     pub energy_balance_error: f64,
 }
 
@@ -63,6 +76,9 @@ pub struct RunResult {
     pub mesh: Mesh,
     /// Grid fields of every day of the reported year (°C, NaN for air), in `days` order.
     pub daily_fields: Array3<f32>,
+    /// The normal (periodic) year when a design winter was run after it: its days (annual and
+    /// monthly heat loss come from it) and its index in `years`.
+    pub normal: Option<(Vec<Day>, usize)>,
     /// Days of the reported year, from the warmest day on.
     pub days: Vec<Day>,
     /// Probe temperatures per day of the reported year (probe-major), °C.
@@ -113,6 +129,17 @@ impl RunResult {
     pub fn final_year(&self) -> &Year {
         &self.years[self.reported]
     }
+    /// The year heat-loss figures come from: the normal year when a design winter was run,
+    /// else the reported one.
+    pub fn heat_year(&self) -> &Year {
+        self.normal
+            .as_ref()
+            .map_or(self.final_year(), |n| &self.years[n.1])
+    }
+    /// The days of [`RunResult::heat_year`].
+    pub fn heat_days(&self) -> &[Day] {
+        self.normal.as_ref().map_or(&self.days, |n| &n.0)
+    }
     /// Spin-up years before the reported one.
     pub fn spin_up_years(&self) -> usize {
         self.spin_up_years
@@ -137,7 +164,9 @@ pub struct WinterResult {
     pub winter: i64,
     /// Air freezing index of the season, °C·d.
     pub freezing_index_c_days: f64,
-    /// Deepest frost under the footing, m.
+    /// Least frost margin to the protected zone, m.
+    pub frost_margin_m: f64,
+    /// Deepest frost below the footing base, m.
     pub frost_depth_under_footing_m: f64,
     /// Deepest frost in open ground, m.
     pub frost_depth_open_ground_m: f64,

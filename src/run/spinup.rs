@@ -7,13 +7,13 @@ use super::forcing::{self, DayIn};
 use super::result::{Progress, WinterResult, Year};
 use super::{RunOptions, SPIN_UP_FROST_TOL_M, SPIN_UP_HEAT_TOL};
 use crate::case::Case;
-use crate::error::Result;
+use crate::error::{Error, InputKind, Result};
 use crate::geometry::INDOOR;
 use crate::methods;
 
 /// The thermal-offset surface mean of the top stratum for the sinusoidal (surface) climate, °C,
 /// or None without freezing: T = (k_u I_t − k_f I_f)/(k_u P) (Kudryavtsev-type thermal-offset
-/// estimate, from memory of the frozen-ground literature; it equals the mean when k_f = k_u).
+/// estimate, the TTOP model of Smith & Riseborough 2002; it equals the mean when k_f = k_u).
 /// Frozen ground conducts better, so the periodic state is colder at depth than the air mean;
 /// starting there shortens the spin-up. The periodicity test, not this estimate, decides the
 /// result.
@@ -26,8 +26,12 @@ pub fn thermal_offset_start(case: &Case) -> Option<f64> {
         return None;
     }
     let i_t_air = i_f_air + cl.mean_c * p;
-    let (i_f, i_t) = (cl.n_freezing * i_f_air, cl.n_thawing * i_t_air);
-    Some((m.k_unfrozen * i_t - m.k_frozen * i_f) / (m.k_unfrozen * p))
+    Some(methods::thermal_offset_mean(
+        m.k_unfrozen,
+        m.k_frozen,
+        cl.n_thawing * i_t_air,
+        cl.n_freezing * i_f_air,
+    ))
 }
 
 /// Set the driver's state to the start state; returns the steady heat loss at the annual means
@@ -77,21 +81,25 @@ pub fn coarse_year(drv: &mut Driver, days: &[DayIn], opts: &RunOptions) -> usize
     1
 }
 
-/// What the spin-up of a design year ends with.
+/// What the spin-up ends with.
 pub struct SpinUp {
-    /// Every year run (the last is the reported one).
+    /// Every year run (the last is the periodic one).
     pub years: Vec<Year>,
     /// The last year's records.
     pub last: Period,
-    /// Whether consecutive years agreed.
+    /// Whether the spin-up criterion was met.
     pub converged: bool,
-    /// The state at the start of the last year: (enthalpies, temperatures).
-    pub year_start: (Vec<f64>, Vec<f64>),
+    /// A sinusoidal climate: the last year's heat loss minus the periodic year's, estimated from
+    /// its start and end states, kWh (see `RunResult::periodicity_heat_loss_kwh`).
+    pub periodicity_kwh: Option<f64>,
 }
 
-/// Repeat `days` until the annual heat loss changes less than [`SPIN_UP_HEAT_TOL`] and the
-/// largest frost depths less than [`SPIN_UP_FROST_TOL_M`] between years (after at least the
-/// case's minimum), or the case's maximum is reached.
+/// Repeat `days` until the year is periodic, or the case's maximum is reached (after at least
+/// the case's minimum). Periodic means: the largest frost depths and the frost margin changed
+/// less than [`SPIN_UP_FROST_TOL_M`] from the previous year, and the annual heat loss is within
+/// [`SPIN_UP_HEAT_TOL`] of the periodic year's by the periodicity estimate (a sinusoidal
+/// climate; the estimate is the one reported) or of the previous year's (a series' first
+/// season). The periodic year's soil must thaw everywhere (else: permafrost, an error).
 pub fn spin_up(
     drv: &mut Driver,
     days: &[DayIn],
@@ -100,25 +108,51 @@ pub fn spin_up(
 ) -> Result<SpinUp> {
     let sim = &drv.case.simulation;
     let (min_years, max_years) = (sim.min_spin_up_years, sim.max_spin_up_years + 1);
+    let series = days.first().is_some_and(|d| d.measured_c.is_some());
     let mut years: Vec<Year> = Vec::new();
     loop {
         let year_start = (drv.h.clone(), drv.t.clone());
         let p = drv.period(days, progress, (years.len(), total_years))?;
-        let converged = years.last().is_some_and(|prev| {
-            let dq = (p.year.heat_loss_kwh - prev.heat_loss_kwh).abs()
-                / prev.heat_loss_kwh.abs().max(1e-9);
-            let df = (p.year.max_frost_footing_m - prev.max_frost_footing_m)
-                .abs()
-                .max((p.year.max_frost_open_m - prev.max_frost_open_m).abs());
-            dq < SPIN_UP_HEAT_TOL && df < SPIN_UP_FROST_TOL_M && years.len() >= min_years
+        let y = &p.year;
+        let (heat_ok, est) = if series {
+            let ok = years.last().is_some_and(|prev| {
+                (y.heat_loss_kwh - prev.heat_loss_kwh).abs()
+                    < SPIN_UP_HEAT_TOL * prev.heat_loss_kwh.abs().max(1e-9)
+            });
+            (ok, None)
+        } else {
+            let est = periodicity(drv, &year_start)?;
+            // The year's gross heat exchange through the building's faces, kWh (equal to the
+            // annual loss when the floor loses heat every day; not near zero for an unheated
+            // building, whose net loss is).
+            let gross: f64 = p
+                .days
+                .iter()
+                .map(|d| d.heat_loss_w.abs() * 24.0 / 1000.0)
+                .sum();
+            (est.abs() < SPIN_UP_HEAT_TOL * gross.max(1e-9), Some(est))
+        };
+        let frost_ok = years.last().is_some_and(|prev| {
+            let d = [
+                y.max_frost_open_m - prev.max_frost_open_m,
+                y.max_frost_face_m - prev.max_frost_face_m,
+                y.max_frost_footing_m - prev.max_frost_footing_m,
+                y.min_frost_margin_m - prev.min_frost_margin_m,
+            ];
+            d.iter().all(|v| v.abs() < SPIN_UP_FROST_TOL_M)
         });
+        let converged = heat_ok && frost_ok && years.len() >= min_years;
         years.push(p.year.clone());
         if converged || years.len() >= max_years {
+            if let Some(z) = p.never_thawed_m {
+                return Err(Error::in_file(&drv.case.file, "climate", InputKind::OutOfScope, format!(
+                    "ground down to z = {z:.2} m stays frozen through the whole periodic year: a frozen layer that does not thaw (permafrost); allowed: ground that thaws every year")));
+            }
             return Ok(SpinUp {
                 years,
                 last: p,
                 converged,
-                year_start,
+                periodicity_kwh: est,
             });
         }
     }
@@ -136,7 +170,7 @@ pub fn periodicity(drv: &mut Driver, (h0, t0): &(Vec<f64>, Vec<f64>)) -> Result<
 }
 
 /// Every season of a measured series in order after the spin-up; returns the winters' results,
-/// the years, and the worst season's records (deepest frost under the footing, then in open
+/// the years, and the worst season's records (least frost margin, then deepest frost in open
 /// ground) with its index among the seasons.
 pub fn seasons(
     drv: &mut Driver,
@@ -154,6 +188,7 @@ pub fn seasons(
         winters.push(WinterResult {
             winter: *y,
             freezing_index_c_days: fi,
+            frost_margin_m: p.year.min_frost_margin_m,
             frost_depth_under_footing_m: p.year.max_frost_footing_m,
             frost_depth_open_ground_m: p.year.max_frost_open_m,
             frost_depth_beside_wall_m: p.year.max_frost_beside_wall_m,
@@ -161,7 +196,8 @@ pub fn seasons(
             energy_balance_error: p.year.energy_balance_error,
         });
         years.push(p.year.clone());
-        let key = (p.year.max_frost_footing_m, p.year.max_frost_open_m);
+        // The worst season: the least frost margin, then the deepest open-ground frost.
+        let key = (-p.year.min_frost_margin_m, p.year.max_frost_open_m);
         if worst.as_ref().is_none_or(|w| key > (w.0, w.1)) {
             worst = Some((key.0, key.1, p, k));
         }

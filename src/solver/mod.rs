@@ -99,6 +99,9 @@ pub struct StepEnergy {
     pub by_group: Vec<f64>,
     /// Increase of stored heat Σ V ΔH, J/m.
     pub stored: f64,
+    /// Sum of the absolute heat flows through every boundary face, Σ_b |q_b| Δt, J/m (the
+    /// throughput the energy balance is measured against).
+    pub boundary_abs: f64,
     /// Step length, s.
     pub dt: f64,
 }
@@ -349,6 +352,7 @@ impl<'a> Solver<'a> {
             from_zone: vec![0.0; self.net.n_zones],
             by_group: vec![0.0; self.net.n_groups()],
             stored: 0.0,
+            boundary_abs: 0.0,
             dt,
         };
         self.step_rec(h, zone_t, (dt, time_s), 0, &mut e, params)?;
@@ -494,6 +498,7 @@ impl<'a> Solver<'a> {
             let q = self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;
             e.from_zone[bf.zone] += q;
             e.by_group[bf.group] += q;
+            e.boundary_abs += q.abs();
         }
         e.stored += (0..net.n)
             .map(|p| net.volume[p] * (h[p] - self.h_old[p]))

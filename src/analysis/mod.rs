@@ -1,5 +1,8 @@
 //! Post-processing of solved fields: point temperatures and the frost depth on a vertical line.
+pub mod isolines;
+
 use crate::mesh::{Cell, Mesh};
+use crate::physics::material::Material;
 use crate::solver::network::{Network, Side};
 
 /// Temperature at point (x, z), °C, from the cell temperatures `t` of the unknowns.
@@ -132,26 +135,42 @@ fn bilinear(
     )
 }
 
-/// Frozen fraction used for the frost line: 1 − unfrozen fraction for a freezing material; for a
-/// material without water a ramp 0.5 − (T − t_line)/(0.5 K), clamped to [0, 1], which is 0.5 at
-/// `t_line` so that the same interpolation finds the `t_line` isotherm there.
-fn frozen_fraction(net: &Network, t: &[f64], p: usize, t_line: f64) -> f64 {
-    let m = &net.materials[net.mat[p]];
+/// The frost scalar s of a material at temperature `t`, °C: the temperature clamped to the
+/// material's freezing interval [T_s, T_f] (no clamp for a material without water). The frost line
+/// is s = t_line (the midpoint of the top stratum's interval, where half the pore water is frozen)
+/// and frozen ground is s ≤ t_line; the line is placed by linear interpolation of s between cell
+/// centres.
+///
+/// In a linear freezing interval s is T itself and the frozen fraction is linear in it, so
+/// interpolating s is interpolating the frozen fraction; outside the interval s stays at its ends,
+/// so trace ice left in a thawing layer (s above t_line) never counts as frost. In concrete and
+/// insulation the line is the t_line isotherm.
+pub fn frost_scalar(m: &Material, t: f64) -> f64 {
     if m.freezes() {
-        1.0 - m.unfrozen_fraction(t[p])
+        t.clamp(m.t_solidus(), m.t_freeze)
     } else {
-        (0.5 - (t[p] - t_line) / 0.5).clamp(0.0, 1.0)
+        t
     }
+}
+
+/// The frost scalar of every grid cell (nz × nx, row-major; NaN for air) from the temperatures
+/// `t` of the unknowns.
+pub fn frost_scalar_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
+    let mut f = vec![f64::NAN; mesh.grid.len()];
+    for (p, &id) in net.cell_of.iter().enumerate() {
+        f[id] = frost_scalar(&net.materials[net.mat[p]], t[p]);
+    }
+    f
 }
 
 /// Deepest frozen point of column `i` at or below `z_from` (m); `None` if nothing there is frozen.
 ///
-/// The frost line is where the frozen fraction φ is one half (the midpoint of the freezing
-/// interval; `t_line` °C in materials without water). φ is taken at the cell centres and
-/// interpolated linearly: below the deepest cell j with φ_j ≥ ½ the front lies at
-/// z = z_j + (φ_j − ½)/(φ_j − φ_{j+1}) (z_{j+1} − z_j). For a sharp front this moves continuously
-/// and monotonically from face to face as cells freeze (within about a tenth of a cell of the
-/// front's true position), and trace ice left in a thawing layer does not count as frost.
+/// The frost line is where the frost scalar s ([`frost_scalar`]) equals `t_line`. Below the
+/// deepest cell j with s_j ≤ t_line the line lies at
+/// z = z_j + (t_line − s_j)/(s_{j+1} − s_j) (z_{j+1} − z_j), by linear interpolation between cell
+/// centres (the face below j when there is no solid cell j + 1). For a sharp front this moves
+/// continuously from face to face as cells freeze (within about a tenth of a cell of the front's
+/// true position).
 pub fn frost_depth_column(
     mesh: &Mesh,
     net: &Network,
@@ -161,16 +180,16 @@ pub fn frost_depth_column(
     t_line: f64,
 ) -> Option<f64> {
     let g = &mesh.grid;
-    let phi = |j: usize| {
+    let s = |j: usize| {
         let p = net.unk_of[g.id(i, j)];
-        (p != usize::MAX).then(|| frozen_fraction(net, t, p, t_line))
+        (p != usize::MAX).then(|| frost_scalar(&net.materials[net.mat[p]], t[p]))
     };
     let j = (0..g.nz())
         .rev()
-        .find(|&j| g.ze[j + 1] > z_from && phi(j).is_some_and(|f| f >= 0.5))?;
-    let a = phi(j)?;
-    let z = match (j + 1 < g.nz()).then(|| phi(j + 1)).flatten() {
-        Some(b) if a > b => g.zc(j) + (a - 0.5) / (a - b) * (g.zc(j + 1) - g.zc(j)),
+        .find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
+    let a = s(j)?;
+    let z = match (j + 1 < g.nz()).then(|| s(j + 1)).flatten() {
+        Some(b) if b > a => g.zc(j) + (t_line - a) / (b - a) * (g.zc(j + 1) - g.zc(j)),
         _ => g.ze[j + 1],
     };
     Some(z.max(z_from))
