@@ -58,6 +58,11 @@ impl Section {
             bp(0.0, h0),
         ];
         let mut bz = vec![bp(self.z_top, h0), bp(0.0, h0), bp(self.z_bottom, hmax)];
+        // The stated cut of the wall, where the stated wall above ground ends.
+        let cut = -case.wall.height_above_ground_m;
+        if cut > self.z_top + 1e-9 {
+            bz.push(bp(cut, h0));
+        }
         for r in &self.rects {
             for x in [r.x0, r.x1] {
                 if x > self.x_min + 1e-9 && x < self.x_max - 1e-9 {

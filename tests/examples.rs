@@ -1,6 +1,6 @@
 //! Every bundled example runs (the large one shortened) with range assertions on its results.
 use crate::cli::{bin, scratch};
-use crate::common::{read_json, run_ok};
+use crate::common::{read_json, run_ok, run_written};
 use serde_json::Value;
 use std::path::Path;
 
@@ -12,7 +12,7 @@ const KEYS: &[&str] = &[
     "mean_heat_loss_w",
     "peak_heat_loss_w",
     "heat_loss_per_perimeter_w_per_m",
-    "floor_u_value_w_per_m2k",
+    "ground_u_value_incl_junction_w_per_m2k",
     "frost_depth_open_ground_m",
     "frost_depth_under_footing_m",
     "footing_base_depth_m",
@@ -39,7 +39,12 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
         out.clone().into_os_string(),
     ];
     args.extend(extra.iter().map(std::ffi::OsString::from));
-    let stdout = run_ok(&args);
+    // A shortened spin-up may end before the periodic year: results written, exit 3.
+    let (stdout, code) = run_written(&args);
+    assert!(
+        code == 0 || extra.contains(&"--max-spin-up-years"),
+        "{name}: exit {code}"
+    );
     let s = read_json(&out.join("summary.json"));
     for k in KEYS {
         assert!(
@@ -216,12 +221,14 @@ fn birch_lane_basement_shortened() {
     let ue = num(&s, "effective_u_value_w_per_m2k");
     assert!(ue > iso && ue < 2.0 * iso, "effective U {ue} vs ISO {iso}");
     assert!(num(&s, "wall_heat_loss_kwh") > num(&s, "floor_heat_loss_kwh"));
-    let parts = num(&s, "wall_heat_loss_kwh")
-        + num(&s, "floor_heat_loss_kwh")
-        + num(&s, "wall_above_ground_heat_loss_kwh");
+    // Ground loss = floor + wall below ground + the junction at ground level (the wall above
+    // ground's faces minus its 1D part): the junction is a small share.
+    let below = num(&s, "wall_heat_loss_kwh") + num(&s, "floor_heat_loss_kwh");
+    let annual = num(&s, "annual_heat_loss_kwh");
     assert!(
-        (parts - num(&s, "annual_heat_loss_kwh")).abs() < 1e-6 * parts,
-        "the parts add up"
+        (annual - below).abs() < 0.15 * annual,
+        "junction part {} of {annual} kWh",
+        annual - below
     );
     assert!(num(&s, "frost_depth_beside_wall_m") < num(&s, "frost_depth_open_ground_m"));
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);

@@ -73,9 +73,50 @@ impl Case {
         Extent {
             x_min: -(self.wall.thickness_m + 0.5 * self.building.b_prime_m),
             x_max: self.simulation.domain_width_m,
-            z_top: (-self.wall.height_above_ground_m).min(self.floor_z()),
+            z_top: self.section_top_z(),
             z_bottom: self.simulation.domain_depth_m,
         }
+    }
+
+    /// The top of the section, m: the wall's cut (`wall.height_above_ground_m`), or higher so that
+    /// the wall reaches `simulation.wall_extension_m` above the floor (or above ground level when
+    /// the floor is below it). The 2D flow at the wall/floor junction is then not truncated by
+    /// the adiabatic cut (ISO 10211 places cut-off planes at least 1 m from the junction, as
+    /// quoted in secondary sources); the wall above the stated cut continues as it is at the cut.
+    pub fn section_top_z(&self) -> f64 {
+        let floor_or_ground = self.floor_z().min(0.0);
+        (-self.wall.height_above_ground_m)
+            .min(floor_or_ground - self.simulation.wall_extension_m)
+            .min(self.floor_z())
+    }
+
+    /// z of a vertical piece's top in the section: a piece reaching the stated cut continues to
+    /// the section's top.
+    fn vertical_top(&self, top_m: f64) -> f64 {
+        if top_m <= -self.wall.height_above_ground_m + 1e-9 {
+            self.section_top_z()
+        } else {
+            top_m
+        }
+    }
+
+    /// The case with the section cut at the floor (or at ground level, if higher) and no wall
+    /// above it: the floor-only model whose steady coupling is the floor's part of the ISO 10211
+    /// split of a wall/floor junction. Insulation above the new cut is clipped or dropped.
+    pub fn floor_only(&self) -> Case {
+        let mut c = self.clone();
+        let cut = self.slab.top_above_ground_m.max(0.0);
+        c.wall.height_above_ground_m = cut;
+        c.simulation.wall_extension_m = 0.0;
+        c.insulation.retain_mut(|ins| match &mut ins.kind {
+            InsulationKind::VerticalOutside { top_m, bottom_m }
+            | InsulationKind::VerticalInside { top_m, bottom_m } => {
+                *top_m = top_m.max(-cut);
+                *bottom_m > *top_m + 1e-9
+            }
+            _ => true,
+        });
+        c
     }
 
     /// The rectangle of insulation piece `k`.
@@ -94,14 +135,14 @@ impl Case {
             InsulationKind::VerticalOutside { top_m, bottom_m } => Rect {
                 x0: 0.0,
                 x1: t,
-                z0: top_m,
+                z0: self.vertical_top(top_m),
                 z1: bottom_m,
                 part,
             },
             InsulationKind::VerticalInside { top_m, bottom_m } => Rect {
                 x0: -w - t,
                 x1: -w,
-                z0: top_m,
+                z0: self.vertical_top(top_m),
                 z1: bottom_m,
                 part,
             },

@@ -98,7 +98,12 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let building = building::building(c, &raw.building)?;
     let cons = building::construction(c, &raw, &building)?;
     let climate = climate::climate(c, &raw.climate)?;
-    let simulation = simulation::simulation(c, &raw.simulation, building.b_prime_m)?;
+    let simulation = simulation::simulation(
+        c,
+        &raw.simulation,
+        building.b_prime_m,
+        cons.basement_depth_m,
+    )?;
     let strata = soil::strata(c, &raw.soil)?;
     climate::no_permafrost(c, &climate, &strata)?;
     let basement = building::basement(c, raw.basement.as_ref(), &cons, &simulation)?;

@@ -271,6 +271,9 @@ pub struct Simulation {
     pub domain_depth_m: f64,
     /// Fixed temperature at the bottom (°C), or adiabatic (None, the default).
     pub bottom_temperature_c: Option<f64>,
+    /// How far the wall reaches above the floor (or above ground level, if higher) at least, m.
+    /// Default 1.0; 0 in the floor-only model of the heat-loss split.
+    pub wall_extension_m: f64,
 }
 
 /// A named point whose temperature is recorded.

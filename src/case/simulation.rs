@@ -4,9 +4,18 @@ use super::model::{Building, Fineness, Probe, Simulation, Wall};
 use super::raw::{RawProbe, RawSimulation, S};
 use crate::error::{InputKind, Result};
 
+/// How far the wall reaches above the floor at least in the model, m (see
+/// `Case::section_top_z`).
+pub const WALL_EXTENSION_M: f64 = 1.0;
+
 /// `[simulation]`; `b_prime_m` sets the default domain (ISO 10211 cut-off planes: 2.5 B′, at
 /// least 20 m).
-pub fn simulation(c: &Ctx, s: &RawSimulation, b_prime_m: f64) -> Result<Simulation> {
+pub fn simulation(
+    c: &Ctx,
+    s: &RawSimulation,
+    b_prime_m: f64,
+    basement_depth_m: Option<f64>,
+) -> Result<Simulation> {
     let dt_h = c.opt(
         &s.time_step_h,
         "simulation.time_step_h",
@@ -41,7 +50,8 @@ pub fn simulation(c: &Ctx, s: &RawSimulation, b_prime_m: f64) -> Result<Simulati
         })?,
     };
     let dom_default = (2.5 * b_prime_m).max(20.0);
-    let domain = |v: &Option<S<f64>>, key: &str| c.opt(v, key, (2.0, 500.0), "m", dom_default);
+    let domain =
+        |v: &Option<S<f64>>, key: &str, default: f64| c.opt(v, key, (2.0, 500.0), "m", default);
     Ok(Simulation {
         dt_s: dt_h * 3600.0,
         max_spin_up_years: max_years,
@@ -60,13 +70,19 @@ pub fn simulation(c: &Ctx, s: &RawSimulation, b_prime_m: f64) -> Result<Simulati
             5,
         )?,
         mesh,
-        domain_width_m: domain(&s.domain_width_m, "simulation.domain_width_m")?,
-        domain_depth_m: domain(&s.domain_depth_m, "simulation.domain_depth_m")?,
+        domain_width_m: domain(&s.domain_width_m, "simulation.domain_width_m", dom_default)?,
+        // Below a basement floor the cut-off plane lies as deep under the floor as under ground.
+        domain_depth_m: domain(
+            &s.domain_depth_m,
+            "simulation.domain_depth_m",
+            dom_default + basement_depth_m.unwrap_or(0.0),
+        )?,
         bottom_temperature_c: s
             .bottom_temperature_c
             .as_ref()
             .map(|v| c.range_incl(v, "simulation.bottom_temperature_c", -10.0, 40.0, "°C"))
             .transpose()?,
+        wall_extension_m: WALL_EXTENSION_M,
     })
 }
 

@@ -17,6 +17,9 @@ pub const COORDINATES: &str =
 /// What `frost_margin_m` means.
 pub const MARGIN_DEFINITION: &str = "the least distance between the frozen ground (the half-frozen line) and the protected zone below the footing: the soil below the base, widening outward and down from each base corner at protected_zone_angle_deg from the vertical; negative when frost enters the zone";
 
+/// What the heat-loss figures include.
+pub const HEAT_DEFINITION: &str = "ground heat loss = the heat from the indoor air through the floor and the wall/floor junction (and a basement's wall below ground): the indoor air's heat minus the 1D loss of the wall above ground (U_w of its layers, R_si 0.13 and R_se), which is reported on its own line; floor U is the floor-only model's steady coupling over B'/2 (no junction), and the junction's Psi_g = L2D - wall 1D part - floor part (ISO 13370 H_g = A U + P Psi_g); the model's wall reaches at least 1 m above the floor so that these do not depend on where the section is cut";
+
 /// What the reported periods are, by climate.
 pub fn periods(case: &Case) -> &'static str {
     match (&case.climate.source, &case.climate.design_winter) {
@@ -72,8 +75,6 @@ pub struct BasementSummary {
     pub wall_heat_loss_kwh: f64,
     /// Heat loss through the floor, kWh.
     pub floor_heat_loss_kwh: f64,
-    /// Heat loss through the wall's inside face above ground level, kWh.
-    pub wall_above_ground_heat_loss_kwh: f64,
     /// Below-ground wall loss / (z P Δθ), W/(m²·K).
     pub wall_u_value_w_per_m2k: f64,
     /// Floor loss / (A Δθ), W/(m²·K).
@@ -113,8 +114,28 @@ pub struct Summary {
     pub peak_heat_loss_w: f64,
     /// Mean heat loss per metre of exposed perimeter, W/m.
     pub heat_loss_per_perimeter_w_per_m: f64,
-    /// Floor U-value, W/(m²·K) (null for an unheated building).
+    /// Floor U-value without the wall/floor junction (steady, ISO 13370 definition), W/(m²·K)
+    /// (null for a basement: see its own values).
     pub floor_u_value_w_per_m2k: Option<f64>,
+    /// The wall/floor junction's linear thermal transmittance Ψ_g with the model's floor U as the
+    /// floor part, W/(m·K) (null for a basement). Use with `floor_u_value_w_per_m2k`.
+    pub junction_psi_w_per_mk: Option<f64>,
+    /// Ψ_g with the ISO 13370 floor U of the cross-check as the floor part, W/(m·K): use with
+    /// `cross_check.iso13370_u_value_w_per_m2k` (H_g = A U + P Ψ_g either way).
+    pub junction_psi_iso13370_basis_w_per_mk: Option<f64>,
+    /// Annual mean ground heat loss / (A Δθ): U with the junction as simulated, W/(m²·K) (null for
+    /// an unheated building).
+    pub ground_u_value_incl_junction_w_per_m2k: Option<f64>,
+    /// Mean 1D U-value of the stated foundation wall above the floor (or ground), W/(m²·K).
+    pub wall_above_ground_u_value_w_per_m2k: Option<f64>,
+    /// Height of that wall, m.
+    pub wall_above_ground_height_m: f64,
+    /// Its annual heat loss (not part of the ground heat loss), kWh.
+    pub wall_above_ground_heat_loss_kwh: f64,
+    /// The steady split into floor, junction and wall parts.
+    pub heat_split: crate::run::HeatSplit,
+    /// What the heat-loss figures include.
+    pub heat_loss_definition: String,
     /// Steady heat loss at the annual means, W.
     pub steady_state_heat_loss_w: f64,
     /// Deepest frost in open ground, m.
@@ -226,6 +247,18 @@ impl Summary {
             peak_heat_loss_w: h.peak_heat_loss_w,
             heat_loss_per_perimeter_w_per_m: h.heat_loss_per_perimeter_w_per_m,
             floor_u_value_w_per_m2k: h.floor_u_value_w_per_m2k,
+            junction_psi_w_per_mk: h.junction_psi_w_per_mk,
+            junction_psi_iso13370_basis_w_per_mk: case.basement.is_none().then(|| {
+                r.split.l2d_w_per_mk
+                    - r.split.wall_1d_w_per_mk
+                    - cc.iso13370_u_value_w_per_m2k * 0.5 * case.building.b_prime_m
+            }),
+            ground_u_value_incl_junction_w_per_m2k: h.ground_u_value_incl_junction_w_per_m2k,
+            wall_above_ground_u_value_w_per_m2k: h.wall_above_ground_u_value_w_per_m2k,
+            wall_above_ground_height_m: r.split.stated_wall_height_m,
+            wall_above_ground_heat_loss_kwh: h.wall_above_ground_heat_loss_kwh,
+            heat_split: r.split.clone(),
+            heat_loss_definition: HEAT_DEFINITION.into(),
             steady_state_heat_loss_w: r.steady_heat_loss_w,
             frost_depth_open_ground_m: h.frost_depth_open_ground_m,
             frost_depth_at_footing_face_m: h.frost_depth_at_footing_face_m,
@@ -303,10 +336,9 @@ fn basement_summary(case: &Case, r: &RunResult) -> Option<BasementSummary> {
         basement_floor_depth_m: b.floor_depth_m,
         wall_heat_loss_kwh: y.wall_heat_loss_kwh,
         floor_heat_loss_kwh: y.floor_heat_loss_kwh,
-        wall_above_ground_heat_loss_kwh: y.wall_above_ground_heat_loss_kwh,
         wall_u_value_w_per_m2k: v.wall_u_value_w_per_m2k,
         basement_floor_u_value_w_per_m2k: v.floor_u_value_w_per_m2k,
         effective_u_value_w_per_m2k: v.effective_u_value_w_per_m2k,
-        basement_note: "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported separately.".into(),
+        basement_note: "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported on its own line.".into(),
     })
 }

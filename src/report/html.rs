@@ -142,43 +142,63 @@ type Row = (&'static str, &'static str, String, String, &'static str);
 
 fn heat_rows(s: &Summary) -> Vec<Row> {
     let cc = &s.cross_check;
-    vec![
+    let opt = |v: Option<f64>, d: usize| f(v.unwrap_or(f64::NAN), d);
+    let mut rows: Vec<Row> = vec![
         (
-            "annual ground heat loss",
+            "annual ground heat loss (floor and junction)",
             "kWh",
             f(s.annual_heat_loss_kwh, 0),
             "–".into(),
             "",
         ),
         (
-            "mean heat loss",
+            "mean ground heat loss",
             "W",
             f(s.mean_heat_loss_w, 1),
-            f(cc.iso13370_mean_heat_loss_w, 1),
-            "ISO 13370 steady U × A × Δθ (excludes the wall/floor junction Ψ_g)",
-        ),
-        (
-            "peak heat loss (daily mean)",
-            "W",
-            f(s.peak_heat_loss_w, 1),
             "–".into(),
             "",
         ),
         (
-            "heat loss per metre of exposed perimeter",
+            "peak ground heat loss (daily mean)",
+            "W",
+            f(s.peak_heat_loss_w, 1),
+            "–".into(),
+            "the design winter's when there is one",
+        ),
+        (
+            "ground heat loss per metre of exposed perimeter",
             "W/m",
             f(s.heat_loss_per_perimeter_w_per_m, 2),
             "–".into(),
             "",
         ),
         (
-            "floor U-value",
+            "U-value with the junction, H_g/A",
             "W/(m²·K)",
-            f(s.floor_u_value_w_per_m2k.unwrap_or(f64::NAN), 3),
-            f(cc.iso13370_u_value_w_per_m2k, 3),
-            "ISO 13370 slab-on-ground with edge insulation",
+            opt(s.ground_u_value_incl_junction_w_per_m2k, 3),
+            "–".into(),
+            "simulated annual mean loss / (A Δθ)",
         ),
-    ]
+    ];
+    if s.basement.is_none() {
+        rows.push(("floor U-value (no junction)", "W/(m²·K)", opt(s.floor_u_value_w_per_m2k, 3), f(cc.iso13370_u_value_w_per_m2k, 3), "ISO 13370 slab-on-ground with edge insulation; model: floor-only steady coupling / (B′/2)"));
+        rows.push(("wall/floor junction Ψ_g", "W/(m·K)", opt(s.junction_psi_w_per_mk, 3), opt(s.junction_psi_iso13370_basis_w_per_mk, 3), "L2D − wall 1D part − floor part (ISO 10211 / ISO 14683 definition); model: with the model's floor U, published-method column: with the ISO 13370 U (use each Ψ_g with its own U)"));
+    }
+    rows.push((
+        "foundation wall above the floor: U-value (1D)",
+        "W/(m²·K)",
+        opt(s.wall_above_ground_u_value_w_per_m2k, 3),
+        "–".into(),
+        "its own line, not in the ground heat loss",
+    ));
+    rows.push((
+        "foundation wall above the floor: annual loss",
+        "kWh",
+        f(s.wall_above_ground_heat_loss_kwh, 1),
+        "–".into(),
+        "",
+    ));
+    rows
 }
 
 fn frost_rows(s: &Summary) -> Vec<Row> {

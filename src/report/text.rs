@@ -41,15 +41,11 @@ pub fn result_table(s: &Summary) -> String {
 
 fn heat_rows(s: &Summary) -> String {
     let c = &s.cross_check;
+    let nan = f64::NAN;
     let mut t =
-        String::from("\n  Heat loss to the ground                     model      ISO 13370\n");
+        String::from("\n  Heat loss to the ground (floor + junction)  model      ISO 13370\n");
     t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
-    t += &row(
-        "mean",
-        "W",
-        1,
-        &[s.mean_heat_loss_w, c.iso13370_mean_heat_loss_w],
-    );
+    t += &row("mean", "W", 1, &[s.mean_heat_loss_w]);
     let peak = if s.design_winter.is_some() {
         "peak (daily mean, design winter)"
     } else {
@@ -62,17 +58,49 @@ fn heat_rows(s: &Summary) -> String {
         2,
         &[s.heat_loss_per_perimeter_w_per_m],
     );
+    t += &row(
+        "U with the junction, H_g/A",
+        "W/(m²K)",
+        3,
+        &[s.ground_u_value_incl_junction_w_per_m2k.unwrap_or(nan)],
+    );
     if s.basement.is_none() {
         t += &row(
-            "floor U-value",
+            "floor U-value (no junction)",
             "W/(m²K)",
             3,
             &[
-                s.floor_u_value_w_per_m2k.unwrap_or(f64::NAN),
+                s.floor_u_value_w_per_m2k.unwrap_or(nan),
                 c.iso13370_u_value_w_per_m2k,
             ],
         );
+        t += &row(
+            "wall/floor junction Ψ_g",
+            "W/(mK)",
+            3,
+            &[
+                s.junction_psi_w_per_mk.unwrap_or(nan),
+                s.junction_psi_iso13370_basis_w_per_mk.unwrap_or(nan),
+            ],
+        );
+        t += "    (Ψ_g goes with the U above it: model U with model Ψ_g, ISO 13370 U with the ISO-basis Ψ_g)\n";
     }
+    t += &format!(
+        "\n  Foundation wall above {} ({:.2} m, 1D, not in the ground loss)\n",
+        if s.basement.is_some() {
+            "ground"
+        } else {
+            "the floor"
+        },
+        s.wall_above_ground_height_m
+    );
+    t += &row(
+        "U-value",
+        "W/(m²K)",
+        3,
+        &[s.wall_above_ground_u_value_w_per_m2k.unwrap_or(nan)],
+    );
+    t += &row("annual", "kWh", 0, &[s.wall_above_ground_heat_loss_kwh]);
     t
 }
 

@@ -4,7 +4,7 @@
 use super::forcing::{self, DayIn};
 use super::frost::FrostLines;
 use super::result::{Day, Field, Progress, Year};
-use super::{GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW};
+use super::{GROUP_FLOOR, GROUP_WALL_BELOW};
 use crate::analysis::frost_scalar;
 use crate::analysis::point_temperature;
 use crate::case::Case;
@@ -46,6 +46,9 @@ pub struct Driver<'a> {
     pub t: Vec<f64>,
     /// Where frost depths are measured.
     pub lines: FrostLines,
+    /// Σ U_w Δz of the model's wall above ground and of the stated wall, W/(m·K) (see
+    /// [`super::split`]).
+    pub wall_1d: (f64, f64),
     /// Simulated time, s.
     pub sim_time: f64,
     /// Time steps taken.
@@ -60,6 +63,9 @@ struct Sums {
     stored: f64,
     groups: [f64; 4],
     indoor: f64,
+    /// The 1D part of the model's wall above ground, and of the stated wall, J/m.
+    wall_model: f64,
+    wall_stated: f64,
 }
 
 impl Sums {
@@ -212,8 +218,8 @@ impl Driver<'_> {
             .reduce(f64::max)
     }
 
-    /// The steps of one day; returns the heat from the indoor air (J/m) and the mean air
-    /// temperature (°C).
+    /// The steps of one day; returns the ground heat loss (heat from the indoor air minus the 1D
+    /// part of the wall above ground, J/m) and the mean air temperature (°C).
     fn step_day(&mut self, day: &DayIn, sums: &mut Sums) -> Result<(f64, f64)> {
         let case = self.case;
         let cl = &case.climate;
@@ -239,8 +245,11 @@ impl Driver<'_> {
             let e = self.solver.step(&mut self.h, &zt, dt, self.sim_time)?;
             self.sim_time += dt;
             self.time_steps += 1;
-            day_in += e.from_zone[INDOOR];
+            let dtheta = (zt[INDOOR] - zt[OUTDOOR]) * dt;
+            day_in += e.from_zone[INDOOR] - self.wall_1d.0 * dtheta;
             sums.add(&e);
+            sums.wall_model += self.wall_1d.0 * dtheta;
+            sums.wall_stated += self.wall_1d.1 * dtheta;
         }
         self.net.temperatures(&self.h, &mut self.t);
         Ok((day_in, out_mean))
@@ -283,10 +292,10 @@ impl Driver<'_> {
         let to_kwh = |j: f64| j * perimeter / 3.6e6;
         let max = |f: fn(&Day) -> f64| days.iter().map(f).fold(0.0, f64::max);
         Year {
-            heat_loss_kwh: to_kwh(sums.indoor),
+            heat_loss_kwh: to_kwh(sums.indoor - sums.wall_model),
             floor_heat_loss_kwh: to_kwh(sums.groups[GROUP_FLOOR]),
             wall_heat_loss_kwh: to_kwh(sums.groups[GROUP_WALL_BELOW]),
-            wall_above_ground_heat_loss_kwh: to_kwh(sums.groups[GROUP_WALL_ABOVE]),
+            wall_above_ground_heat_loss_kwh: to_kwh(sums.wall_stated),
             max_frost_beside_wall_m: max(|d| d.frost_beside_wall_m),
             max_frost_open_m: max(|d| d.frost_open_m),
             max_frost_footing_m: max(|d| d.frost_footing_m),

@@ -15,9 +15,19 @@ pub struct Headline {
     pub peak_heat_loss_w: f64,
     /// Mean heat loss per metre of exposed perimeter, W/m.
     pub heat_loss_per_perimeter_w_per_m: f64,
-    /// Annual mean loss / (A (mean indoor − mean outdoor)), W/(m²·K); None when the mean
-    /// indoor and outdoor temperatures differ by less than 1 K (an unheated building).
+    /// Floor U-value without the wall/floor junction (steady, ISO 13370 definition), W/(m²·K);
+    /// None for a basement.
     pub floor_u_value_w_per_m2k: Option<f64>,
+    /// The wall/floor junction's linear thermal transmittance Ψ_g, W/(m·K); None for a basement.
+    pub junction_psi_w_per_mk: Option<f64>,
+    /// Annual mean ground heat loss / (A (mean indoor − mean outdoor)): the U-value with the
+    /// junction, H_g/A = U + P Ψ_g / A, over the year as simulated, W/(m²·K); None when the mean
+    /// indoor and outdoor temperatures differ by less than 1 K (an unheated building).
+    pub ground_u_value_incl_junction_w_per_m2k: Option<f64>,
+    /// Mean 1D U-value of the stated foundation wall above the floor (or ground), W/(m²·K).
+    pub wall_above_ground_u_value_w_per_m2k: Option<f64>,
+    /// Its annual heat loss, kWh.
+    pub wall_above_ground_heat_loss_kwh: f64,
     /// Deepest frost in open ground, m.
     pub frost_depth_open_ground_m: f64,
     /// Deepest frost just outside the footing's outer face, m.
@@ -66,8 +76,13 @@ pub fn headline(case: &Case, r: &RunResult) -> Headline {
         mean_heat_loss_w: mean_w,
         peak_heat_loss_w: peak,
         heat_loss_per_perimeter_w_per_m: mean_w / case.building.exposed_perimeter_m,
-        floor_u_value_w_per_m2k: (dtemp.abs() >= MIN_DELTA_T_K)
+        floor_u_value_w_per_m2k: r.split.floor_u_w_per_m2k,
+        junction_psi_w_per_mk: r.split.psi_g_w_per_mk,
+        ground_u_value_incl_junction_w_per_m2k: (dtemp.abs() >= MIN_DELTA_T_K)
             .then(|| mean_w / (case.building.floor_area_m2 * dtemp)),
+        wall_above_ground_u_value_w_per_m2k: (r.split.stated_wall_height_m > 0.0)
+            .then(|| r.split.stated_wall_1d_w_per_mk / r.split.stated_wall_height_m),
+        wall_above_ground_heat_loss_kwh: heat.wall_above_ground_heat_loss_kwh,
         frost_depth_open_ground_m: y.max_frost_open_m,
         frost_depth_at_footing_face_m: y.max_frost_face_m,
         frost_depth_under_footing_m: y.max_frost_footing_m,

@@ -12,11 +12,13 @@ pub mod frost;
 pub mod headline;
 pub mod result;
 pub mod spinup;
+pub mod split;
 pub mod steady;
 
 pub use frost::{frost_line_c, FrostLines, ProtectedZone};
 pub use headline::{basement_values, headline, BasementValues, Headline};
 pub use result::{Day, Field, Progress, RunResult, WinterResult, Year};
+pub use split::HeatSplit;
 pub use steady::{steady_flows, steady_heat_flow};
 
 use crate::case::Case;
@@ -119,6 +121,7 @@ fn run_here(
 ) -> Result<RunResult> {
     let start = std::time::Instant::now();
     let (section, mesh, net) = model(case);
+    let split = split::split(case, &mesh, &net)?;
     let mut drv = Driver {
         case,
         mesh: &mesh,
@@ -127,6 +130,7 @@ fn run_here(
         h: Vec::new(),
         t: Vec::new(),
         lines: FrostLines::new(&mesh, case),
+        wall_1d: (split.wall_1d_w_per_mk, split.stated_wall_1d_w_per_mk),
         sim_time: 0.0,
         time_steps: 0,
     };
@@ -166,6 +170,7 @@ fn run_here(
         coarse_spin_up_years,
         periodicity_heat_loss_kwh: spin.periodicity_kwh,
         normal,
+        split,
         winters,
         spin_up_converged: spin.converged,
         field: last.field,

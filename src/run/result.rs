@@ -14,7 +14,7 @@ pub struct Day {
     pub outdoor_c: f64,
     /// Indoor air temperature, °C.
     pub indoor_c: f64,
-    /// Daily mean ground heat loss of the whole building, W.
+    /// Daily mean ground heat loss of the whole building (floor and junction), W.
     pub heat_loss_w: f64,
     /// Frost depth in open ground at the far edge, end of day, m.
     pub frost_open_m: f64,
@@ -36,13 +36,16 @@ pub struct Day {
 /// One simulated year.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Year {
-    /// Ground heat loss of the whole building over the year, kWh.
+    /// Ground heat loss of the whole building over the year (floor and wall/floor junction, and a
+    /// basement's wall below ground: the heat from the indoor air minus the 1D part of the wall
+    /// above ground), kWh.
     pub heat_loss_kwh: f64,
     /// Of which through the floor, kWh.
     pub floor_heat_loss_kwh: f64,
     /// Of which through the wall's inside face below ground level, kWh.
     pub wall_heat_loss_kwh: f64,
-    /// Of which through the wall's inside face above ground level, kWh.
+    /// Loss through the stated foundation wall above the floor (or ground level), 1D, kWh (not
+    /// part of the ground heat loss).
     pub wall_above_ground_heat_loss_kwh: f64,
     /// Deepest frost within 0.5 m of the wall's exterior face, m.
     pub max_frost_beside_wall_m: f64,
@@ -76,6 +79,8 @@ pub struct RunResult {
     pub mesh: Mesh,
     /// Grid fields of every day of the reported year (°C, NaN for air), in `days` order.
     pub daily_fields: Array3<f32>,
+    /// The split of the section's heat loss into floor, junction and wall.
+    pub split: super::split::HeatSplit,
     /// The normal (periodic) year when a design winter was run after it: its days (annual and
     /// monthly heat loss come from it) and its index in `years`.
     pub normal: Option<(Vec<Day>, usize)>,
