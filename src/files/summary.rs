@@ -248,11 +248,11 @@ impl Summary {
             heat_loss_per_perimeter_w_per_m: h.heat_loss_per_perimeter_w_per_m,
             floor_u_value_w_per_m2k: h.floor_u_value_w_per_m2k,
             junction_psi_w_per_mk: h.junction_psi_w_per_mk,
-            junction_psi_iso13370_basis_w_per_mk: case.basement.is_none().then(|| {
+            junction_psi_iso13370_basis_w_per_mk: case.basement.is_none().then_some(
                 r.split.l2d_w_per_mk
                     - r.split.wall_1d_w_per_mk
-                    - cc.iso13370_u_value_w_per_m2k * 0.5 * case.building.b_prime_m
-            }),
+                    - cc.iso13370_u_value_w_per_m2k * 0.5 * case.building.b_prime_m,
+            ),
             ground_u_value_incl_junction_w_per_m2k: h.ground_u_value_incl_junction_w_per_m2k,
             wall_above_ground_u_value_w_per_m2k: h.wall_above_ground_u_value_w_per_m2k,
             wall_above_ground_height_m: r.split.stated_wall_height_m,
