@@ -137,18 +137,20 @@ impl Section {
                 mesh.cells[id] = self.cell_at(case, &m, mesh.grid.xc(i), mesh.grid.zc(j));
             }
         }
-        // Top edge: a solid cell in the top row faces the indoor air inside the wall, the outdoor
-        // air outside it, and the section cut (adiabatic) over the wall.
+        // Top edge: a solid cell in the top row faces the indoor air when the top is the floor
+        // (inside the wall), the outdoor air when the top is ground level (outside it), and is
+        // the section's cut (adiabatic) over the wall and the insulation on it.
         let w = case.wall.thickness_m;
+        let (at_floor, at_ground) = (self.z_top >= case.floor_z() - 1e-9, self.z_top >= -1e-9);
         for i in 0..nx {
             let xc = mesh.grid.xc(i);
             if matches!(mesh.cells[mesh.grid.id(i, 0)], Cell::Solid(_)) {
-                mesh.top[i] = if xc < -w {
+                mesh.top[i] = if xc < -w && at_floor {
                     EdgeBc::Zone {
                         zone: INDOOR,
                         r: indoor_floor_r(case),
                     }
-                } else if xc > 0.0 {
+                } else if xc > 0.0 && at_ground {
                     EdgeBc::Zone {
                         zone: OUTDOOR,
                         r: case.climate.r_se,

@@ -9,4 +9,5 @@ mod iso13370;
 mod plots;
 mod regression;
 mod sizing;
+mod trust;
 mod verification;

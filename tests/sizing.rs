@@ -23,6 +23,11 @@ fn size(case: &Path, out: &Path, extra: &[&str]) -> Value {
     args.extend(extra.iter().map(std::ffi::OsString::from));
     let (text, _) = run_written(&args);
     assert!(text.contains("licensed engineer"), "{text}");
+    let lower = text.to_lowercase();
+    assert!(
+        !lower.contains("from memory") && !lower.contains("verify"),
+        "{text}"
+    );
     let s: Value =
         serde_json::from_slice(&std::fs::read(out.join("sizing.json")).unwrap()).unwrap();
     assert!(text.contains("Corners are not computed"), "{text}");
@@ -92,6 +97,16 @@ fn sizing_example_and_its_chosen_design() {
     assert!(std::fs::read_to_string(out.join("sizing.csv"))
         .unwrap()
         .contains("frost_margin_m"));
+    // The chosen design's protected zone, read back from its saved field.
+    crate::trust::check_zone_from_saved_field(&out, margin);
+    // No hedged values in what a design note would carry (finding 6).
+    for f in ["sizing.json", "sizing.csv", "report.html", "summary.json"] {
+        let text = std::fs::read_to_string(out.join(f)).unwrap().to_lowercase();
+        assert!(
+            !text.contains("from memory") && !text.contains("verify"),
+            "{f} carries a hedged value"
+        );
+    }
 }
 
 /// Mild climate: open-ground frost shallower than the footing base → "no insulation needed",
