@@ -172,7 +172,7 @@ fn unheated_building_sizing_runs() {
             &format!("\"{}\"", csv.display()),
         );
     let src = src.replace(
-        "[[sizing.vary]]                  # first: the wing's outer end (m from the wall face)\ninsulation = 2\ndimension = \"width_m\"\nmin = 0.4\nmax = 1.6\nstep = 0.3\n\n",
+        "[[sizing.vary]]                  # first: the wing's outer end (m from the wall face)\ninsulation = 2\ndimension = \"width_m\"\nmin = 1.0\nmax = 2.2\nstep = 0.3\n\n",
         "",
     );
     let case = dir.join("unheated.toml");

@@ -52,6 +52,11 @@ pub struct SectionFile {
     pub field_day_of_year: usize,
     /// Days stored in `fields.i16` (in `daily.csv` order).
     pub days: usize,
+    /// The freezing interval [T_s, T_f] (°C) of each material, null for a material without water:
+    /// the frost scalar is the temperature clamped to it (`analysis::frost_scalar`).
+    pub freezing_intervals: Vec<Option<[f64; 2]>>,
+    /// Material of each grid cell (row-major, z outer), −1 for air.
+    pub cell_materials: Vec<i32>,
     /// Layout of `fields.i16`.
     pub fields_format: String,
 }
@@ -91,6 +96,21 @@ impl SectionFile {
             frost_line_c: crate::run::frost_line_c(case),
             field_day_of_year: r.field.day_of_year,
             days: r.daily_fields.shape()[0],
+            freezing_intervals: r
+                .mesh
+                .materials
+                .iter()
+                .map(|m| m.freezes().then(|| [m.t_solidus(), m.t_freeze]))
+                .collect(),
+            cell_materials: r
+                .mesh
+                .cells
+                .iter()
+                .map(|c| match c {
+                    crate::mesh::Cell::Solid(m) => *m as i32,
+                    crate::mesh::Cell::Zone(_) => -1,
+                })
+                .collect(),
             fields_format: format!(
                 "little-endian i16, hundredths of a degree C, {NO_VALUE} = no value (air); day-major in daily.csv order, \
                  cells row-major (z outer, x inner) over the grid of xe x ze"
@@ -101,6 +121,19 @@ impl SectionFile {
     /// Cells per day.
     pub fn cells(&self) -> usize {
         self.xe.len().saturating_sub(1) * self.ze.len().saturating_sub(1)
+    }
+
+    /// The frost scalar of cell `id` at temperature `t` (°C): `t` clamped to the cell material's
+    /// freezing interval (`analysis::frost_scalar`).
+    pub fn frost_scalar(&self, id: usize, t: f64) -> f64 {
+        let m = self.cell_materials.get(id).copied().unwrap_or(-1);
+        match usize::try_from(m)
+            .ok()
+            .and_then(|m| self.freezing_intervals.get(m))
+        {
+            Some(Some([lo, hi])) => t.clamp(*lo, *hi),
+            _ => t,
+        }
     }
 }
 
@@ -115,6 +148,14 @@ pub fn read_section(dir: &Path) -> Result<SectionFile> {
             dir,
             name,
             "grid edges xe, ze must be at least two increasing values",
+        ));
+    }
+    let n = s.freezing_intervals.len() as i32;
+    if s.cell_materials.len() != s.cells() || s.cell_materials.iter().any(|&m| m < -1 || m >= n) {
+        return Err(bad_file(
+            dir,
+            name,
+            "cell_materials must give a material (or −1) for every grid cell",
         ));
     }
     Ok(s)

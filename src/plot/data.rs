@@ -35,6 +35,8 @@ pub struct PlotData {
     pub fields: Array3<f64>,
     /// Index (into `days`) of the default field day.
     pub field_day_index: usize,
+    /// The section file (freezing intervals and cell materials for the frost scalar).
+    pub section: files::SectionFile,
 }
 
 impl PlotData {
@@ -72,6 +74,7 @@ impl PlotData {
             .position(|d| d.day_of_year == sec.field_day_of_year)
             .unwrap_or(0);
         Ok(PlotData {
+            section: sec.clone(),
             case_name: sec.case_name,
             xe: sec.xe,
             ze: sec.ze,
@@ -91,6 +94,22 @@ impl PlotData {
     /// The field of day index `k` (nz × nx), °C.
     pub fn field(&self, k: usize) -> ArrayView2<'_, f64> {
         self.fields.index_axis(Axis(0), k)
+    }
+
+    /// The frost scalar of day index `k` (row-major cells, NaN for air): the frost line is its
+    /// `frost_line_c` isoline, as in the run.
+    pub fn frost_field(&self, k: usize) -> Vec<f64> {
+        self.field(k)
+            .iter()
+            .enumerate()
+            .map(|(id, &t)| {
+                if t.is_finite() {
+                    self.section.frost_scalar(id, t)
+                } else {
+                    f64::NAN
+                }
+            })
+            .collect()
     }
 
     /// Index of day of year `doy` in the saved days.

@@ -299,7 +299,7 @@ fn draw_field<DB: DrawingBackend>(
             RGBColor(90, 60, 30).stroke_width(2),
         )))
         .map_err(out_err)?;
-    let frost = isolines(&xs, &zs, field, d.frost_line_c);
+    let frost = isolines(&xs, &zs, &d.frost_field(day), d.frost_line_c);
     for pts in frost.iter().flat_map(|l| runs_inside(l, &inside)) {
         if pts.len() >= 2 {
             chart
