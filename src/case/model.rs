@@ -222,7 +222,8 @@ pub struct Climate {
     pub n_thawing: f64,
     /// Snow depth per calendar month, m. Default none.
     pub snow_depth_m: [f64; 12],
-    /// Snow conductivity, W/(m·K). Default 0.2 (settled snow, common practice).
+    /// Snow conductivity, W/(m·K). Default 0.2 (Sturm et al. 1997's regression at about
+    /// 365 kg/m³: dense snow, conservative for frost).
     pub snow_k: f64,
     /// Annual mean air temperature of the normal climate, °C.
     pub mean_c: f64,

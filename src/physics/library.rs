@@ -1,8 +1,8 @@
 //! Named construction materials and the bundled soil library.
 //!
 //! Construction materials (design values; ρc from density × specific heat):
-//! - `concrete`: λ 2.0 W/(m·K), ρ 2400 kg/m³, c 1000 J/(kg·K) (ISO 10456:2007 Table 3, dense
-//!   concrete 2400 kg/m³; value from memory, to be checked against the printed table).
+//! - `concrete`: λ 2.0 W/(m·K), ρ 2400 kg/m³, c 1000 J/(kg·K) (ISO 10456 high-density concrete
+//!   as tabulated in EDF's BuildSysPro material library; secondary).
 //! - `xps`: λ 0.032 W/(m·K), long-term moist in-ground design value of extruded polystyrene
 //!   (ASCE/SEI 32-01, R 4.5 per inch), ρc 0.05 MJ/(m³·K) (35 kg/m³ × 1450 J/(kg·K), typical).
 //! - `eps`: λ 0.045 W/(m·K), EPS Type IX in-ground design value (ASCE/SEI 32-01, R 3.2 per inch),
