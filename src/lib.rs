@@ -30,6 +30,7 @@ pub mod estimate;
 pub mod files;
 pub mod geometry;
 pub mod mesh;
+pub mod mesh3;
 pub mod methods;
 pub mod numerics;
 pub mod physics;

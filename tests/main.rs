@@ -11,3 +11,4 @@ mod regression;
 mod sizing;
 mod trust;
 mod verification;
+mod verification3d;

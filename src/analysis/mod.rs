@@ -61,6 +61,7 @@ pub fn point_temperature(
             Side::Right => (g.xe[i + 1], g.xe[i + 1], g.ze[j], g.ze[j + 1]),
             Side::Top => (g.xe[i], g.xe[i + 1], g.ze[j], g.ze[j]),
             Side::Bottom => (g.xe[i], g.xe[i + 1], g.ze[j + 1], g.ze[j + 1]),
+            Side::Front | Side::Back => continue,
         };
         if x >= fx0 - eps && x <= fx1 + eps && z >= fz0 - eps && z <= fz1 + eps {
             let rc = bf.d / k_of(bf.p);

@@ -26,6 +26,7 @@
 //! K(T) T = b with conductivities updated by Picard iteration until max |ΔT| < `tol_k`.
 pub mod linsys;
 pub mod network;
+pub mod pcg;
 
 use crate::error::{Error, Result};
 use linsys::SpdSolver;
@@ -52,6 +53,39 @@ pub struct SolverParams {
     /// Default true (false for A/B benchmarks through `simulate::run_with`; results agree to
     /// rounding either way).
     pub split_halves: bool,
+    /// The linear solver: sparse Cholesky (2D sections) or preconditioned conjugate gradients
+    /// (3D models). Default Cholesky.
+    pub linear: Linear,
+}
+
+/// Which linear solver a [`Solver`] uses.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Linear {
+    /// Sparse Cholesky (faer) with a geometric nested-dissection order of an nx × nz grid.
+    Cholesky,
+    /// Conjugate gradients with a modified incomplete-Cholesky preconditioner.
+    Pcg(pcg::PcgParams),
+}
+
+/// A linear solver of either kind.
+enum Lin {
+    Direct(Box<SpdSolver>),
+    Iterative(Box<pcg::PcgSolver>),
+}
+
+impl Lin {
+    fn solve(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
+        match self {
+            Lin::Direct(s) => s.solve(vals, rhs),
+            Lin::Iterative(s) => s.solve(vals, rhs),
+        }
+    }
+    fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
+        match self {
+            Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
+            Lin::Iterative(s) => s.solve(vals, rhs),
+        }
+    }
 }
 
 impl Default for SolverParams {
@@ -63,6 +97,7 @@ impl Default for SolverParams {
             max_picard: 100,
             near_factor_cells: 4,
             split_halves: true,
+            linear: Linear::Cholesky,
         }
     }
 }
@@ -86,6 +121,8 @@ pub struct SolverStats {
     pub cg_iterations: usize,
     /// Step halvings.
     pub halvings: usize,
+    /// Largest iteration count of one conjugate-gradient solve (iterative solver).
+    pub max_cg_iterations: usize,
     /// Largest temperature-equivalent residual accepted, K.
     pub max_residual_k: f64,
 }
@@ -127,7 +164,7 @@ pub struct Solver<'a> {
     pub net: &'a Network,
     /// Parameters.
     pub params: SolverParams,
-    lin: SpdSolver,
+    lin: Lin,
     k: Vec<f64>,
     gf: Vec<f64>,
     gb: Vec<f64>,
@@ -149,14 +186,24 @@ pub struct Solver<'a> {
 impl<'a> Solver<'a> {
     /// Set up (symbolic factorisation) for `net`.
     pub fn new(net: &'a Network, params: SolverParams) -> Result<Self> {
-        let (order, a, b) = linsys::nested_dissection_split(net.nx, net.nz, &net.unk_of);
-        let lin = SpdSolver::new(
-            net.n,
-            net.col_ptr.clone(),
-            net.row_idx.clone(),
-            Some(&order),
-            params.split_halves.then_some((a, b)),
-        )?;
+        let lin = match params.linear {
+            Linear::Cholesky => {
+                let (order, a, b) = linsys::nested_dissection_split(net.nx, net.nz, &net.unk_of);
+                Lin::Direct(Box::new(SpdSolver::new(
+                    net.n,
+                    net.col_ptr.clone(),
+                    net.row_idx.clone(),
+                    Some(&order),
+                    params.split_halves.then_some((a, b)),
+                )?))
+            }
+            Linear::Pcg(p) => Lin::Iterative(Box::new(pcg::PcgSolver::new(
+                net.n,
+                net.col_ptr.clone(),
+                net.row_idx.clone(),
+                p,
+            ))),
+        };
         Ok(Solver {
             lin,
             k: vec![0.0; net.n],
@@ -197,10 +244,20 @@ impl<'a> Solver<'a> {
     /// Work counters so far.
     pub fn stats(&self) -> SolverStats {
         let mut s = self.stats;
-        s.factorizations = self.lin.factorizations;
-        s.solves = self.lin.solves;
-        s.near_factor_solves = self.lin.near_solves;
-        s.cg_iterations = self.lin.cg_iterations;
+        match &self.lin {
+            Lin::Direct(l) => {
+                s.factorizations = l.factorizations;
+                s.solves = l.solves;
+                s.near_factor_solves = l.near_solves;
+                s.cg_iterations = l.cg_iterations;
+            }
+            Lin::Iterative(l) => {
+                s.factorizations = l.setups;
+                s.solves = l.solves;
+                s.cg_iterations = l.iterations;
+                s.max_cg_iterations = l.max_iterations;
+            }
+        }
         s
     }
 

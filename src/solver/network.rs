@@ -34,6 +34,10 @@ pub enum Side {
     Top,
     /// Towards larger z.
     Bottom,
+    /// Towards smaller y (3D models).
+    Front,
+    /// Towards larger y (3D models).
+    Back,
 }
 
 /// A face between unknown `p` and a zone.
@@ -73,6 +77,8 @@ pub struct Network {
     pub n_zones: usize,
     /// Grid columns.
     pub nx: usize,
+    /// Grid cells along y (1 for a 2D section).
+    pub ny: usize,
     /// Grid rows.
     pub nz: usize,
     /// Grid cell id of each unknown.
@@ -135,6 +141,7 @@ impl Network {
             n,
             n_zones: mesh.zones.len(),
             nx,
+            ny: 1,
             nz,
             cell_of,
             unk_of,
@@ -191,6 +198,147 @@ impl Network {
     }
 }
 
+impl Network {
+    /// Build the network of a 3D mesh: unknowns in id order, a face between every pair of solid
+    /// neighbours (areas Δy Δz, Δx Δz, Δx Δy), a boundary face towards every zone cell (surface
+    /// resistance by the face's orientation) and towards the bottom zone.
+    pub fn new3(mesh: &crate::mesh3::Mesh3) -> Self {
+        use crate::mesh3::Grid3;
+        let g = &mesh.grid;
+        let (nx, ny, nz) = (g.nx(), g.ny(), g.nz());
+        let mut unk_of = vec![usize::MAX; g.len()];
+        let (mut cell_of, mut volume, mut mat) = (Vec::new(), Vec::new(), Vec::new());
+        for (id, c) in mesh.cells.iter().enumerate() {
+            if let Cell::Solid(m) = c {
+                let (i, j, k) = g.ijk(id);
+                unk_of[id] = cell_of.len();
+                cell_of.push(id);
+                volume.push(
+                    (g.xe[i + 1] - g.xe[i]) * (g.ye[j + 1] - g.ye[j]) * (g.ze[k + 1] - g.ze[k]),
+                );
+                mat.push(*m);
+            }
+        }
+        let half = |e: &[f64], i: usize| 0.5 * (e[i + 1] - e[i]);
+        let len = |e: &[f64], i: usize| e[i + 1] - e[i];
+        let (mut faces, mut bfaces) = (Vec::new(), Vec::new());
+        for (p, &id) in cell_of.iter().enumerate() {
+            let (i, j, k) = g.ijk(id);
+            // (neighbour, half-widths (p, q), area, side, face normal vertical)
+            let mut sides: Vec<(Option<usize>, f64, f64, f64, Side)> = Vec::with_capacity(6);
+            let ax = len(&g.ye, j) * len(&g.ze, k);
+            let ay = len(&g.xe, i) * len(&g.ze, k);
+            let az = len(&g.xe, i) * len(&g.ye, j);
+            sides.push((
+                (i + 1 < nx).then(|| g.id(i + 1, j, k)),
+                half(&g.xe, i),
+                if i + 1 < nx { half(&g.xe, i + 1) } else { 0.0 },
+                ax,
+                Side::Right,
+            ));
+            sides.push((
+                i.checked_sub(1).map(|a| g.id(a, j, k)),
+                half(&g.xe, i),
+                0.0,
+                ax,
+                Side::Left,
+            ));
+            sides.push((
+                (j + 1 < ny).then(|| g.id(i, j + 1, k)),
+                half(&g.ye, j),
+                if j + 1 < ny { half(&g.ye, j + 1) } else { 0.0 },
+                ay,
+                Side::Back,
+            ));
+            sides.push((
+                j.checked_sub(1).map(|b| g.id(i, b, k)),
+                half(&g.ye, j),
+                0.0,
+                ay,
+                Side::Front,
+            ));
+            sides.push((
+                (k + 1 < nz).then(|| g.id(i, j, k + 1)),
+                half(&g.ze, k),
+                if k + 1 < nz { half(&g.ze, k + 1) } else { 0.0 },
+                az,
+                Side::Bottom,
+            ));
+            sides.push((
+                k.checked_sub(1).map(|c| g.id(i, j, c)),
+                half(&g.ze, k),
+                0.0,
+                az,
+                Side::Top,
+            ));
+            for (nb, dp, dq, area, side) in sides {
+                let forward = matches!(side, Side::Right | Side::Back | Side::Bottom);
+                match nb.map(|q| (q, mesh.cells[q])) {
+                    Some((q, Cell::Solid(_))) if forward => faces.push(Face {
+                        p,
+                        q: unk_of[q],
+                        dp,
+                        dq,
+                        area,
+                    }),
+                    Some((_, Cell::Solid(_))) => {}
+                    Some((_, Cell::Zone(z))) => {
+                        let zone = &mesh.zones[z];
+                        let r = if matches!(side, Side::Top | Side::Bottom) {
+                            zone.r_horizontal
+                        } else {
+                            zone.r_vertical
+                        };
+                        bfaces.push(BFace {
+                            p,
+                            d: dp,
+                            area,
+                            r,
+                            zone: z,
+                            side,
+                            group: 0,
+                        });
+                    }
+                    None => {
+                        if let (Side::Bottom, Some((zone, r))) = (side, mesh.bottom) {
+                            bfaces.push(BFace {
+                                p,
+                                d: dp,
+                                area,
+                                r,
+                                zone,
+                                side,
+                                group: 0,
+                            });
+                        }
+                    }
+                }
+            }
+        }
+        let _ = Grid3::centre;
+        let n = cell_of.len();
+        let (col_ptr, row_idx, diag_slot, face_slot) = lower_pattern(n, &faces);
+        Network {
+            n,
+            n_zones: mesh.zones.len(),
+            nx,
+            ny,
+            nz,
+            cell_of,
+            unk_of,
+            volume,
+            mat,
+            materials: mesh.materials.clone(),
+            faces,
+            bfaces,
+            col_ptr,
+            row_idx,
+            diag_slot,
+            face_slot,
+        }
+    }
+}
+
 /// What lies across one side of an unknown's cell.
 enum Link {
     /// Another unknown (added from the cell on its left or above).
@@ -217,6 +365,7 @@ fn neighbour(mesh: &Mesh, unk_of: &[usize], p: usize, (i, j): (usize, usize), si
         Side::Left => i.checked_sub(1).map(|a| (a, j)),
         Side::Bottom => (j + 1 < nz).then(|| (i, j + 1)),
         Side::Top => j.checked_sub(1).map(|b| (i, b)),
+        Side::Front | Side::Back => return Link::None,
     };
     let bface = |zone: usize, r: f64| {
         Link::Boundary(BFace {
@@ -261,6 +410,7 @@ fn neighbour(mesh: &Mesh, unk_of: &[usize], p: usize, (i, j): (usize, usize), si
                 Side::Left => mesh.left[j],
                 Side::Bottom => mesh.bottom[i],
                 Side::Top => mesh.top[i],
+                Side::Front | Side::Back => EdgeBc::Adiabatic,
             };
             match edge {
                 EdgeBc::Zone { zone, r } => bface(zone, r),
