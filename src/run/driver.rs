@@ -2,28 +2,51 @@
 //! recording the daily heat loss, frost depths, probe temperatures and fields of a period (a year
 //! or a season), with the energy balance of every step.
 use super::forcing::{self, DayIn};
-use super::frost::FrostLines;
-use super::result::{Day, Field, Progress, Year};
+use super::frost::FrostMeasures;
+use super::result::{Day, Progress, Year};
 use super::{GROUP_FLOOR, GROUP_WALL_BELOW};
 use crate::analysis::frost_scalar;
-use crate::analysis::point_temperature;
 use crate::case::Case;
 use crate::error::{Error, InputKind, Result};
 use crate::geometry::{INDOOR, OUTDOOR};
-use crate::mesh::Mesh;
 use crate::solver::{Network, Solver, SolverParams, StepEnergy};
-use ndarray::{Array2, Array3};
+
+/// What a model (a 2D section or a 3D building) observes of its state each day.
+pub trait Observer {
+    /// What the observer keeps of a period for the outputs (fields, maps, profiles).
+    type Kept;
+    /// The frost-line temperature, °C.
+    fn t_line(&self) -> f64;
+    /// The day's frost measures of the state `t` (°C of the unknowns); a 3D model gives its worst
+    /// point and may accumulate more.
+    fn measure(&mut self, net: &Network, t: &[f64]) -> FrostMeasures;
+    /// Probe temperatures (°C) for the zone temperatures `zone_t`.
+    fn probes(&self, net: &Network, t: &[f64], zone_t: &[f64]) -> Vec<f64>;
+    /// z of the bottom face of unknown `p`'s cell (m), and whether it lies in the grid's bottom
+    /// layer.
+    fn cell_bottom(&self, net: &Network, p: usize) -> (f64, bool);
+    /// Day `d` of `days` is over; `design_day` tells whether it is the least-margin day so far.
+    fn keep(
+        &mut self,
+        d: usize,
+        days: usize,
+        net: &Network,
+        t: &[f64],
+        design_day: bool,
+        doy: usize,
+    );
+    /// The period is over: what was kept, and a fresh start for the next period.
+    fn finish(&mut self) -> Self::Kept;
+}
 
 /// The records of one simulated period (a year or a season).
-pub struct Period {
+pub struct Period<K> {
     /// Every day.
     pub days: Vec<Day>,
     /// Probe temperatures per day (probe-major), °C.
     pub probes: Vec<Vec<f64>>,
-    /// The field of every day (days × nz × nx), °C, NaN for air.
-    pub fields: Array3<f32>,
-    /// The design day's field.
-    pub field: Field,
+    /// What the observer kept.
+    pub kept: K,
     /// The period's totals.
     pub year: Year,
     /// The deepest soil that stayed frozen on every day of the period, m (None: all thawed).
@@ -31,11 +54,9 @@ pub struct Period {
 }
 
 /// The state and fixed data of a run.
-pub struct Driver<'a> {
+pub struct Driver<'a, O: Observer> {
     /// The case.
     pub case: &'a Case,
-    /// Its mesh.
-    pub mesh: &'a Mesh,
     /// Its network.
     pub net: &'a Network,
     /// The solver.
@@ -44,11 +65,14 @@ pub struct Driver<'a> {
     pub h: Vec<f64>,
     /// Temperature of each unknown, °C.
     pub t: Vec<f64>,
-    /// Where frost depths are measured.
-    pub lines: FrostLines,
-    /// Σ U_w Δz of the model's wall above ground and of the stated wall, W/(m·K) (see
-    /// [`super::split`]).
+    /// What the model observes each day.
+    pub obs: O,
+    /// Σ U_w Δz of the model's wall above ground and of the stated wall, W/K per unit of the
+    /// model (see [`super::split`]).
     pub wall_1d: (f64, f64),
+    /// Whole-building figures per unit of the model's flows: the exposed perimeter for a 2D
+    /// section (per metre), 4 for a quarter of a building.
+    pub scale: f64,
     /// Simulated time, s.
     pub sim_time: f64,
     /// Time steps taken.
@@ -84,14 +108,7 @@ impl Sums {
 /// (a section at equilibrium) the relative error is residual / 1 kJ.
 pub const ENERGY_FLOOR_J_PER_M: f64 = 1e3;
 
-/// The design day while a period runs: the day of the least frost margin (the first of equals).
-#[derive(Default)]
-struct DesignDay {
-    best: Option<(f64, usize)>,
-    field: Option<Field>,
-}
-
-impl Driver<'_> {
+impl<O: Observer> Driver<'_, O> {
     /// Simulate `days` in steps of `step_days` days with `params`, each with the forcing averaged
     /// over it (air: the sinusoid's exact mean, or the mean of the measured days; indoor: the
     /// mean of the days' monthly values; snow: that of the step's middle day), recording nothing.
@@ -140,24 +157,21 @@ impl Driver<'_> {
         days: &[DayIn],
         progress: &mut dyn FnMut(Progress),
         (year, max_years): (usize, usize),
-    ) -> Result<Period> {
-        let (nx, nz) = (self.mesh.grid.nx(), self.mesh.grid.nz());
+    ) -> Result<Period<O::Kept>> {
         let mut days_out = Vec::with_capacity(days.len());
         let mut probes = vec![Vec::with_capacity(days.len()); self.case.probes.len()];
-        let mut fields = Array3::<f32>::zeros((days.len(), nz, nx));
         let mut sums = Sums::default();
-        let mut design = DesignDay::default();
+        let mut best = f64::INFINITY;
         let mut thawed = vec![false; self.net.n];
         for (d, day) in days.iter().enumerate() {
             let (day_in, out_mean) = self.step_day(day, &mut sums)?;
             let rec = self.record_day(day, day_in, out_mean, &mut probes);
             self.check_bottom(year, day)?;
             self.mark_thawed(&mut thawed);
-            let grid = self.grid_field();
-            design.offer(d, &rec, &grid);
-            fields
-                .index_axis_mut(ndarray::Axis(0), d)
-                .assign(&grid.mapv(|v| v as f32));
+            let design_day = rec.frost_margin_m < best;
+            best = best.min(rec.frost_margin_m);
+            self.obs
+                .keep(d, days.len(), self.net, &self.t, design_day, day.doy);
             days_out.push(rec);
             progress(Progress {
                 year,
@@ -165,35 +179,27 @@ impl Driver<'_> {
                 max_years,
             });
         }
-        let field = design.field.take().unwrap_or_else(|| Field {
-            day_of_year: 0,
-            t: self.grid_field(),
-        });
         let year = self.totals(&days_out, &sums);
         Ok(Period {
             days: days_out,
             probes,
-            fields,
-            field,
+            kept: self.obs.finish(),
             year,
             never_thawed_m: self.never_thawed(&thawed),
         })
     }
 
-    /// Frozen ground in the bottom row of cells: the frost reached the domain's bottom.
+    /// Frozen ground in the grid's bottom layer: the frost reached the domain's bottom.
     fn check_bottom(&self, year: usize, day: &DayIn) -> Result<()> {
-        let g = &self.mesh.grid;
-        let j = g.nz() - 1;
-        let frozen = (0..g.nx()).any(|i| {
-            let p = self.net.unk_of[g.id(i, j)];
-            p != usize::MAX
-                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p])
-                    <= self.lines.t_line
+        let t_line = self.obs.t_line();
+        let frozen = (0..self.net.n).find(|&p| {
+            self.obs.cell_bottom(self.net, p).1
+                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p]) <= t_line
         });
-        if frozen {
+        if let Some(p) = frozen {
             return Err(Error::in_file(&self.case.file, "simulation.domain_depth_m", InputKind::OutOfScope, format!(
                 "frost reached the bottom of the domain (z = {:.1} m) on day {} of simulated year {}: the ground freezes deeper than the model covers (permafrost, or a climate too cold for a seasonal-frost model); allowed: frost above the domain bottom",
-                g.ze[g.nz()], day.doy, year + 1)));
+                self.obs.cell_bottom(self.net, p).0, day.doy, year + 1)));
         }
         Ok(())
     }
@@ -202,7 +208,7 @@ impl Driver<'_> {
     fn mark_thawed(&self, thawed: &mut [bool]) {
         for (p, th) in thawed.iter_mut().enumerate() {
             if !*th
-                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p]) > self.lines.t_line
+                && frost_scalar(&self.net.materials[self.net.mat[p]], self.t[p]) > self.obs.t_line()
             {
                 *th = true;
             }
@@ -211,10 +217,9 @@ impl Driver<'_> {
 
     /// The deepest freezing material that stayed frozen on every day, m.
     fn never_thawed(&self, thawed: &[bool]) -> Option<f64> {
-        let g = &self.mesh.grid;
         (0..self.net.n)
             .filter(|&p| !thawed[p] && self.net.materials[self.net.mat[p]].freezes())
-            .map(|p| g.ze[self.net.cell_of[p] / g.nx() + 1])
+            .map(|p| self.obs.cell_bottom(self.net, p).0)
             .reduce(f64::max)
     }
 
@@ -256,22 +261,30 @@ impl Driver<'_> {
     }
 
     /// The day's record (frost depths at the end of the day) and its probe temperatures.
-    fn record_day(&self, day: &DayIn, day_in: f64, out_mean: f64, probes: &mut [Vec<f64>]) -> Day {
+    fn record_day(
+        &mut self,
+        day: &DayIn,
+        day_in: f64,
+        out_mean: f64,
+        probes: &mut [Vec<f64>],
+    ) -> Day {
         let case = self.case;
-        let f = self.lines.measure(self.mesh, self.net, &self.t);
+        let f = self.obs.measure(self.net, &self.t);
         let indoor = forcing::indoor_c(case, day.month, out_mean);
         let zt = forcing::zone_temps(case, indoor, forcing::surface(&case.climate, out_mean));
-        for (k, p) in case.probes.iter().enumerate() {
-            probes[k].push(
-                point_temperature(self.mesh, self.net, &self.t, &zt, p.x_m, p.z_m)
-                    .unwrap_or(f64::NAN),
-            );
+        for (k, v) in self
+            .obs
+            .probes(self.net, &self.t, &zt)
+            .into_iter()
+            .enumerate()
+        {
+            probes[k].push(v);
         }
         Day {
             day_of_year: day.doy,
             outdoor_c: out_mean,
             indoor_c: indoor,
-            heat_loss_w: day_in / 86400.0 * case.building.exposed_perimeter_m,
+            heat_loss_w: day_in / 86400.0 * self.scale,
             frost_open_m: f.open_m,
             frost_face_m: f.at_face_m,
             frost_footing_m: f.under_footing_m,
@@ -281,15 +294,10 @@ impl Driver<'_> {
         }
     }
 
-    /// The current temperatures on the grid (nz × nx), NaN for air.
-    pub fn grid_field(&self) -> Array2<f64> {
-        super::grid_field(self.mesh, self.net, &self.t)
-    }
-
     /// The period's totals (whole building, kWh) and its energy balance.
     fn totals(&self, days: &[Day], sums: &Sums) -> Year {
-        let perimeter = self.case.building.exposed_perimeter_m;
-        let to_kwh = |j: f64| j * perimeter / 3.6e6;
+        let scale = self.scale;
+        let to_kwh = |j: f64| j * scale / 3.6e6;
         let max = |f: fn(&Day) -> f64| days.iter().map(f).fold(0.0, f64::max);
         Year {
             heat_loss_kwh: to_kwh(sums.indoor - sums.wall_model),
@@ -306,19 +314,6 @@ impl Driver<'_> {
                 .fold(f64::INFINITY, f64::min),
             energy_balance_error: (sums.from_zones - sums.stored)
                 / sums.boundary_abs.max(ENERGY_FLOOR_J_PER_M),
-        }
-    }
-}
-
-impl DesignDay {
-    /// Keep day `d`'s field if its frost margin is the least so far.
-    fn offer(&mut self, d: usize, rec: &Day, grid: &Array2<f64>) {
-        if self.best.is_none_or(|(m, _)| rec.frost_margin_m < m) {
-            self.best = Some((rec.frost_margin_m, d));
-            self.field = Some(Field {
-                day_of_year: rec.day_of_year,
-                t: grid.clone(),
-            });
         }
     }
 }

@@ -11,6 +11,7 @@ pub mod forcing;
 pub mod frost;
 pub mod headline;
 pub mod result;
+pub mod section2;
 pub mod spinup;
 pub mod split;
 pub mod steady;
@@ -29,6 +30,7 @@ use crate::solver::network::Side;
 use crate::solver::{Network, Solver, SolverParams};
 use driver::Driver;
 use ndarray::Array2;
+use section2::Section2;
 
 /// Boundary-face reporting group: the indoor faces of the floor.
 pub const GROUP_FLOOR: usize = 1;
@@ -124,62 +126,37 @@ fn run_here(
     let split = split::split(case, &mesh, &net)?;
     let mut drv = Driver {
         case,
-        mesh: &mesh,
         net: &net,
         solver: Solver::new(&net, opts.solver)?,
         h: Vec::new(),
         t: Vec::new(),
-        lines: FrostLines::new(&mesh, case),
+        obs: Section2::new(&mesh, case),
         wall_1d: (split.wall_1d_w_per_mk, split.stated_wall_1d_w_per_mk),
+        scale: case.building.exposed_perimeter_m,
         sim_time: 0.0,
         time_steps: 0,
     };
-    let steady_heat_loss_w = spinup::start(&mut drv)?;
-    let sched = forcing::schedule(case);
-    let coarse_spin_up_years = spinup::coarse_year(&mut drv, &sched.spin, opts);
-    let total = case.simulation.max_spin_up_years
-        + 1
-        + sched.seasons.len()
-        + usize::from(sched.design.is_some());
-    let spin = spinup::spin_up(&mut drv, &sched.spin, progress, total)?;
-    let mut years = spin.years;
-    let n = years.len();
-    let mut normal = None;
-    let (last, reported, spin_up_years, winters) = if let Some(design) = &sched.design {
-        // The design winter, once, from the periodic state of the normal climate.
-        let p = drv.period(design, progress, (n, total))?;
-        years.push(p.year.clone());
-        normal = Some((spin.last.days, n - 1));
-        (p, n, n, Vec::new())
-    } else if sched.seasons.is_empty() {
-        // The reported year is the last spin-up year.
-        (spin.last, n - 1, n - 1, Vec::new())
-    } else {
-        // The spin-up ends with the first season; the series then runs through from its start.
-        let (winters, season_years, worst, k) =
-            spinup::seasons(&mut drv, &sched.seasons, progress, (n, total))?;
-        years.extend(season_years);
-        (worst, n + k, n, winters)
-    };
+    let sim = spinup::simulate(&mut drv, opts, progress)?;
+    let (last, stats, time_steps) = (sim.last, drv.solver.stats(), drv.time_steps);
     Ok(RunResult {
         days: last.days,
         probes: last.probes,
-        years,
-        reported,
-        spin_up_years,
-        coarse_spin_up_years,
-        periodicity_heat_loss_kwh: spin.periodicity_kwh,
-        normal,
+        years: sim.years,
+        reported: sim.reported,
+        spin_up_years: sim.spin_up_years,
+        coarse_spin_up_years: sim.coarse_spin_up_years,
+        periodicity_heat_loss_kwh: sim.periodicity_kwh,
+        normal: sim.normal,
         split,
-        winters,
-        spin_up_converged: spin.converged,
-        field: last.field,
-        steady_heat_loss_w,
-        stats: drv.solver.stats(),
-        time_steps: drv.time_steps,
+        winters: sim.winters,
+        spin_up_converged: sim.converged,
+        field: last.kept.1,
+        steady_heat_loss_w: sim.steady_heat_loss_w,
+        stats,
+        time_steps,
         wall_time_s: start.elapsed().as_secs_f64(),
         mesh: mesh.clone(),
         section,
-        daily_fields: last.fields,
+        daily_fields: last.kept.0,
     })
 }

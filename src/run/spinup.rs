@@ -2,7 +2,7 @@
 //! lowered by the thermal offset of freezing ground), one cheap spin-up year in steps of several
 //! days, then design years in daily steps until consecutive years agree (or, for a measured
 //! series, its first season and then every season in order).
-use super::driver::{Driver, Period};
+use super::driver::{Driver, Observer, Period};
 use super::forcing::{self, DayIn};
 use super::result::{Progress, WinterResult, Year};
 use super::{RunOptions, SPIN_UP_FROST_TOL_M, SPIN_UP_HEAT_TOL};
@@ -36,7 +36,7 @@ pub fn thermal_offset_start(case: &Case) -> Option<f64> {
 
 /// Set the driver's state to the start state; returns the steady heat loss at the annual means
 /// (W, whole building).
-pub fn start(drv: &mut Driver) -> Result<f64> {
+pub fn start<O: Observer>(drv: &mut Driver<O>) -> Result<f64> {
     let case = drv.case;
     let indoor = case.indoor_mean_c();
     let zt = forcing::zone_temps(
@@ -45,7 +45,7 @@ pub fn start(drv: &mut Driver) -> Result<f64> {
         forcing::surface(&case.climate, case.climate.mean_c),
     );
     let steady = drv.solver.steady(&zt, None)?;
-    let steady_heat_loss_w = steady.from_zone[INDOOR] * case.building.exposed_perimeter_m;
+    let steady_heat_loss_w = steady.from_zone[INDOOR] * drv.scale;
     let start_t = match thermal_offset_start(case) {
         Some(ts) => {
             drv.solver
@@ -64,7 +64,7 @@ pub fn start(drv: &mut Driver) -> Result<f64> {
 /// this year it is within 0.05 % of the periodic state, so the periodicity test can pass one daily
 /// year sooner. Its steps are counted in `time_steps`; it is not recorded. If its long steps do
 /// not converge, the run goes on from the start state without it. Returns the years run (0 or 1).
-pub fn coarse_year(drv: &mut Driver, days: &[DayIn], opts: &RunOptions) -> usize {
+pub fn coarse_year<O: Observer>(drv: &mut Driver<O>, days: &[DayIn], opts: &RunOptions) -> usize {
     let step_days = drv.case.simulation.coarse_year_step_days;
     if step_days == 0 {
         return 0;
@@ -82,11 +82,11 @@ pub fn coarse_year(drv: &mut Driver, days: &[DayIn], opts: &RunOptions) -> usize
 }
 
 /// What the spin-up ends with.
-pub struct SpinUp {
+pub struct SpinUp<K> {
     /// Every year run (the last is the periodic one).
     pub years: Vec<Year>,
     /// The last year's records.
-    pub last: Period,
+    pub last: Period<K>,
     /// Whether the spin-up criterion was met.
     pub converged: bool,
     /// A sinusoidal climate: the last year's heat loss minus the periodic year's, estimated from
@@ -100,12 +100,12 @@ pub struct SpinUp {
 /// [`SPIN_UP_HEAT_TOL`] of the periodic year's by the periodicity estimate (a sinusoidal
 /// climate; the estimate is the one reported) or of the previous year's (a series' first
 /// season). The periodic year's soil must thaw everywhere (else: permafrost, an error).
-pub fn spin_up(
-    drv: &mut Driver,
+pub fn spin_up<O: Observer>(
+    drv: &mut Driver<O>,
     days: &[DayIn],
     progress: &mut dyn FnMut(Progress),
     total_years: usize,
-) -> Result<SpinUp> {
+) -> Result<SpinUp<O::Kept>> {
     let sim = &drv.case.simulation;
     let (min_years, max_years) = (sim.min_spin_up_years, sim.max_spin_up_years + 1);
     let series = days.first().is_some_and(|d| d.measured_c.is_some());
@@ -160,27 +160,41 @@ pub fn spin_up(
 
 /// The error of the last period's heat loss against the periodic year, kWh, from its start state
 /// `h0` (conductances of `t0`): see `RunResult::periodicity_heat_loss_kwh`.
-pub fn periodicity(drv: &mut Driver, (h0, t0): &(Vec<f64>, Vec<f64>)) -> Result<f64> {
+pub fn periodicity<O: Observer>(
+    drv: &mut Driver<O>,
+    (h0, t0): &(Vec<f64>, Vec<f64>),
+) -> Result<f64> {
     let net = drv.net;
     let psi = drv.solver.zone_weights(t0, INDOOR)?;
     let drift: f64 = (0..net.n)
         .map(|p| psi[p] * net.volume[p] * (drv.h[p] - h0[p]))
         .sum();
-    Ok(drift * drv.case.building.exposed_perimeter_m / 3.6e6)
+    Ok(drift * drv.scale / 3.6e6)
 }
 
-/// Every season of a measured series in order after the spin-up; returns the winters' results,
-/// the years, and the worst season's records (least frost margin, then deepest frost in open
-/// ground) with its index among the seasons.
-pub fn seasons(
-    drv: &mut Driver,
+/// The seasons of a measured series: each winter's results, each year, the worst season's
+/// records and its index among the seasons.
+pub struct Seasons<K> {
+    /// Each winter's results.
+    pub winters: Vec<WinterResult>,
+    /// Each season's totals.
+    pub years: Vec<Year>,
+    /// The worst season's records (least frost margin, then deepest frost in open ground).
+    pub worst: Period<K>,
+    /// Its index among the seasons.
+    pub index: usize,
+}
+
+/// Every season of a measured series in order after the spin-up.
+pub fn seasons<O: Observer>(
+    drv: &mut Driver<O>,
     seasons: &[(i64, Vec<DayIn>)],
     progress: &mut dyn FnMut(Progress),
     (first_year, total_years): (usize, usize),
-) -> Result<(Vec<WinterResult>, Vec<Year>, Period, usize)> {
+) -> Result<Seasons<O::Kept>> {
     let mut winters = Vec::new();
     let mut years = Vec::new();
-    let mut worst: Option<(f64, f64, Period, usize)> = None;
+    let mut worst: Option<(f64, f64, Period<O::Kept>, usize)> = None;
     for (k, (y, days)) in seasons.iter().enumerate() {
         let p = drv.period(days, progress, (first_year + k, total_years))?;
         let fi =
@@ -202,6 +216,84 @@ pub fn seasons(
             worst = Some((key.0, key.1, p, k));
         }
     }
-    let (_, _, period, k) = worst.expect("validation guarantees at least one season");
-    Ok((winters, years, period, k))
+    let (_, _, worst, index) = worst.expect("validation guarantees at least one season");
+    Ok(Seasons {
+        winters,
+        years,
+        worst,
+        index,
+    })
+}
+
+/// What a whole run simulated: every year, the reported period and the numerical record.
+pub struct Simulated<K> {
+    /// Every simulated year, spin-up first (for a series: then every season; with a design
+    /// winter: then its year).
+    pub years: Vec<Year>,
+    /// The reported period's records.
+    pub last: Period<K>,
+    /// Index into `years` of the reported period.
+    pub reported: usize,
+    /// Spin-up years before the reported period.
+    pub spin_up_years: usize,
+    /// Extra first spin-up years in steps of several days (0 or 1).
+    pub coarse_spin_up_years: usize,
+    /// The normal year's days and index when a design winter was run after it.
+    pub normal: Option<(Vec<super::result::Day>, usize)>,
+    /// Every winter of a measured series.
+    pub winters: Vec<WinterResult>,
+    /// Whether the spin-up criterion was met.
+    pub converged: bool,
+    /// The periodicity estimate of the reported normal year, kWh (sinusoidal climates).
+    pub periodicity_kwh: Option<f64>,
+    /// Steady heat loss at the annual means, W (whole building).
+    pub steady_heat_loss_w: f64,
+}
+
+/// Run the case's schedule on `drv`: start state, coarse year, spin-up to a periodic year, then
+/// the design winter once, or every season of a measured series.
+pub fn simulate<O: Observer>(
+    drv: &mut Driver<O>,
+    opts: &RunOptions,
+    progress: &mut dyn FnMut(Progress),
+) -> Result<Simulated<O::Kept>> {
+    let case = drv.case;
+    let steady_heat_loss_w = start(drv)?;
+    let sched = forcing::schedule(case);
+    let coarse_spin_up_years = coarse_year(drv, &sched.spin, opts);
+    let total = case.simulation.max_spin_up_years
+        + 1
+        + sched.seasons.len()
+        + usize::from(sched.design.is_some());
+    let spin = spin_up(drv, &sched.spin, progress, total)?;
+    let mut years = spin.years;
+    let n = years.len();
+    let mut normal = None;
+    let (last, reported, spin_up_years, winters) = if let Some(design) = &sched.design {
+        // The design winter, once, from the periodic state of the normal climate.
+        let p = drv.period(design, progress, (n, total))?;
+        years.push(p.year.clone());
+        normal = Some((spin.last.days, n - 1));
+        (p, n, n, Vec::new())
+    } else if sched.seasons.is_empty() {
+        // The reported year is the last spin-up year.
+        (spin.last, n - 1, n - 1, Vec::new())
+    } else {
+        // The spin-up ends with the first season; the series then runs through from its start.
+        let s = seasons(drv, &sched.seasons, progress, (n, total))?;
+        years.extend(s.years);
+        (s.worst, n + s.index, n, s.winters)
+    };
+    Ok(Simulated {
+        years,
+        last,
+        reported,
+        spin_up_years,
+        coarse_spin_up_years,
+        normal,
+        winters,
+        converged: spin.converged,
+        periodicity_kwh: spin.periodicity_kwh,
+        steady_heat_loss_w,
+    })
 }
