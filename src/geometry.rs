@@ -9,6 +9,7 @@
 use crate::case::Case;
 pub use crate::case::{Part, Rect};
 use crate::mesh::{graded_edges, Breakpoint, Cell, EdgeBc, Grid, Mesh, Zone};
+use crate::physics::material::Material;
 
 /// Zone indices of the foundation model.
 pub const INDOOR: usize = 0;
@@ -129,8 +130,8 @@ impl Section {
         let grid = self.grid(case);
         let (nx, nz) = (grid.nx(), grid.nz());
         let mut mesh = Mesh::uniform(grid, case.strata[0].material.clone());
-        let m = Materials::add(&mut mesh, case);
-        add_zones(&mut mesh, case);
+        let m = Materials::add(&mut mesh.materials, case);
+        add_zones(&mut mesh.zones, case);
         for j in 0..nz {
             for i in 0..nx {
                 let id = mesh.grid.id(i, j);
@@ -175,19 +176,19 @@ pub fn indoor_floor_r(case: &Case) -> f64 {
 
 /// The zones of a foundation model, in the order of [`INDOOR`], [`OUTDOOR`] and (with a fixed
 /// bottom temperature) [`DEEP`].
-pub fn add_zones(mesh: &mut Mesh, case: &Case) {
-    mesh.add_zone(Zone {
+pub fn add_zones(zones: &mut Vec<Zone>, case: &Case) {
+    zones.push(Zone {
         name: "indoor".into(),
         r_horizontal: indoor_floor_r(case),
         r_vertical: case.building.r_si_wall,
     });
-    mesh.add_zone(Zone {
+    zones.push(Zone {
         name: "outdoor".into(),
         r_horizontal: case.climate.r_se,
         r_vertical: case.climate.r_se,
     });
     if case.simulation.bottom_temperature_c.is_some() {
-        mesh.add_zone(Zone {
+        zones.push(Zone {
             name: "deep ground".into(),
             r_horizontal: 0.0,
             r_vertical: 0.0,
@@ -215,16 +216,20 @@ pub struct Materials {
 }
 
 impl Materials {
-    /// Add the case's materials to `mesh`, whose material 0 is the top stratum: strata, then
-    /// slab, wall, footing, fill, insulation pieces, backfill.
-    pub fn add(mesh: &mut Mesh, case: &Case) -> Self {
+    /// Add the case's materials to a mesh's `materials`, whose material 0 is the top stratum:
+    /// strata, then slab, wall, footing, fill, insulation pieces, backfill.
+    pub fn add(materials: &mut Vec<Material>, case: &Case) -> Self {
+        let mut add = |m: Material| {
+            materials.push(m);
+            materials.len() - 1
+        };
         let mut strata = vec![0];
         for s in case.strata.iter().skip(1) {
-            strata.push(mesh.add_material(s.material.clone()));
+            strata.push(add(s.material.clone()));
         }
-        let slab = mesh.add_material(case.slab.material.clone());
-        let wall = mesh.add_material(case.wall.material.clone());
-        let footing = mesh.add_material(case.footing.material.clone());
+        let slab = add(case.slab.material.clone());
+        let wall = add(case.wall.material.clone());
+        let footing = add(case.footing.material.clone());
         let fill_material = case
             .fill
             .as_ref()
@@ -232,17 +237,17 @@ impl Materials {
             .unwrap_or_else(|| {
                 crate::physics::library::named_material("gravel").expect("gravel exists")
             });
-        let fill = mesh.add_material(fill_material);
+        let fill = add(fill_material);
         let insulation = case
             .insulation
             .iter()
-            .map(|i| mesh.add_material(i.material.clone()))
+            .map(|i| add(i.material.clone()))
             .collect();
         let backfill = case
             .basement
             .as_ref()
             .and_then(|b| b.backfill.as_ref())
-            .map_or(strata[0], |b| mesh.add_material(b.material.clone()));
+            .map_or(strata[0], |b| add(b.material.clone()));
         Materials {
             strata,
             slab,
@@ -304,7 +309,7 @@ mod tests {
             }
         }
         let mut mesh = Mesh::uniform(grid, case.strata[0].material.clone());
-        let m = Materials::add(&mut mesh, &case);
+        let m = Materials::add(&mut mesh.materials, &case);
         let at = |x, z| sec.cell_at(&case, &m, x, z);
         assert_eq!(at(-1.0, -0.5), Cell::Zone(INDOOR));
         assert_eq!(at(1.0, -0.1), Cell::Zone(OUTDOOR));

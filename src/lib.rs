@@ -29,6 +29,7 @@ pub mod error;
 pub mod estimate;
 pub mod files;
 pub mod geometry;
+pub mod geometry3d;
 pub mod mesh;
 pub mod mesh3;
 pub mod methods;

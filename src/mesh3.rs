@@ -2,8 +2,8 @@
 //! from. Cell (i, j, k) spans [xe_i, xe_{i+1}] × [ye_j, ye_{j+1}] × [ze_k, ze_{k+1}]; its linear id
 //! is (k·ny + j)·nx + i (x fastest, z slowest), the natural order the incomplete-Cholesky
 //! preconditioner works in. The outer boundary is adiabatic (symmetry or cut-off planes) except
-//! the bottom, which may exchange heat with a zone.
-use crate::mesh::{Cell, Zone};
+//! the bottom, which may exchange heat with a zone, and the top, column by column.
+use crate::mesh::{Cell, EdgeBc, Zone};
 use crate::physics::material::Material;
 
 /// Cell edges along the three axes, m.
@@ -66,6 +66,8 @@ pub struct Mesh3 {
     pub zones: Vec<Zone>,
     /// The bottom plane's exchange with a zone (zone, surface resistance m²·K/W), or adiabatic.
     pub bottom: Option<(usize, f64)>,
+    /// The top plane's condition per column (index j·nx + i); empty: adiabatic everywhere.
+    pub top: Vec<EdgeBc>,
 }
 
 impl Mesh3 {

@@ -82,6 +82,7 @@ fn iso10211_case4_iron_bar() {
         materials,
         zones,
         bottom: None,
+        top: Vec::new(),
     };
     let net = Network::new3(&mesh);
     let mut s = Solver::new(&net, pcg()).unwrap();
@@ -159,6 +160,7 @@ fn gc10a(d: f64, h0: f64) -> (f64, usize) {
         materials: vec![Material::inert("ground", 1.9, 2.7e6)],
         zones,
         bottom: None,
+        top: Vec::new(),
     };
     let net = Network::new3(&mesh);
     let mut s = Solver::new(&net, pcg()).unwrap();

@@ -1,8 +1,8 @@
 //! Validation of `[building]` and the construction tables `[slab]`, `[wall]`, `[footing]` and
 //! `[basement]`.
 use super::ctx::Ctx;
-use super::model::{Backfill, Basement, Building, Footing, Simulation, Slab, Wall};
-use super::raw::{RawBasement, RawBuilding, RawCase, RawFooting, Temps, S};
+use super::model::{Backfill, Basement, Building, Footing, Plan, Simulation, Slab, Wall};
+use super::raw::{RawBasement, RawBuilding, RawCase, RawFooting, RawPlan, Temps, S};
 use crate::error::{InputKind, Result};
 
 /// The validated slab, wall and footing, and the basement floor depth if there is a basement.
@@ -17,11 +17,23 @@ pub struct Construction {
     pub basement_depth_m: Option<f64>,
 }
 
-/// `[building]`: floor area, perimeter or B′, indoor temperature, surface resistances.
-pub fn building(c: &Ctx, b: &RawBuilding) -> Result<Building> {
-    let (area, perim, bp) = plan(c, b)?;
+/// `[building]` and `[plan]`: floor area, perimeter or B′ (or the plan they follow from), indoor
+/// temperature, surface resistances. `wall_t` is the foundation wall's thickness, m.
+pub fn building(
+    c: &Ctx,
+    b: &RawBuilding,
+    raw_plan: Option<&S<RawPlan>>,
+    wall_t: f64,
+) -> Result<(Building, Option<Plan>)> {
+    let (area, perim, bp, plan) = match raw_plan {
+        Some(p) => rect_plan(c, b, p.get_ref(), wall_t)?,
+        None => {
+            let (a, p, bp) = plan(c, b)?;
+            (a, p, bp, None)
+        }
+    };
     let unheated = b.unheated.unwrap_or(false);
-    Ok(Building {
+    let building = Building {
         floor_area_m2: area,
         exposed_perimeter_m: perim,
         b_prime_m: bp,
@@ -41,7 +53,39 @@ pub fn building(c: &Ctx, b: &RawBuilding) -> Result<Building> {
             "m²·K/W",
             0.13,
         )?,
-    })
+    };
+    Ok((building, plan))
+}
+
+/// `[plan]`: a rectangle between the wall's exterior faces. The floor (inside the walls) has
+/// A = (L − 2w)(W − 2w) and P = 2 (L − 2w + W − 2w), the ISO 13370 inside dimensions of the 2D
+/// equivalent floor; `[building]` must not give them too.
+fn rect_plan(
+    c: &Ctx,
+    b: &RawBuilding,
+    p: &RawPlan,
+    wall_t: f64,
+) -> Result<(f64, f64, f64, Option<Plan>)> {
+    let why = "not used with [plan]; the floor area and perimeter follow from plan.length_m and plan.width_m";
+    c.unused(&b.floor_area_m2, "building.floor_area_m2", why)?;
+    c.unused(&b.exposed_perimeter_m, "building.exposed_perimeter_m", why)?;
+    c.unused(
+        &b.characteristic_dimension_m,
+        "building.characteristic_dimension_m",
+        why,
+    )?;
+    // Inside dimensions of at least 2 m keep B′ = l w/(l + w) at 1 m or more.
+    let lo = 2.0 * wall_t + 2.0;
+    let length_m = c.range_incl(&p.length_m, "plan.length_m", lo, 1000.0, "m")?;
+    let width_m = c.range_incl(&p.width_m, "plan.width_m", lo, 1000.0, "m")?;
+    let (l, w) = (length_m - 2.0 * wall_t, width_m - 2.0 * wall_t);
+    let (area, perim) = (l * w, 2.0 * (l + w));
+    Ok((
+        area,
+        perim,
+        area / (0.5 * perim),
+        Some(Plan { length_m, width_m }),
+    ))
 }
 
 /// (A m², P m, B′ m) from area with perimeter or with B′.
@@ -126,7 +170,7 @@ fn indoor(c: &Ctx, b: &RawBuilding, unheated: bool) -> Result<[f64; 12]> {
 }
 
 /// `[slab]`, `[wall]`, `[footing]` and the basement floor depth.
-pub fn construction(c: &Ctx, raw: &RawCase, _building: &Building) -> Result<Construction> {
+pub fn construction(c: &Ctx, raw: &RawCase) -> Result<Construction> {
     let basement_depth_m = match &raw.basement {
         Some(b) => {
             c.unused(

@@ -3,8 +3,8 @@
 //! another piece.
 use super::building::Construction;
 use super::ctx::Ctx;
-use super::model::{Building, Case, Fill, Insulation, InsulationKind, Simulation};
-use super::raw::{RawFill, RawInsulation, S};
+use super::model::{Building, Case, CornerPiece, Fill, Insulation, InsulationKind, Simulation};
+use super::raw::{RawCorner, RawFill, RawInsulation, S};
 use crate::error::{InputKind, Result};
 use crate::physics::material::Material;
 
@@ -89,6 +89,109 @@ fn material(c: &Ctx, ins: &S<RawInsulation>, key: &str) -> Result<Material> {
         material.c_unfrozen = v;
     }
     Ok(material)
+}
+
+/// `[[corner]]`: each piece validated as a wing (its depth, outer end, thickness, material; the
+/// inner end at the outer face of any outside vertical insulation) with its length along each
+/// wall from the corner.
+pub fn corner_pieces(
+    c: &Ctx,
+    raw: &[S<RawCorner>],
+    parts: &Parts,
+    raw_ins: &[S<RawInsulation>],
+) -> Result<Vec<CornerPiece>> {
+    let vert_out_t: f64 = raw_ins
+        .iter()
+        .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
+        .map(|i| *i.get_ref().thickness_m.get_ref())
+        .fold(0.0, f64::max);
+    let mut out = Vec::new();
+    for (k, rc) in raw.iter().enumerate() {
+        let key = format!("corner[{k}]");
+        let r = rc.get_ref();
+        let span = rc.span();
+        let as_wing = S::new(
+            span.clone(),
+            RawInsulation {
+                kind: S::new(span.clone(), "wing".to_string()),
+                thickness_m: r.thickness_m.clone(),
+                material: r.material.clone(),
+                conductivity_w_per_mk: r.conductivity_w_per_mk.clone(),
+                heat_capacity_j_per_m3k: r.heat_capacity_j_per_m3k.clone(),
+                band_width_m: None,
+                top_depth_m: None,
+                bottom_depth_m: None,
+                depth_m: Some(r.depth_m.clone()),
+                width_m: Some(r.width_m.clone()),
+            },
+        );
+        let thickness_m = c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
+        let material = material(c, &as_wing, &key)?;
+        let kind = kind(c, &as_wing, &key, parts, (thickness_m, vert_out_t))?;
+        out.push(CornerPiece {
+            piece: Insulation {
+                kind,
+                thickness_m,
+                material,
+            },
+            length_m: c.range(&r.length_m, &format!("{key}.length_m"), 0.0, 1000.0, "m")?,
+        });
+    }
+    Ok(out)
+}
+
+/// Corner pieces need a plan, reach at most half of each wall, and overlap no concrete and no
+/// piece other than a wing (which they are painted over).
+pub fn check_corners(c: &Ctx, raw: &[S<RawCorner>], case: &Case) -> Result<()> {
+    for (k, (rc, cp)) in raw.iter().zip(&case.corners).enumerate() {
+        let key = format!("corner[{k}]");
+        let Some(plan) = case.plan else {
+            return Err(c.err(
+                rc.span(),
+                &key,
+                InputKind::Missing,
+                "corner insulation needs the building's plan; add [plan] with length_m and width_m",
+            ));
+        };
+        let half = 0.5 * plan.length_m.min(plan.width_m);
+        if cp.length_m > half + 1e-9 {
+            let v = &rc.get_ref().length_m;
+            return Err(c.err(
+                v.span(),
+                &format!("{key}.length_m"),
+                InputKind::OutOfRange,
+                format!(
+                    "{} m is more than half the plan's shorter side; allowed: up to {half} m",
+                    cp.length_m
+                ),
+            ));
+        }
+        let mut with = case.clone();
+        let kept: Vec<usize> = (0..case.insulation.len())
+            .filter(|&i| !matches!(case.insulation[i].kind, InsulationKind::Wing { .. }))
+            .collect();
+        with.insulation = kept.iter().map(|&i| case.insulation[i].clone()).collect();
+        with.insulation.push(cp.piece.clone());
+        if let Some(p) = with.layout_problem() {
+            let allowed = if p.what.starts_with("leaves") {
+                "allowed: inside simulation.domain_width_m and domain_depth_m"
+            } else {
+                "allowed: beside concrete and the other pieces (wings excepted)"
+            };
+            let what = if p.piece + 1 == with.insulation.len() {
+                p.what
+            } else {
+                format!("overlaps insulation[{}]", kept[p.piece])
+            };
+            return Err(c.err(
+                rc.span(),
+                &key,
+                InputKind::Geometry,
+                format!("{what}; {allowed}"),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Where the piece sits, by its kind; keys of other kinds are refused.

@@ -95,8 +95,9 @@ fn case_dir(file: &str) -> std::path::PathBuf {
 
 /// Validate every table in dependency order.
 fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
-    let building = building::building(c, &raw.building)?;
-    let cons = building::construction(c, &raw, &building)?;
+    let cons = building::construction(c, &raw)?;
+    let (building, plan) =
+        building::building(c, &raw.building, raw.plan.as_ref(), cons.wall.thickness_m)?;
     let climate = climate::climate(c, &raw.climate)?;
     let simulation = simulation::simulation(
         c,
@@ -114,6 +115,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         simulation: &simulation,
     };
     let insulation = insulation::insulation(c, &raw.insulation, &parts)?;
+    let corners = insulation::corner_pieces(c, &raw.corner, &parts, &raw.insulation)?;
     building::footing_in_domain(c, &raw.footing, &cons.footing, &simulation)?;
     let probes = simulation::probes(c, &raw.probe, &building, &cons.wall, &simulation)?;
     let sizing = match &raw.sizing {
@@ -122,6 +124,8 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     };
     let case = Case {
         sizing,
+        plan,
+        corners,
         file: c.file.to_string(),
         source: c.src.to_string(),
         name: raw.name,
@@ -138,6 +142,8 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         probes,
     };
     insulation::check_layout(c, &raw.insulation, &case)?;
+    insulation::check_corners(c, &raw.corner, &case)?;
+    simulation::model_needs_plan(c, &raw.simulation, &case)?;
     Ok(case)
 }
 

@@ -58,6 +58,38 @@ pub struct Building {
     pub r_si_wall: f64,
 }
 
+/// A rectangular plan (the 3D model's building).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Plan {
+    /// Length along x of the 3D model, between the foundation wall's exterior faces, m.
+    pub length_m: f64,
+    /// Width along y, between the exterior faces, m.
+    pub width_m: f64,
+}
+
+/// A horizontal insulation piece at each outside corner of the plan (3D model only): in plan
+/// coordinates (u, v) measured outward from the two exterior wall faces meeting at the corner,
+/// it fills x_start ≤ max(u, v) ≤ width and min(u, v) ≥ −length, from z = depth down by its
+/// thickness. It is painted over the wing insulation it meets.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CornerPiece {
+    /// The piece as a wing of the section (its depth, inner and outer end, thickness, material).
+    pub piece: Insulation,
+    /// Extent along each wall from the plan's exterior corner, m.
+    pub length_m: f64,
+}
+
+/// Which model a run uses.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum ModelKind {
+    /// The 2D section (ISO 13370 equivalent floor), the default.
+    #[serde(rename = "2d")]
+    TwoD,
+    /// The 3D quarter of a rectangular plan.
+    #[serde(rename = "3d")]
+    ThreeD,
+}
+
 /// Slab, wall, footing: the concrete parts.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Slab {
@@ -275,6 +307,8 @@ pub struct Simulation {
     /// How far the wall reaches above the floor (or above ground level, if higher) at least, m.
     /// Default 1.0; 0 in the floor-only model of the heat-loss split.
     pub wall_extension_m: f64,
+    /// The model. Default 2D.
+    pub model: ModelKind,
 }
 
 /// A named point whose temperature is recorded.
@@ -353,6 +387,10 @@ pub struct Case {
     pub name: String,
     /// Building.
     pub building: Building,
+    /// The rectangular plan, if given (required by the 3D model).
+    pub plan: Option<Plan>,
+    /// Corner insulation pieces (3D model).
+    pub corners: Vec<CornerPiece>,
     /// Slab.
     pub slab: Slab,
     /// Foundation wall.

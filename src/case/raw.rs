@@ -16,6 +16,10 @@ pub struct RawCase {
     #[serde(default)]
     pub description: Option<String>,
     pub building: RawBuilding,
+    #[serde(default)]
+    pub plan: Option<S<RawPlan>>,
+    #[serde(default)]
+    pub corner: Vec<S<RawCorner>>,
     pub slab: RawSlab,
     pub wall: RawWall,
     pub footing: RawFooting,
@@ -162,6 +166,32 @@ pub struct RawInsulation {
     pub width_m: Option<S<f64>>,
 }
 
+/// A rectangular plan, exterior faces of the foundation wall.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawPlan {
+    pub length_m: S<f64>,
+    pub width_m: S<f64>,
+}
+
+/// A horizontal insulation piece at each outside corner of the plan (3D model).
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawCorner {
+    pub thickness_m: S<f64>,
+    pub material: Option<S<String>>,
+    pub conductivity_w_per_mk: Option<S<f64>>,
+    pub heat_capacity_j_per_m3k: Option<S<f64>>,
+    /// Depth of the top face below ground.
+    pub depth_m: S<f64>,
+    /// Outward extent from the wall's exterior face.
+    pub width_m: S<f64>,
+    /// Extent along each wall from the plan's exterior corner.
+    pub length_m: S<f64>,
+}
+
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
 #[allow(missing_docs)]
@@ -235,6 +265,7 @@ pub struct RawSimulation {
     pub domain_width_m: Option<S<f64>>,
     pub domain_depth_m: Option<S<f64>>,
     pub bottom_temperature_c: Option<S<f64>>,
+    pub model: Option<S<String>>,
 }
 
 #[derive(Debug, Deserialize)]

@@ -1,6 +1,6 @@
 //! Validation of `[simulation]` (time step, spin-up, mesh, domain) and the `[[probe]]` points.
 use super::ctx::Ctx;
-use super::model::{Building, Fineness, Probe, Simulation, Wall};
+use super::model::{Building, Case, Fineness, ModelKind, Probe, Simulation, Wall};
 use super::raw::{RawProbe, RawSimulation, S};
 use crate::error::{InputKind, Result};
 
@@ -49,6 +49,18 @@ pub fn simulation(
             )
         })?,
     };
+    let model = match s.model.as_ref().map(|v| (v, v.get_ref().as_str())) {
+        None | Some((_, "2d")) => ModelKind::TwoD,
+        Some((_, "3d")) => ModelKind::ThreeD,
+        Some((v, other)) => {
+            return Err(c.err(
+                v.span(),
+                "simulation.model",
+                InputKind::UnknownName,
+                format!("\"{other}\" is not a model; allowed: 2d, 3d"),
+            ))
+        }
+    };
     let dom_default = (2.5 * b_prime_m).max(20.0);
     let domain =
         |v: &Option<S<f64>>, key: &str, default: f64| c.opt(v, key, (2.0, 500.0), "m", default);
@@ -83,7 +95,21 @@ pub fn simulation(
             .map(|v| c.range_incl(v, "simulation.bottom_temperature_c", -10.0, 40.0, "°C"))
             .transpose()?,
         wall_extension_m: WALL_EXTENSION_M,
+        model,
     })
+}
+
+/// The 3D model needs a `[plan]`.
+pub fn model_needs_plan(c: &Ctx, s: &RawSimulation, case: &Case) -> Result<()> {
+    match (&s.model, case.simulation.model, case.plan) {
+        (Some(v), ModelKind::ThreeD, None) => Err(c.err(
+            v.span(),
+            "simulation.model",
+            InputKind::Missing,
+            "the 3d model needs the building's plan; add [plan] with length_m and width_m (exterior faces of the foundation wall)",
+        )),
+        _ => Ok(()),
+    }
 }
 
 /// `[[probe]]`: named points inside the section.

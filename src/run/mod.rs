@@ -10,11 +10,13 @@ pub mod driver;
 pub mod forcing;
 pub mod frost;
 pub mod headline;
+pub mod quarter;
 pub mod result;
 pub mod section2;
 pub mod spinup;
 pub mod split;
 pub mod steady;
+pub mod three;
 
 pub use frost::{frost_line_c, FrostLines, ProtectedZone};
 pub use headline::{basement_values, headline, BasementValues, Headline};

@@ -300,7 +300,23 @@ impl Network {
                         });
                     }
                     None => {
-                        if let (Side::Bottom, Some((zone, r))) = (side, mesh.bottom) {
+                        let top = match mesh.top.get(j * nx + i) {
+                            Some(crate::mesh::EdgeBc::Zone { zone, r }) if side == Side::Top => {
+                                Some((*zone, *r))
+                            }
+                            _ => None,
+                        };
+                        if let Some((zone, r)) = top {
+                            bfaces.push(BFace {
+                                p,
+                                d: dp,
+                                area,
+                                r,
+                                zone,
+                                side,
+                                group: 0,
+                            });
+                        } else if let (Side::Bottom, Some((zone, r))) = (side, mesh.bottom) {
                             bfaces.push(BFace {
                                 p,
                                 d: dp,
