@@ -1,7 +1,7 @@
 //! The command line: argv, stdout, stderr, progress bars and exit codes (the only part of
 //! frostline that knows them; the library never prints).
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use frostline::case::{load_case, Case, Fineness};
+use frostline::case::{load_case, Case, Fineness, ModelKind};
 use frostline::error::{Error, InputKind};
 use frostline::physics::climate::FitMethod;
 use frostline::physics::library::KMethod;
@@ -25,8 +25,10 @@ pub enum Command {
     /// Simulate a case: steady start, spin-up to a periodic year, results and files.
     #[command(
         after_help = "Examples:\n  frostline run examples/kettle-hollow-house.toml --out out/kettle\n  \
-        frostline run case.toml --out out/quick --mesh coarse --max-spin-up-years 3 --quiet\n\n\
-        Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out."
+        frostline run case.toml --out out/quick --mesh coarse --max-spin-up-years 3 --quiet\n  \
+        frostline run examples/alder-bend-house-3d.toml --out out/alder --model 3d\n\n\
+        Writes summary.json, daily.csv, monthly.csv, probes.csv and field_<day>.csv into --out\n\
+        (3D: also perimeter.csv, plan_frost.csv, daily_3d.csv, monthly_3d.csv, three_d.json)."
     )]
     Run(RunArgs),
     /// Re-render the plots (and report.html) of a finished run from its saved results.
@@ -68,12 +70,23 @@ pub enum Command {
 /// Mesh fineness on the command line.
 #[derive(ValueEnum, Clone, Copy, Debug)]
 pub enum MeshArg {
-    /// 5 cm cells at edges.
+    /// 5 cm cells at edges (3D: 10 cm).
     Coarse,
-    /// 2 cm cells at edges.
+    /// 2 cm cells at edges (3D: 5 cm).
     Normal,
-    /// 1 cm cells at edges.
+    /// 1 cm cells at edges (3D: 2 cm).
     Fine,
+}
+
+/// Model on the command line.
+#[derive(ValueEnum, Clone, Copy, Debug)]
+pub enum ModelArg {
+    /// The 2D section (ISO 13370 equivalent strip).
+    #[value(name = "2d")]
+    TwoD,
+    /// The 3D quarter of the rectangular plan (needs [plan]).
+    #[value(name = "3d")]
+    ThreeD,
 }
 
 impl From<MeshArg> for Fineness {
@@ -100,6 +113,9 @@ pub struct RunArgs {
     /// Override the case's maximum number of spin-up years.
     #[arg(long)]
     pub max_spin_up_years: Option<usize>,
+    /// Override the case's model (simulation.model).
+    #[arg(long, value_enum)]
+    pub model: Option<ModelArg>,
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
@@ -293,6 +309,26 @@ fn unmet(s: &files::Summary) -> Vec<String> {
             s.frost_margin_m
         ));
     }
+    if let Some(t) = &s.three_d {
+        if !t.spin_up_converged {
+            u.push(
+                "the 3D spin-up did not reach a periodic year; raise simulation.max_spin_up_years"
+                    .into(),
+            );
+        }
+        if t.headline.frost_in_protected_zone {
+            let at = t.worst_point.map_or(String::new(), |w| {
+                format!(
+                    " at X = {:.2} m, Y = {:.2} m, z = {:.2} m",
+                    w.x_m, w.y_m, w.z_m
+                )
+            });
+            u.push(format!(
+                "3D: frost enters the protected zone below the footing (margin {:.2} m{at})",
+                t.headline.frost_margin_m
+            ));
+        }
+    }
     u
 }
 
@@ -342,6 +378,16 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         case.simulation.max_spin_up_years =
             flag_range(y, (1, 100), "--max-spin-up-years", "1 to 100")?;
     }
+    match a.model {
+        Some(ModelArg::TwoD) => case.simulation.model = ModelKind::TwoD,
+        Some(ModelArg::ThreeD) => {
+            if case.plan.is_none() {
+                return Err(Error::in_file(&case.file, "plan", InputKind::Missing, "--model 3d needs the building's plan; add [plan] with length_m and width_m (exterior faces of the foundation wall)"));
+            }
+            case.simulation.model = ModelKind::ThreeD;
+        }
+        None => {}
+    }
     let bar = bar(
         a.quiet,
         Some(((case.simulation.max_spin_up_years + 1) * 365) as u64),
@@ -352,15 +398,24 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         }
         bar.set_position((p.year * 365 + p.day) as u64);
     };
-    let result = run::run(&case, &mut cb);
-    bar.finish_and_clear();
-    let result = result?;
+    let three = case.simulation.model == ModelKind::ThreeD;
+    if three {
+        bar.set_message("2D section, then 3D");
+    }
     let cc = estimate::cross_check(&case);
-    let mut written = files::write_run(&case, &result, &cc, &a.out)?;
+    let mut written = if three {
+        let r3 = run::three::run3(&case, &run::RunOptions::default(), &mut cb);
+        bar.finish_and_clear();
+        files::write_run3(&case, &r3?, &cc, &a.out)?
+    } else {
+        let result = run::run(&case, &mut cb);
+        bar.finish_and_clear();
+        files::write_run(&case, &result?, &cc, &a.out)?
+    };
     if !a.no_plots {
         written.extend(render(&a.out, a.animate)?);
     }
-    let summary = files::Summary::new(&case, &result, &cc);
+    let summary = files::read_summary(&a.out)?;
     print!("{}", text::result_table(&summary));
     print_files(&a.out, &written);
     Ok(unmet(&summary))

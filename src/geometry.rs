@@ -49,7 +49,15 @@ impl Section {
     /// Breakpoints of the graded axes: every construction edge, the wall faces, ground level,
     /// the strata boundaries and the domain's ends, with the cell size wanted at each.
     pub fn breakpoints(&self, case: &Case) -> (Vec<Breakpoint>, Vec<Breakpoint>) {
-        let (h0, _, hmax) = case.simulation.mesh.sizes();
+        self.breakpoints_sized(case, case.simulation.mesh.sizes())
+    }
+
+    /// [`Self::breakpoints`] for the mesh sizes (edge size, growth, largest size), m.
+    pub fn breakpoints_sized(
+        &self,
+        case: &Case,
+        (h0, _, hmax): (f64, f64, f64),
+    ) -> (Vec<Breakpoint>, Vec<Breakpoint>) {
         let w = case.wall.thickness_m;
         let bp = |at: f64, size: f64| Breakpoint { at, size };
         let mut bx = vec![

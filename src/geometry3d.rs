@@ -14,7 +14,8 @@
 //! (the distance outside the nearer face, in the Chebyshev sense): along each wall the section
 //! itself; at the outside corner, square (mitred) corners of every piece, wing insulation
 //! included, the way boards are laid. Corner pieces ([`crate::case::CornerPiece`]) are painted
-//! last. The floor inside the walls has the plan's real dimensions (no B′ strip).
+//! last. The floor inside the walls has the plan's real dimensions (no B′ strip). The grid is
+//! graded as the section's, one fineness step coarser ([`crate::case::Fineness::sizes_3d`]).
 use crate::case::{Case, InsulationKind};
 use crate::geometry::{add_zones, indoor_floor_r, Materials, Section, DEEP, INDOOR, OUTDOOR};
 use crate::mesh::{graded_edges, Breakpoint, Cell, EdgeBc};
@@ -93,7 +94,7 @@ impl Quarter {
 
     /// The graded edges of X (or Y, with `face` = b) for the section's breakpoints `bs`.
     fn axis(&self, case: &Case, bs: &[Breakpoint], face: f64) -> Vec<f64> {
-        let (h0, growth, hmax) = case.simulation.mesh.sizes();
+        let (h0, growth, hmax) = case.simulation.mesh.sizes_3d();
         let bp = |at: f64, size: f64| Breakpoint { at, size };
         let end = face + self.d;
         let mut pts = vec![bp(0.0, (4.0 * h0).min(hmax)), bp(end, hmax)];
@@ -121,9 +122,9 @@ impl Quarter {
     /// The graded grid of the quarter: the section's breakpoints on both plan axes (every
     /// construction edge on a grid plane, at X = a + s and Y = b + s), the corner pieces' edges.
     pub fn grid(&self, case: &Case) -> Grid3 {
-        let (_, growth, hmax) = case.simulation.mesh.sizes();
-        let h0 = case.simulation.mesh.sizes().0;
-        let (bx, mut bz) = self.section.breakpoints(&self.case);
+        let sizes = case.simulation.mesh.sizes_3d();
+        let (h0, growth, hmax) = sizes;
+        let (bx, mut bz) = self.section.breakpoints_sized(&self.case, sizes);
         for c in &case.corners {
             if let InsulationKind::Wing { depth_m, .. } = c.piece.kind {
                 for z in [depth_m, depth_m + c.piece.thickness_m] {

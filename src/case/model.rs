@@ -28,6 +28,16 @@ impl Fineness {
             Fineness::Fine => (0.01, 1.1, 0.5),
         }
     }
+    /// (cell size at edges, growth ratio, largest cell) of the 3D model, m: one step coarser
+    /// than the 2D section's (normal: the section's coarse sizes), which keeps a 3D run of a house
+    /// to about 10⁵ unknowns.
+    pub fn sizes_3d(self) -> (f64, f64, f64) {
+        match self {
+            Fineness::Coarse => (0.10, 1.4, 3.0),
+            Fineness::Normal => Fineness::Coarse.sizes(),
+            Fineness::Fine => Fineness::Normal.sizes(),
+        }
+    }
     /// Parse a name.
     pub fn parse(s: &str) -> Option<Self> {
         match s {

@@ -6,6 +6,7 @@ pub mod section;
 pub mod sizing;
 pub mod summary;
 pub mod tables;
+pub mod three;
 
 pub use section::{read_fields, read_section, PlotEntry, PlotIndex, SectionFile, NO_VALUE};
 pub use sizing::{SizingFile, SIZING_CAUTION};
@@ -74,13 +75,34 @@ pub fn read_sizing(dir: &Path) -> Result<Option<SizingFile>> {
 /// Write every result file of a run of `case` (with its cross-checks `cc`) into `dir` (created
 /// if missing); returns the paths.
 pub fn write_run(case: &Case, r: &RunResult, cc: &CrossCheck, dir: &Path) -> Result<Vec<PathBuf>> {
+    write_run_summary(case, r, dir, Summary::new(case, r, cc))
+}
+
+/// Write every result file of a 3D run: the 2D section's files (the equivalent strip, its
+/// `summary.json` with the `three_d` block) and the 3D files ([`three::write_3d`]).
+pub fn write_run3(
+    case: &Case,
+    r: &crate::run::three::Run3Result,
+    cc: &CrossCheck,
+    dir: &Path,
+) -> Result<Vec<PathBuf>> {
+    let mut s = Summary::new(case, &r.two, cc);
+    s.three_d = Some(three::Summary3::new(case, r));
+    let mut files = write_run_summary(case, &r.two, dir, s)?;
+    let head = format!("{}\n{CAUTION}\nCoordinates: plan X along the length and Y along the width from the building's centre, z depth below ground; section x outward from the wall's exterior face.\n3D model: whole-building heat loss; frost columns are the worst along the perimeter.", case.name);
+    files.extend(three::write_3d(case, r, dir, &head)?);
+    Ok(files)
+}
+
+/// [`write_run`] with the summary `s`.
+fn write_run_summary(case: &Case, r: &RunResult, dir: &Path, s: Summary) -> Result<Vec<PathBuf>> {
     create_dir(dir)?;
     let head = format!("{}\n{CAUTION}\nCoordinates: {COORDINATES}.", case.name);
     let mut files = vec![
-        write_json(dir, "summary.json", &Summary::new(case, r, cc))?,
+        write_json(dir, "summary.json", &s)?,
         write_atomic(dir, "case.toml", case.source.as_bytes())?,
-        write_atomic(dir, "daily.csv", &tables::daily(&head, r)?)?,
-        write_atomic(dir, "monthly.csv", &tables::monthly(&head, r)?)?,
+        write_atomic(dir, "daily.csv", &tables::daily(&head, &r.records())?)?,
+        write_atomic(dir, "monthly.csv", &tables::monthly(&head, &r.records())?)?,
         write_atomic(dir, "probes.csv", &tables::probes(&head, case, r)?)?,
         write_atomic(
             dir,

@@ -223,6 +223,9 @@ pub struct Summary {
     /// Heated-basement values.
     #[serde(flatten, default, skip_serializing_if = "Option::is_none")]
     pub basement: Option<BasementSummary>,
+    /// The 3D model's results (a 3D run; the figures above are then the 2D section's).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub three_d: Option<super::three::Summary3>,
 }
 
 impl Summary {
@@ -303,6 +306,7 @@ impl Summary {
             periods: periods(case).into(),
             climate: climate_info(case),
             basement: basement_summary(case, r),
+            three_d: None,
         }
     }
 }

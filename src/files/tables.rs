@@ -5,7 +5,7 @@ use super::{bad_file, read_text};
 use crate::case::Case;
 use crate::error::{Error, Result};
 use crate::physics::climate::month_of;
-use crate::run::{Day, RunResult, WinterResult};
+use crate::run::{Day, Records, RunResult, WinterResult};
 use serde::{Deserialize, Deserializer};
 use std::path::Path;
 
@@ -144,7 +144,7 @@ pub fn csv_bytes(
 }
 
 /// `daily.csv`.
-pub fn daily(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+pub fn daily(head: &str, r: &Records) -> Result<Vec<u8>> {
     csv_bytes(
         &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
         &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
@@ -157,7 +157,7 @@ pub fn daily(head: &str, r: &RunResult) -> Result<Vec<u8>> {
 /// `monthly.csv`: calendar months (365-day calendar; day 366 of a leap year stays in December):
 /// heat loss and outdoor temperature of the heat-loss year (the normal year when a design winter
 /// was run), frost depths of the reported period.
-pub fn monthly(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+pub fn monthly(head: &str, r: &Records) -> Result<Vec<u8>> {
     let month = |d: &Day| month_of((d.day_of_year as f64 - 0.5).min(364.5));
     let (mut kwh, mut tout, mut n) = ([0.0; 12], [0.0; 12], [0usize; 12]);
     let (mut fo, mut ff) = ([0.0f64; 12], [0.0f64; 12]);
@@ -167,7 +167,7 @@ pub fn monthly(head: &str, r: &RunResult) -> Result<Vec<u8>> {
         tout[m] += d.outdoor_c;
         n[m] += 1;
     }
-    for d in &r.days {
+    for d in r.days {
         let m = month(d);
         fo[m] = fo[m].max(d.frost_open_m);
         ff[m] = ff[m].max(d.frost_face_m);

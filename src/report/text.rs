@@ -2,6 +2,7 @@
 //! JSON and report agree), the `check` overview, the climate statistics and a soil's properties.
 use crate::case::{Case, ClimateSource};
 use crate::error::Result;
+use crate::files::three::Summary3;
 use crate::files::{Summary, CAUTION};
 use crate::physics::climate::ClimateSummary;
 use crate::physics::library::{soil_properties, KMethod, SoilFile};
@@ -24,6 +25,10 @@ fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
 /// The short result table printed after a run.
 pub fn result_table(s: &Summary) -> String {
     let mut t = format!("{}\n", s.case_name);
+    if let Some(three) = &s.three_d {
+        t += &three_rows(three);
+        t += "\n  2D section (ISO 13370 equivalent strip) of the same case:\n";
+    }
     t += &format!(
         "  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
         s.characteristic_dimension_m, s.floor_area_m2, s.exposed_perimeter_m
@@ -36,6 +41,122 @@ pub fn result_table(s: &Summary) -> String {
     }
     t += &numerics_line(s);
     t += &format!("\n  Caution: {CAUTION}\n");
+    t
+}
+
+/// The 3D block: whole-building heat loss and the frost along the perimeter, with the 2D strip
+/// beside.
+fn three_rows(s: &Summary3) -> String {
+    let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
+    let nan = f64::NAN;
+    let mut t = format!(
+        "  3D model: quarter of a {:.2} × {:.2} m plan (exterior faces), corners included{}\n",
+        s.plan_length_m,
+        s.plan_width_m,
+        if s.corner_pieces > 0 {
+            format!(", {} corner insulation piece(s)", s.corner_pieces)
+        } else {
+            String::new()
+        }
+    );
+    t += "\n  Heat loss to the ground (floor + junction)  3D model   2D strip\n";
+    t += &row(
+        "annual",
+        "kWh",
+        0,
+        &[h.annual_heat_loss_kwh, two.annual_heat_loss_kwh],
+    );
+    t += &row("mean", "W", 1, &[h.mean_heat_loss_w, two.mean_heat_loss_w]);
+    t += &row(
+        "peak (daily mean)",
+        "W",
+        1,
+        &[h.peak_heat_loss_w, two.peak_heat_loss_w],
+    );
+    t += &row(
+        "floor U-value (no junction)",
+        "W/(m²K)",
+        3,
+        &[
+            h.floor_u_value_w_per_m2k.unwrap_or(nan),
+            two.floor_u_value_w_per_m2k.unwrap_or(nan),
+        ],
+    );
+    t += &row(
+        "junction Ψ_g (3D: + corners)",
+        "W/(mK)",
+        3,
+        &[
+            h.junction_psi_w_per_mk.unwrap_or(nan),
+            two.junction_psi_w_per_mk.unwrap_or(nan),
+        ],
+    );
+    t += &row("steady H_g = A U + P Ψ_g", "W/K", 1, &[c.h_g_w_per_k]);
+    t +=
+        "\n  Frost (depths below ground level)      mid long   mid short      corner  2D section\n";
+    let (ml, ms, co) = (&s.mid_long_wall, &s.mid_short_wall, &s.corner);
+    t += &row(
+        "at the footing's outer face",
+        "m",
+        2,
+        &[
+            ml.face_m,
+            ms.face_m,
+            co.face_m,
+            two.frost_depth_at_footing_face_m,
+        ],
+    );
+    t += &row(
+        "below the footing base",
+        "m",
+        2,
+        &[
+            ml.under_footing_m,
+            ms.under_footing_m,
+            co.under_footing_m,
+            two.frost_depth_under_footing_m,
+        ],
+    );
+    t += &row(
+        "beside the wall (within 0.5 m)",
+        "m",
+        2,
+        &[
+            ml.beside_wall_m,
+            ms.beside_wall_m,
+            co.beside_wall_m,
+            two.frost_depth_beside_wall_m,
+        ],
+    );
+    t += &row(
+        "margin to the protected zone",
+        "m",
+        2,
+        &[ml.margin_m, ms.margin_m, co.margin_m, two.frost_margin_m],
+    );
+    t += &row("open ground", "m", 2, &[h.frost_depth_open_ground_m]);
+    if let Some(w) = &s.worst_point {
+        t += &format!(
+            "    least margin {:.2} m at X = {:.2} m, Y = {:.2} m, z = {:.2} m, day {}{}\n",
+            w.margin_m,
+            w.x_m,
+            w.y_m,
+            w.z_m,
+            w.day_of_year,
+            if w.margin_m < 0.0 {
+                ": FROST IN THE PROTECTED ZONE"
+            } else {
+                ""
+            }
+        );
+    }
+    t += &format!(
+        "\n  3D numerics: {} × {} × {} grid, {} unknowns, {} steps, spin-up {} year(s) from the 2D periodic state ({}), {:.2} Newton iterations/step, {:.1} CG iterations/solve (max {}), energy balance {:.1e}, {:.1} s\n",
+        s.grid[0], s.grid[1], s.grid[2], s.unknowns, s.time_steps, s.spin_up_years,
+        if s.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
+        s.newton_iterations_per_step, s.cg_iterations_per_solve, s.max_cg_iterations,
+        s.energy_balance_error, s.wall_time_s
+    );
     t
 }
 

@@ -1,10 +1,11 @@
 //! The numbers a user designs with, from a run's records: annual, mean and peak heat loss, floor
 //! U-value, frost depths and the frost margin, and the basement's floor and wall values.
-use super::result::RunResult;
+use super::result::{Records, RunResult};
+use super::split::HeatSplit;
 use crate::case::Case;
 
 /// Headline numbers of a run.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Headline {
     /// Annual ground heat loss, kWh (whole building; the normal year when a design winter was
     /// run).
@@ -55,8 +56,13 @@ pub fn reported_hours(r: &RunResult) -> f64 {
 /// The least temperature difference a U-value is computed for, K.
 pub const MIN_DELTA_T_K: f64 = 1.0;
 
-/// Compute the headline numbers.
+/// Compute the headline numbers of a 2D run.
 pub fn headline(case: &Case, r: &RunResult) -> Headline {
+    headline_of(case, &r.records(), &r.split)
+}
+
+/// Compute the headline numbers from a run's records and the section's heat split.
+pub fn headline_of(case: &Case, r: &Records, split: &HeatSplit) -> Headline {
     let y = r.final_year();
     let heat = r.heat_year();
     let mean_w = heat.heat_loss_kwh * 1000.0 / (24.0 * r.heat_days().len().max(1) as f64);
@@ -76,12 +82,12 @@ pub fn headline(case: &Case, r: &RunResult) -> Headline {
         mean_heat_loss_w: mean_w,
         peak_heat_loss_w: peak,
         heat_loss_per_perimeter_w_per_m: mean_w / case.building.exposed_perimeter_m,
-        floor_u_value_w_per_m2k: r.split.floor_u_w_per_m2k,
-        junction_psi_w_per_mk: r.split.psi_g_w_per_mk,
+        floor_u_value_w_per_m2k: split.floor_u_w_per_m2k,
+        junction_psi_w_per_mk: split.psi_g_w_per_mk,
         ground_u_value_incl_junction_w_per_m2k: (dtemp.abs() >= MIN_DELTA_T_K)
             .then(|| mean_w / (case.building.floor_area_m2 * dtemp)),
-        wall_above_ground_u_value_w_per_m2k: (r.split.stated_wall_height_m > 0.0)
-            .then(|| r.split.stated_wall_1d_w_per_mk / r.split.stated_wall_height_m),
+        wall_above_ground_u_value_w_per_m2k: (split.stated_wall_height_m > 0.0)
+            .then(|| split.stated_wall_1d_w_per_mk / split.stated_wall_height_m),
         wall_above_ground_heat_loss_kwh: heat.wall_above_ground_heat_loss_kwh,
         frost_depth_open_ground_m: y.max_frost_open_m,
         frost_depth_at_footing_face_m: y.max_frost_face_m,
@@ -90,7 +96,7 @@ pub fn headline(case: &Case, r: &RunResult) -> Headline {
         frost_distance_to_base_corner_m: corner.is_finite().then_some(corner),
         frost_in_protected_zone: y.min_frost_margin_m < 0.0,
         frost_margin_m: y.min_frost_margin_m,
-        design_day_of_year: r.field.day_of_year,
+        design_day_of_year: r.design_day,
     }
 }
 

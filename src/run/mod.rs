@@ -19,8 +19,8 @@ pub mod steady;
 pub mod three;
 
 pub use frost::{frost_line_c, FrostLines, ProtectedZone};
-pub use headline::{basement_values, headline, BasementValues, Headline};
-pub use result::{Day, Field, Progress, RunResult, WinterResult, Year};
+pub use headline::{basement_values, headline, headline_of, BasementValues, Headline};
+pub use result::{Day, Field, Progress, Records, RunResult, WinterResult, Year};
 pub use split::HeatSplit;
 pub use steady::{steady_flows, steady_heat_flow};
 
@@ -138,7 +138,7 @@ fn run_here(
         sim_time: 0.0,
         time_steps: 0,
     };
-    let sim = spinup::simulate(&mut drv, opts, progress)?;
+    let sim = spinup::simulate(&mut drv, opts, progress, None)?;
     let (last, stats, time_steps) = (sim.last, drv.solver.stats(), drv.time_steps);
     Ok(RunResult {
         days: last.days,
@@ -160,5 +160,6 @@ fn run_here(
         mesh: mesh.clone(),
         section,
         daily_fields: last.kept.0,
+        spin_up_state: sim.spin_up_state,
     })
 }

@@ -127,9 +127,54 @@ pub struct RunResult {
     pub time_steps: usize,
     /// Wall-clock time, s.
     pub wall_time_s: f64,
+    /// Temperatures of the unknowns at the end of the spin-up, °C (the periodic state at the
+    /// start of the spin-up year; a 3D run starts from it).
+    pub spin_up_state: Vec<f64>,
+}
+
+/// The day-by-day records of a run, 2D or 3D: what the headline numbers and the daily and
+/// monthly tables are made from.
+#[derive(Debug, Clone, Copy)]
+pub struct Records<'a> {
+    /// Days of the reported period.
+    pub days: &'a [Day],
+    /// Every simulated year.
+    pub years: &'a [Year],
+    /// Index of the reported period in `years`.
+    pub reported: usize,
+    /// The normal year's days and index when a design winter was run after it.
+    pub normal: Option<&'a (Vec<Day>, usize)>,
+    /// Day of year of the least frost margin (the design field's day).
+    pub design_day: usize,
+}
+
+impl<'a> Records<'a> {
+    /// The reported year.
+    pub fn final_year(&self) -> &'a Year {
+        &self.years[self.reported]
+    }
+    /// The year heat-loss figures come from: the normal year when a design winter was run,
+    /// else the reported one.
+    pub fn heat_year(&self) -> &'a Year {
+        self.normal.map_or(self.final_year(), |n| &self.years[n.1])
+    }
+    /// The days of [`Records::heat_year`].
+    pub fn heat_days(&self) -> &'a [Day] {
+        self.normal.map_or(self.days, |n| &n.0)
+    }
 }
 
 impl RunResult {
+    /// The run's day-by-day records.
+    pub fn records(&self) -> Records<'_> {
+        Records {
+            days: &self.days,
+            years: &self.years,
+            reported: self.reported,
+            normal: self.normal.as_ref(),
+            design_day: self.field.day_of_year,
+        }
+    }
     /// The reported year.
     pub fn final_year(&self) -> &Year {
         &self.years[self.reported]
@@ -137,13 +182,11 @@ impl RunResult {
     /// The year heat-loss figures come from: the normal year when a design winter was run,
     /// else the reported one.
     pub fn heat_year(&self) -> &Year {
-        self.normal
-            .as_ref()
-            .map_or(self.final_year(), |n| &self.years[n.1])
+        self.records().heat_year()
     }
     /// The days of [`RunResult::heat_year`].
     pub fn heat_days(&self) -> &[Day] {
-        self.normal.as_ref().map_or(&self.days, |n| &n.0)
+        self.records().heat_days()
     }
     /// Spin-up years before the reported one.
     pub fn spin_up_years(&self) -> usize {

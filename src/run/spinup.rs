@@ -34,6 +34,17 @@ pub fn thermal_offset_start(case: &Case) -> Option<f64> {
     ))
 }
 
+/// The steady heat loss at the annual means, W (whole building).
+fn steady_loss<O: Observer>(drv: &mut Driver<O>) -> Result<f64> {
+    let case = drv.case;
+    let zt = forcing::zone_temps(
+        case,
+        case.indoor_mean_c(),
+        forcing::surface(&case.climate, case.climate.mean_c),
+    );
+    Ok(drv.solver.steady(&zt, None)?.from_zone[INDOOR] * drv.scale)
+}
+
 /// Set the driver's state to the start state; returns the steady heat loss at the annual means
 /// (W, whole building).
 pub fn start<O: Observer>(drv: &mut Driver<O>) -> Result<f64> {
@@ -248,24 +259,41 @@ pub struct Simulated<K> {
     pub periodicity_kwh: Option<f64>,
     /// Steady heat loss at the annual means, W (whole building).
     pub steady_heat_loss_w: f64,
+    /// Temperatures of the unknowns at the end of the spin-up, °C: the periodic state at the
+    /// start of the spin-up year (the seed of a 3D run).
+    pub spin_up_state: Vec<f64>,
 }
 
 /// Run the case's schedule on `drv`: start state, coarse year, spin-up to a periodic year, then
-/// the design winter once, or every season of a measured series.
+/// the design winter once, or every season of a measured series. With `seed` (temperatures of the
+/// unknowns, °C: a periodic state at the start of the spin-up year mapped from another model)
+/// the run starts there, without the coarse year.
 pub fn simulate<O: Observer>(
     drv: &mut Driver<O>,
     opts: &RunOptions,
     progress: &mut dyn FnMut(Progress),
+    seed: Option<Vec<f64>>,
 ) -> Result<Simulated<O::Kept>> {
     let case = drv.case;
-    let steady_heat_loss_w = start(drv)?;
     let sched = forcing::schedule(case);
-    let coarse_spin_up_years = coarse_year(drv, &sched.spin, opts);
+    let (steady_heat_loss_w, coarse_spin_up_years) = match seed {
+        None => {
+            let w = start(drv)?;
+            (w, coarse_year(drv, &sched.spin, opts))
+        }
+        Some(t) => {
+            let w = steady_loss(drv)?;
+            drv.h = drv.net.enthalpies(&t);
+            drv.t = t;
+            (w, 0)
+        }
+    };
     let total = case.simulation.max_spin_up_years
         + 1
         + sched.seasons.len()
         + usize::from(sched.design.is_some());
     let spin = spin_up(drv, &sched.spin, progress, total)?;
+    let spin_up_state = drv.t.clone();
     let mut years = spin.years;
     let n = years.len();
     let mut normal = None;
@@ -295,5 +323,6 @@ pub fn simulate<O: Observer>(
         converged: spin.converged,
         periodicity_kwh: spin.periodicity_kwh,
         steady_heat_loss_w,
+        spin_up_state,
     })
 }

@@ -14,9 +14,9 @@
 use super::driver::Driver;
 use super::quarter::{Quarter3, QuarterYear};
 use super::spinup::{self, Simulated};
-use super::split::{self, HeatSplit};
+use super::split::HeatSplit;
 use super::{
-    forcing, model, Progress, RunOptions, GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW,
+    forcing, Progress, RunOptions, RunResult, GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW,
 };
 use crate::case::Case;
 use crate::error::Result;
@@ -46,6 +46,9 @@ pub struct Coupling3 {
 
 /// Everything a 3D run produces.
 pub struct Run3Result {
+    /// The 2D section's run of the same case (the ISO 13370 equivalent strip; its periodic
+    /// state seeds the 3D run).
+    pub two: RunResult,
     /// The quarter.
     pub quarter: Quarter,
     /// Its mesh.
@@ -142,6 +145,52 @@ pub fn coupling3(
     })
 }
 
+/// The 3D start state: the 3D steady state at the annual means plus the 2D section's periodic
+/// departure from its own steady state, T = T3D,steady + (T2D,periodic − T2D,steady) at (s, z),
+/// s = max(u, v) (where the section's cell there is air, the nearest solid cell of its row). The
+/// steady part carries the building's real plan into the deep ground, which a 2D strip of width
+/// B′ does not; the departure carries the annual wave and the frozen ground's offset.
+pub fn seed_from_2d(
+    case: &Case,
+    (q, mesh, net): (&Quarter, &Mesh3, &Network),
+    params: SolverParams,
+    two: &RunResult,
+) -> Result<Vec<f64>> {
+    let zt = forcing::zone_temps(
+        case,
+        case.indoor_mean_c(),
+        forcing::surface(&case.climate, case.climate.mean_c),
+    );
+    let g2 = &two.mesh.grid;
+    let net2 = Network::new(&two.mesh);
+    let steady2 = Solver::new(&net2, SolverParams::default())?
+        .steady(&zt, None)?
+        .t;
+    let steady3 = Solver::new(net, params)?.steady(&zt, None)?.t;
+    let t2 = &two.spin_up_state;
+    let at = |i: usize, j: usize| {
+        let p = net2.unk_of[g2.id(i, j)];
+        (p != usize::MAX).then(|| t2[p] - steady2[p])
+    };
+    let g = &mesh.grid;
+    Ok(net
+        .cell_of
+        .iter()
+        .zip(steady3)
+        .map(|(&id, t3)| {
+            let (i, j, k) = g.ijk(id);
+            let s = q.s(Grid3::centre(&g.xe, i), Grid3::centre(&g.ye, j));
+            let (i2, j2) = (g2.find_x(s), g2.find_z(Grid3::centre(&g.ze, k)));
+            let dep = at(i2, j2).or_else(|| {
+                (1..g2.nx()).find_map(|d| {
+                    at(i2.saturating_sub(d), j2).or_else(|| at((i2 + d).min(g2.nx() - 1), j2))
+                })
+            });
+            t3 + dep.unwrap_or(0.0)
+        })
+        .collect())
+}
+
 /// Run `case` in 3D (it must have a plan).
 pub fn run3(
     case: &Case,
@@ -149,10 +198,11 @@ pub fn run3(
     progress: &mut (dyn FnMut(Progress) + Send),
 ) -> Result<Run3Result> {
     let start = std::time::Instant::now();
+    let two = super::run_with(case, opts, &mut |_| {})?;
     let (q, mesh, net) = model3(case);
-    let (_, mesh2, net2) = model(case);
-    let split = split::split(case, &mesh2, &net2)?;
+    let split = two.split.clone();
     let params = params3(opts);
+    let seed = seed_from_2d(case, (&q, &mesh, &net), params, &two)?;
     let quarter_len = 0.25 * case.building.exposed_perimeter_m;
     let mut drv = Driver {
         case,
@@ -173,11 +223,12 @@ pub fn run3(
         solver: params,
         coarse_limits: opts.coarse_limits,
     };
-    let sim = spinup::simulate(&mut drv, &opts3, progress)?;
+    let sim = spinup::simulate(&mut drv, &opts3, progress, Some(seed))?;
     let (stats, time_steps) = (drv.solver.stats(), drv.time_steps);
     drop(drv);
     let coupling = coupling3(case, &net, &split, params)?;
     Ok(Run3Result {
+        two,
         unknowns: net.n,
         quarter: q,
         mesh,

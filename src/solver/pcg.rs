@@ -31,7 +31,7 @@ pub struct PcgParams {
 impl Default for PcgParams {
     fn default() -> Self {
         PcgParams {
-            rel_tol: 1e-10,
+            rel_tol: 1e-8,
             max_iter: 5000,
             omega: 0.95,
         }
@@ -39,13 +39,30 @@ impl Default for PcgParams {
 }
 
 /// A reusable preconditioned-CG solver for one sparsity pattern.
+///
+/// The iteration is memory-bound on large grids, so the pattern is held in 32-bit indices and the
+/// preconditioner's values in single precision (it only has to be close to A; CG itself runs in
+/// double precision with A's own values).
 pub struct PcgSolver {
     n: usize,
     col_ptr: Vec<usize>,
-    row_idx: Vec<usize>,
-    /// Strict lower part by rows: for row i, entries row_ptr[i]..row_ptr[i+1] of (column, slot).
-    row_ptr: Vec<usize>,
-    row_entries: Vec<(usize, usize)>,
+    /// Column pointers and row indices of the lower pattern, 32-bit.
+    col_ptr32: Vec<u32>,
+    row32: Vec<u32>,
+    /// Strict lower part by rows: for row i, entries row_ptr[i]..row_ptr[i+1]
+    /// of (column, slot).
+    row_ptr: Vec<u32>,
+    lo_col: Vec<u32>,
+    lo_slot: Vec<u32>,
+    /// … and by columns: for column i, entries up_ptr[i]..up_ptr[i+1] of (row, slot).
+    up_ptr: Vec<u32>,
+    up_row: Vec<u32>,
+    up_slot: Vec<u32>,
+    /// The preconditioner's off-diagonal values, by rows (forward) and by columns (backward).
+    lo_val: Vec<f32>,
+    up_val: Vec<f32>,
+    /// 1/d of the incomplete factor.
+    dinv: Vec<f32>,
     d: Vec<f64>,
     factored: Vec<f64>,
     valid: bool,
@@ -65,23 +82,37 @@ impl PcgSolver {
     /// A solver for the n × n pattern (lower triangle, CSC, diagonal first in each column).
     pub fn new(n: usize, col_ptr: Vec<usize>, row_idx: Vec<usize>, params: PcgParams) -> Self {
         let mut count = vec![0usize; n + 1];
+        let (mut up_ptr, mut up_row, mut up_slot) = (vec![0u32], Vec::new(), Vec::new());
         for c in 0..n {
-            for &r in &row_idx[col_ptr[c]..col_ptr[c + 1]] {
+            for (slot, &r) in row_idx
+                .iter()
+                .enumerate()
+                .take(col_ptr[c + 1])
+                .skip(col_ptr[c])
+            {
                 if r > c {
                     count[r + 1] += 1;
+                    up_row.push(r as u32);
+                    up_slot.push(slot as u32);
                 }
             }
+            up_ptr.push(up_row.len() as u32);
         }
         for i in 0..n {
             count[i + 1] += count[i];
         }
-        let mut row_entries = vec![(0, 0); count[n]];
+        assert!(
+            row_idx.len() < u32::MAX as usize,
+            "pattern too large for 32-bit indices"
+        );
+        let (mut lo_col, mut lo_slot) = (vec![0u32; count[n]], vec![0u32; count[n]]);
         let mut next = count.clone();
         for c in 0..n {
             for slot in col_ptr[c]..col_ptr[c + 1] {
                 let r = row_idx[slot];
                 if r > c {
-                    row_entries[next[r]] = (c, slot);
+                    lo_col[next[r]] = c as u32;
+                    lo_slot[next[r]] = slot as u32;
                     next[r] += 1;
                 }
             }
@@ -89,10 +120,18 @@ impl PcgSolver {
         PcgSolver {
             n,
             factored: vec![f64::NAN; row_idx.len()],
+            col_ptr32: col_ptr.iter().map(|&v| v as u32).collect(),
+            row32: row_idx.iter().map(|&v| v as u32).collect(),
+            lo_val: vec![0.0; lo_col.len()],
+            up_val: vec![0.0; up_row.len()],
+            up_ptr,
+            up_row,
+            up_slot,
+            dinv: vec![0.0; n],
             col_ptr,
-            row_idx,
-            row_ptr: count,
-            row_entries,
+            row_ptr: count.iter().map(|&v| v as u32).collect(),
+            lo_col,
+            lo_slot,
             d: vec![0.0; n],
             valid: false,
             params,
@@ -109,16 +148,16 @@ impl PcgSolver {
         let n = self.n;
         let colsum: Vec<f64> = (0..n)
             .map(|c| {
-                (self.col_ptr[c] + 1..self.col_ptr[c + 1])
-                    .map(|s| vals[s])
-                    .sum()
+                let (k0, k1) = (self.up_ptr[c] as usize, self.up_ptr[c + 1] as usize);
+                self.up_slot[k0..k1].iter().map(|&s| vals[s as usize]).sum()
             })
             .collect();
         for i in 0..n {
             let a_ii = vals[self.col_ptr[i]];
             let mut d = a_ii;
-            for &(j, slot) in &self.row_entries[self.row_ptr[i]..self.row_ptr[i + 1]] {
-                let a = vals[slot];
+            let (k0, k1) = (self.row_ptr[i] as usize, self.row_ptr[i + 1] as usize);
+            for (&j, &slot) in self.lo_col[k0..k1].iter().zip(&self.lo_slot[k0..k1]) {
+                let (j, a) = (j as usize, vals[slot as usize]);
                 d -= (a * a + self.params.omega * a * (colsum[j] - a)) / self.d[j];
             }
             let small = d.partial_cmp(&(1e-3 * a_ii)) != Some(std::cmp::Ordering::Greater);
@@ -131,6 +170,13 @@ impl PcgSolver {
                 d = 1e-3 * a_ii;
             }
             self.d[i] = d;
+            self.dinv[i] = (1.0 / d) as f32;
+        }
+        for (v, &slot) in self.lo_val.iter_mut().zip(&self.lo_slot) {
+            *v = vals[slot as usize] as f32;
+        }
+        for (v, &slot) in self.up_val.iter_mut().zip(&self.up_slot) {
+            *v = vals[slot as usize] as f32;
         }
         self.factored.copy_from_slice(vals);
         self.valid = true;
@@ -138,22 +184,23 @@ impl PcgSolver {
         Ok(())
     }
 
-    /// z = M⁻¹ r.
+    /// z = M⁻¹ r: forward and backward substitution.
     fn apply(&self, r: &[f64], z: &mut [f64]) {
-        let vals = &self.factored;
         for i in 0..self.n {
             let mut s = r[i];
-            for &(j, slot) in &self.row_entries[self.row_ptr[i]..self.row_ptr[i + 1]] {
-                s -= vals[slot] * z[j];
+            let (k0, k1) = (self.row_ptr[i] as usize, self.row_ptr[i + 1] as usize);
+            for (&j, &a) in self.lo_col[k0..k1].iter().zip(&self.lo_val[k0..k1]) {
+                s -= f64::from(a) * z[j as usize];
             }
-            z[i] = s / self.d[i];
+            z[i] = s * f64::from(self.dinv[i]);
         }
         for i in (0..self.n).rev() {
             let mut s = 0.0;
-            for slot in self.col_ptr[i] + 1..self.col_ptr[i + 1] {
-                s += vals[slot] * z[self.row_idx[slot]];
+            let (k0, k1) = (self.up_ptr[i] as usize, self.up_ptr[i + 1] as usize);
+            for (&q, &a) in self.up_row[k0..k1].iter().zip(&self.up_val[k0..k1]) {
+                s += f64::from(a) * z[q as usize];
             }
-            z[i] -= s / self.d[i];
+            z[i] -= s * f64::from(self.dinv[i]);
         }
     }
 
@@ -161,12 +208,12 @@ impl PcgSolver {
     fn matvec(&self, vals: &[f64], x: &[f64], y: &mut [f64]) {
         y.iter_mut().for_each(|v| *v = 0.0);
         for c in 0..self.n {
-            let (start, end) = (self.col_ptr[c], self.col_ptr[c + 1]);
-            let mut yc = vals[start] * x[c];
-            for slot in start + 1..end {
-                let r = self.row_idx[slot];
-                let a = vals[slot];
-                y[r] += a * x[c];
+            let (start, end) = (self.col_ptr32[c] as usize, self.col_ptr32[c + 1] as usize);
+            let xc = x[c];
+            let mut yc = vals[start] * xc;
+            for (&r, &a) in self.row32[start + 1..end].iter().zip(&vals[start + 1..end]) {
+                let r = r as usize;
+                y[r] += a * xc;
                 yc += a * x[r];
             }
             y[c] += yc;
@@ -195,12 +242,14 @@ impl PcgSolver {
             self.matvec(vals, &p, &mut q);
             let pq: f64 = p.iter().zip(&q).map(|(a, b)| a * b).sum();
             let alpha = rz / pq;
+            let mut r2 = 0.0;
             for k in 0..self.n {
                 x[k] += alpha * p[k];
                 r[k] -= alpha * q[k];
+                r2 += r[k] * r[k];
             }
             it += 1;
-            let r_norm = r.iter().map(|v| v * v).sum::<f64>().sqrt();
+            let r_norm = r2.sqrt();
             if r_norm <= self.params.rel_tol * b_norm {
                 done = true;
                 break;
