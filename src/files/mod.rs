@@ -61,6 +61,38 @@ pub fn read_summary(dir: &Path) -> Result<Summary> {
     serde_json::from_str(&read_text(dir, name)?).map_err(|e| bad_file(dir, name, e))
 }
 
+/// `three_d.json` of `dir`, if the run was 3D; checked for consistent lengths.
+pub fn read_three_d(dir: &Path) -> Result<Option<three::ThreeDFile>> {
+    let name = "three_d.json";
+    if !dir.join(name).exists() {
+        return Ok(None);
+    }
+    let f: three::ThreeDFile =
+        serde_json::from_str(&read_text(dir, name)?).map_err(|e| bad_file(dir, name, e))?;
+    let increasing = |e: &[f64]| e.len() >= 2 && e.windows(2).all(|w| w[1] > w[0]);
+    if !increasing(&f.xe) || !increasing(&f.ye) {
+        return Err(bad_file(dir, name, "plan edges xe, ye must increase"));
+    }
+    if f.plan_frost_m.len() != (f.xe.len() - 1) * (f.ye.len() - 1) {
+        return Err(bad_file(
+            dir,
+            name,
+            "plan_frost_m must hold one value per plan cell",
+        ));
+    }
+    for s in &f.slices {
+        let n = (s.xe.len().max(1) - 1) * (s.ze.len().max(1) - 1);
+        if !increasing(&s.xe) || !increasing(&s.ze) || s.t.len() != n || s.frost.len() != n {
+            return Err(bad_file(
+                dir,
+                name,
+                format!("slice '{}' is inconsistent", s.title),
+            ));
+        }
+    }
+    Ok(Some(f))
+}
+
 /// `sizing.json` of `dir`, if there is one.
 pub fn read_sizing(dir: &Path) -> Result<Option<SizingFile>> {
     let name = "sizing.json";

@@ -2,7 +2,7 @@
 //! reported period), the plotted frost line and `plots.json`: what `frostline plot` re-renders
 //! from.
 use super::{bad_file, read_text, COORDINATES};
-use crate::case::{layout::part_name, Case, Part};
+use crate::case::{layout::part_name, layout::Rect, Case, Part};
 use crate::error::{Error, Result};
 use crate::run::RunResult;
 use ndarray::{Array3, ArrayView3};
@@ -61,30 +61,33 @@ pub struct SectionFile {
     pub fields_format: String,
 }
 
+/// The outlines of the section's construction parts.
+pub fn part_outlines(rects: &[Rect]) -> Vec<PartOutline> {
+    rects
+        .iter()
+        .map(|rc| {
+            let kind = match rc.part {
+                Part::Slab | Part::Wall | Part::Footing => "concrete",
+                Part::Fill | Part::Backfill => "fill",
+                Part::Insulation(_) => "insulation",
+            };
+            PartOutline {
+                label: part_name(rc.part),
+                kind: kind.into(),
+                x0: rc.x0,
+                x1: rc.x1,
+                z0: rc.z0,
+                z1: rc.z1,
+            }
+        })
+        .collect()
+}
+
 impl SectionFile {
     /// The section file of a run.
     pub fn new(case: &Case, r: &RunResult) -> Self {
         let g = &r.mesh.grid;
-        let parts = r
-            .section
-            .rects
-            .iter()
-            .map(|rc| {
-                let kind = match rc.part {
-                    Part::Slab | Part::Wall | Part::Footing => "concrete",
-                    Part::Fill | Part::Backfill => "fill",
-                    Part::Insulation(_) => "insulation",
-                };
-                PartOutline {
-                    label: part_name(rc.part),
-                    kind: kind.into(),
-                    x0: rc.x0,
-                    x1: rc.x1,
-                    z0: rc.z0,
-                    z1: rc.z1,
-                }
-            })
-            .collect();
+        let parts = part_outlines(&r.section.rects);
         SectionFile {
             case_name: case.name.clone(),
             coordinates: COORDINATES.into(),

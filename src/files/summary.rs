@@ -6,7 +6,7 @@ use crate::run::{self, RunResult, WinterResult, Year};
 use serde::{Deserialize, Serialize};
 
 /// The caution carried by every report and file.
-pub const CAUTION: &str = "Results are engineering estimates from a 2D model with idealised soil and climate. \
+pub const CAUTION: &str = "Results are engineering estimates from a 2D or 3D heat-conduction model with idealised soil and climate. \
 They do not replace the judgement of a licensed engineer; local codes and standards govern the design of \
 foundations and frost protection.";
 

@@ -1,6 +1,7 @@
 //! The 3D run's files: the `three_d` block of `summary.json`, `daily_3d.csv`, `monthly_3d.csv`,
 //! `perimeter.csv`, `plan_frost.csv` and `three_d.json` (the plan map, the design day's
 //! sections at mid-wall and along the corner diagonal, and the outlines the plots draw).
+use super::section::{part_outlines, PartOutline};
 use super::tables::{self, csv_bytes, fmt};
 use super::{write_atomic, write_json};
 use crate::analysis::frost_scalar;
@@ -164,21 +165,23 @@ pub struct Slice {
     pub t: Vec<Option<f64>>,
     /// Frost scalar, °C (as `t`).
     pub frost: Vec<Option<f64>>,
+    /// Construction outlines in the section (the diagonal adds the corner pieces).
+    pub parts: Vec<PartOutline>,
 }
 
-/// A rectangle of the plan (quarter coordinates), m, with what it is.
+/// A band of the plan round the building between section coordinates `s0_m` and `s1_m` (m from
+/// the wall's exterior face, outward positive), all round or only within `length_m` of each
+/// exterior corner (measured along the wall from the corner).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct PlanRect {
+pub struct PlanBand {
     /// "wall", "footing", "insulation" or "corner insulation".
     pub kind: String,
-    /// X range, m.
-    pub x0: f64,
-    /// …
-    pub x1: f64,
-    /// Y range, m.
-    pub y0: f64,
-    /// …
-    pub y1: f64,
+    /// Inner edge, m.
+    pub s0_m: f64,
+    /// Outer edge, m.
+    pub s1_m: f64,
+    /// Extent from each corner along the walls, m (None: all round).
+    pub length_m: Option<f64>,
 }
 
 /// `three_d.json`: what the 3D plots draw.
@@ -196,8 +199,8 @@ pub struct ThreeDFile {
     pub ye: Vec<f64>,
     /// Deepest frost of every plan column over the reported period (ny rows of nx), m.
     pub plan_frost_m: Vec<f64>,
-    /// Plan outlines (quarter; the plots mirror them).
-    pub plan_rects: Vec<PlanRect>,
+    /// Plan outlines: bands round the building.
+    pub plan_bands: Vec<PlanBand>,
     /// Frost-line temperature, °C.
     pub frost_line_c: f64,
     /// Footing base depth, m.
@@ -272,7 +275,7 @@ fn cell_values(r: &Run3Result, i: usize, j: usize, k: usize) -> Option<(f64, f64
 
 /// The section at mid-wall of the long wall (X = 0, along Y) and the one along the corner's
 /// diagonal (cells (i, j) with X − a = Y − b as near as the grids allow).
-fn slices(r: &Run3Result) -> Vec<Slice> {
+fn slices(case: &Case, r: &Run3Result) -> Vec<Slice> {
     let g = &r.mesh.grid;
     let (a, b) = (r.quarter.a, r.quarter.b);
     let nz = g.nz();
@@ -286,6 +289,7 @@ fn slices(r: &Run3Result) -> Vec<Slice> {
         ze: g.ze.clone(),
         t: Vec::new(),
         frost: Vec::new(),
+        parts: part_outlines(&r.two.section.rects),
     };
     for k in 0..nz {
         for j in 0..g.ny() {
@@ -318,6 +322,27 @@ fn slices(r: &Run3Result) -> Vec<Slice> {
         ze: g.ze.clone(),
         t: Vec::new(),
         frost: Vec::new(),
+        parts: part_outlines(&r.two.section.rects)
+            .into_iter()
+            .chain(case.corners.iter().enumerate().filter_map(|(n, c)| {
+                let InsulationKind::Wing {
+                    depth_m,
+                    x_start_m,
+                    width_m,
+                } = c.piece.kind
+                else {
+                    return None;
+                };
+                Some(PartOutline {
+                    label: format!("corner[{n}]"),
+                    kind: "insulation".into(),
+                    x0: x_start_m,
+                    x1: width_m,
+                    z0: depth_m,
+                    z1: depth_m + c.piece.thickness_m,
+                })
+            }))
+            .collect(),
     };
     for k in 0..nz {
         for &(i, j) in &cols {
@@ -329,38 +354,25 @@ fn slices(r: &Run3Result) -> Vec<Slice> {
     vec![mid, diag]
 }
 
-/// Plan outlines of the quarter: wall and footing bands, wing insulation bands, corner pieces.
-fn plan_rects(case: &Case, r: &Run3Result) -> Vec<PlanRect> {
-    let (a, b) = (r.quarter.a, r.quarter.b);
-    let mut out = Vec::new();
-    // A band between section x = s0 and s1 round the quarter: two rectangles, mitred at the
-    // corner (the corner square belongs to the first), optionally only within `len` of it.
-    let mut band = |kind: &str, s0: f64, s1: f64, len: Option<f64>| {
-        let (x_from, y_from) = len.map_or((0.0, 0.0), |l| (a - l, b - l));
-        out.push(PlanRect {
-            kind: kind.into(),
-            x0: a + s0,
-            x1: a + s1,
-            y0: y_from,
-            y1: b + s1,
-        });
-        out.push(PlanRect {
-            kind: kind.into(),
-            x0: x_from,
-            x1: a + s0,
-            y0: b + s0,
-            y1: b + s1,
-        });
+/// Plan outlines: the wall and footing bands, wing insulation, corner pieces.
+fn plan_bands(case: &Case) -> Vec<PlanBand> {
+    let band = |kind: &str, s0_m: f64, s1_m: f64, length_m: Option<f64>| PlanBand {
+        kind: kind.into(),
+        s0_m,
+        s1_m,
+        length_m,
     };
-    band("wall", -case.wall.thickness_m, 0.0, None);
     let (x0, x1) = case.footing_x();
-    band("footing", x0, x1, None);
+    let mut out = vec![
+        band("wall", -case.wall.thickness_m, 0.0, None),
+        band("footing", x0, x1, None),
+    ];
     for ins in &case.insulation {
         if let InsulationKind::Wing {
             x_start_m, width_m, ..
         } = ins.kind
         {
-            band("insulation", x_start_m, width_m, None);
+            out.push(band("insulation", x_start_m, width_m, None));
         }
     }
     for c in &case.corners {
@@ -368,7 +380,12 @@ fn plan_rects(case: &Case, r: &Run3Result) -> Vec<PlanRect> {
             x_start_m, width_m, ..
         } = c.piece.kind
         {
-            band("corner insulation", x_start_m, width_m, Some(c.length_m));
+            out.push(band(
+                "corner insulation",
+                x_start_m,
+                width_m,
+                Some(c.length_m),
+            ));
         }
     }
     out
@@ -387,11 +404,11 @@ pub fn three_d_file(case: &Case, r: &Run3Result) -> ThreeDFile {
         xe: g.xe.clone(),
         ye: g.ye.clone(),
         plan_frost_m: y.plan_frost_m.iter().copied().collect(),
-        plan_rects: plan_rects(case, r),
+        plan_bands: plan_bands(case),
         frost_line_c: frost_line_c(case),
         footing_base_depth_m: case.footing.base_depth_m,
         design_day: y.design_day,
-        slices: slices(r),
+        slices: slices(case, r),
         perimeter: rows
             .iter()
             .map(|(_, d, s)| [*d, s.face_m, s.under_footing_m, s.beside_wall_m, s.margin_m])

@@ -7,7 +7,7 @@ pub mod data;
 
 use crate::analysis::isolines::{self, isolines};
 use crate::error::{Error, InputKind, Result};
-use crate::files::{PlotEntry, PlotIndex};
+use crate::files::{section::PartOutline, PlotEntry, PlotIndex};
 use data::PlotData;
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
@@ -178,10 +178,10 @@ fn draw_isotherms<DB: DrawingBackend>(
 /// Outlines of the construction parts (insulation in magenta).
 fn draw_outlines<DB: DrawingBackend>(
     chart: &mut Section2d<DB>,
-    d: &PlotData,
+    parts: &[PartOutline],
     v: View,
 ) -> Result<()> {
-    for p in &d.parts {
+    for p in parts {
         let colour = if p.kind == "insulation" {
             RGBColor(220, 0, 140)
         } else {
@@ -238,11 +238,37 @@ fn draw_colour_bar<DB: DrawingBackend>(
     Ok(())
 }
 
-/// Draw the field of `day` (index into the saved days) in view `v`.
+/// A vertical section's field to draw: cell edges, temperature and frost scalar per cell
+/// (row-major nz × nx, NaN for air), the construction outlines and the frost-line temperature.
+pub(crate) struct FieldView<'a> {
+    xe: &'a [f64],
+    ze: &'a [f64],
+    t: Vec<f64>,
+    frost: Vec<f64>,
+    parts: &'a [PartOutline],
+    frost_line_c: f64,
+    x_desc: &'a str,
+}
+
+impl<'a> FieldView<'a> {
+    /// The saved 2D field of day index `day`.
+    fn of_day(d: &'a PlotData, day: usize) -> Self {
+        FieldView {
+            xe: &d.xe,
+            ze: &d.ze,
+            t: d.field(day).iter().copied().collect(),
+            frost: d.frost_field(day),
+            parts: &d.parts,
+            frost_line_c: d.frost_line_c,
+            x_desc: "x (m), 0 at the wall's exterior face",
+        }
+    }
+}
+
+/// Draw the field `f` in view `v`.
 fn draw_field<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
-    d: &PlotData,
-    day: usize,
+    f: &FieldView,
     v: View,
     interval: f64,
     title: &str,
@@ -261,19 +287,18 @@ fn draw_field<DB: DrawingBackend>(
     chart
         .configure_mesh()
         .disable_mesh()
-        .x_desc("x (m), 0 at the wall's exterior face")
+        .x_desc(f.x_desc)
         .y_desc("depth z (m) below ground")
         .label_style(("sans-serif", 13))
         .draw()
         .map_err(out_err)?;
-    let field: Vec<f64> = d.field(day).iter().copied().collect();
-    let field = &field[..];
-    let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
+    let field = &f.t[..];
+    let (nx, nz) = (f.xe.len() - 1, f.ze.len() - 1);
     let cells = (0..nz)
         .flat_map(|j| (0..nx).map(move |i| (i, j)))
         .filter_map(|(i, j)| {
             let t = field[j * nx + i];
-            let (xa, xb, za, zb) = (d.xe[i], d.xe[i + 1], d.ze[j], d.ze[j + 1]);
+            let (xa, xb, za, zb) = (f.xe[i], f.xe[i + 1], f.ze[j], f.ze[j + 1]);
             (t.is_finite() && xb > v.x0 && xa < v.x1 && zb > v.z0 && za < v.z1).then(|| {
                 Rectangle::new(
                     [(xa.max(v.x0), za.max(v.z0)), (xb.min(v.x1), zb.min(v.z1))],
@@ -283,15 +308,15 @@ fn draw_field<DB: DrawingBackend>(
         });
     chart.draw_series(cells).map_err(out_err)?;
     // Isotherms.
-    let xs: Vec<f64> = d.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
-    let zs: Vec<f64> = d.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let xs: Vec<f64> = f.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let zs: Vec<f64> = f.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
     let (lo, hi) = field
         .iter()
         .filter(|t| t.is_finite())
         .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
     let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
     draw_isotherms(&mut chart, (&xs, &zs, field), v, (lo, hi, interval))?;
-    draw_outlines(&mut chart, d, v)?;
+    draw_outlines(&mut chart, f.parts, v)?;
     // Ground line outside, and the frost line.
     chart
         .draw_series(std::iter::once(PathElement::new(
@@ -299,7 +324,7 @@ fn draw_field<DB: DrawingBackend>(
             RGBColor(90, 60, 30).stroke_width(2),
         )))
         .map_err(out_err)?;
-    let frost = isolines(&xs, &zs, &d.frost_field(day), d.frost_line_c);
+    let frost = isolines(&xs, &zs, &f.frost, f.frost_line_c);
     for pts in frost.iter().flat_map(|l| runs_inside(l, &inside)) {
         if pts.len() >= 2 {
             chart
@@ -311,7 +336,7 @@ fn draw_field<DB: DrawingBackend>(
         }
     }
     let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
-    draw_colour_bar(&right, (tmin, tmax), d.frost_line_c)?;
+    draw_colour_bar(&right, (tmin, tmax), f.frost_line_c)?;
     root.present().map_err(out_err)?;
     Ok(frost)
 }
@@ -398,7 +423,7 @@ fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)>
             "{} — day {}; bold: frost line ({:.2} °C)",
             d.case_name, d.days[k].day_of_year, d.frost_line_c
         );
-        draw_field(&root, d, k, view, 1.0, &t, range)?;
+        draw_field(&root, &FieldView::of_day(d, k), view, 1.0, &t, range)?;
     }
     let entry = PlotEntry {
         file: "soil_temperature.gif".into(),
@@ -447,7 +472,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         "soil_temperature",
         field_size(full),
         files,
-        draw_field(&d, day, full, 2.0, &title, None)
+        draw_field(&FieldView::of_day(&d, day), full, 2.0, &title, None)
     );
     let zoom = match opts.zoom {
         Some([x0, x1, z0, z1]) => View { x0, x1, z0, z1 },
@@ -471,7 +496,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         "soil_temperature_zoom",
         field_size(zoom),
         files,
-        draw_field(&d, day, zoom, 1.0, &ztitle, None)
+        draw_field(&FieldView::of_day(&d, day), zoom, 1.0, &ztitle, None)
     );
     // The frost line drawn on the field, saved as data.
     files.push(crate::files::write_atomic(
@@ -483,6 +508,9 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     charts::heat_loss(dir, &d, &mut files)?;
     if !d.probe_names.is_empty() {
         charts::probes(dir, &d, &mut files)?;
+    }
+    if let Some(f) = crate::files::read_three_d(dir)? {
+        sizes.extend(three::render(dir, &f, &mut files)?);
     }
     if let Some(w) = charts::read_winters(dir)? {
         charts::winters(dir, &d, &w, &mut files)?;
@@ -506,3 +534,4 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
 }
 
 pub mod charts;
+pub mod three;

@@ -59,7 +59,7 @@ pub const FIGURES: &[(&str, &str)] = &[
 ];
 
 /// `v` with `d` decimals, "–" if not finite.
-fn f(v: f64, d: usize) -> String {
+pub(super) fn f(v: f64, d: usize) -> String {
     if v.is_finite() {
         format!("{v:.d$}")
     } else {
@@ -93,6 +93,9 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         escape(COORDINATES),
         escape(&s.note)
     ));
+    if let Some(s3) = &s.three_d {
+        h.push_str(&super::three::html(s3, dir));
+    }
     h.push_str(&results(&s));
     if let Some(z) = &sizing {
         h.push_str(&super::sizing::html(z));
@@ -100,7 +103,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
     if s.frost_margin_m < 0.0 {
         h.push_str("<p class=\"caution\"><strong>Frost reaches below the footing base</strong> in this run.</p>\n");
     }
-    h.push_str(&figures(dir));
+    h.push_str(&figures(dir, FIGURES, "Figures of the 2D section"));
     h.push_str(&numerics(&s));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
     h.push_str(&format!(
@@ -113,7 +116,11 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
     h.push_str("<h2 id=\"cautions\">Cautions</h2>\n<ul>\n");
     for c in [
         CAUTION,
-        "A 2D section cannot resolve the colder outside corners of a building, where frost goes deeper; corners need their own, conservative protection.",
+        if s.three_d.is_some() {
+            "The 3D model takes the plan as a rectangle with the same foundation detail all round; re-entrant corners, openings, and soil or snow that vary round the building are not modelled."
+        } else {
+            "A 2D section cannot resolve the colder outside corners of a building, where frost goes deeper; corners need their own check (run the case in 3D with simulation.model = \"3d\")."
+        },
         "Soil, water content, snow cover, drainage, frost-susceptible fill and construction quality govern real frost behaviour; the model assumes the stated homogeneous strata and climate.",
         "The ISO 13370 U-value shown excludes the wall/floor junction; the model includes it.",
     ] {
@@ -125,7 +132,12 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
 
 /// The results table: model beside the published methods.
 fn results(s: &Summary) -> String {
-    let mut h = String::from("<h2 id=\"results\">Results</h2>\n<table>\n<tr><th>quantity</th><th>unit</th><th>model</th><th>published method</th><th>method</th></tr>\n");
+    let heading = if s.three_d.is_some() {
+        "Results of the 2D section (the ISO 13370 equivalent strip)"
+    } else {
+        "Results"
+    };
+    let mut h = format!("<h2 id=\"results\">{heading}</h2>\n<table>\n<tr><th>quantity</th><th>unit</th><th>model</th><th>published method</th><th>method</th></tr>\n");
     for r in heat_rows(s)
         .into_iter()
         .chain(frost_rows(s))
@@ -279,9 +291,9 @@ fn basement_rows(s: &Summary) -> Vec<Row> {
 }
 
 /// The embedded figures that exist in `dir`.
-fn figures(dir: &Path) -> String {
-    let mut h = String::from("<h2 id=\"figures\">Figures</h2>\n");
-    for (stem, caption) in FIGURES {
+pub(super) fn figures(dir: &Path, list: &[(&str, &str)], heading: &str) -> String {
+    let mut h = format!("<h2>{heading}</h2>\n");
+    for (stem, caption) in list {
         if let Ok(bytes) = std::fs::read(dir.join(format!("{stem}.png"))) {
             h.push_str(&format!(
                 "<figure id=\"fig-{stem}\"><img alt=\"{}\" src=\"data:image/png;base64,{}\"><figcaption>{}</figcaption></figure>\n",

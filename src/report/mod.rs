@@ -4,5 +4,6 @@
 pub mod html;
 pub mod sizing;
 pub mod text;
+pub mod three;
 
 pub use crate::files::{CAUTION, COORDINATES};
