@@ -49,7 +49,7 @@ impl Section {
     /// Breakpoints of the graded axes: every construction edge, the wall faces, ground level,
     /// the strata boundaries and the domain's ends, with the cell size wanted at each.
     pub fn breakpoints(&self, case: &Case) -> (Vec<Breakpoint>, Vec<Breakpoint>) {
-        self.breakpoints_sized(case, case.simulation.mesh.sizes())
+        self.breakpoints_sized(case, case.simulation.sizes_2d())
     }
 
     /// [`Self::breakpoints`] for the mesh sizes (edge size, growth, largest size), m.
@@ -94,7 +94,7 @@ impl Section {
 
     /// The graded grid of the section (every construction edge on a grid line).
     pub fn grid(&self, case: &Case) -> Grid {
-        let (_, growth, hmax) = case.simulation.mesh.sizes();
+        let (_, growth, hmax) = case.simulation.sizes_2d();
         let (bx, bz) = self.breakpoints(case);
         Grid {
             xe: graded_edges(&bx, growth, hmax),

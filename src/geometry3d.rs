@@ -94,7 +94,7 @@ impl Quarter {
 
     /// The graded edges of X (or Y, with `face` = b) for the section's breakpoints `bs`.
     fn axis(&self, case: &Case, bs: &[Breakpoint], face: f64) -> Vec<f64> {
-        let (h0, growth, hmax) = case.simulation.mesh.sizes_3d();
+        let (h0, growth, hmax) = case.simulation.sizes_3d();
         let bp = |at: f64, size: f64| Breakpoint { at, size };
         let end = face + self.d;
         let mut pts = vec![bp(0.0, (4.0 * h0).min(hmax)), bp(end, hmax)];
@@ -122,7 +122,7 @@ impl Quarter {
     /// The graded grid of the quarter: the section's breakpoints on both plan axes (every
     /// construction edge on a grid plane, at X = a + s and Y = b + s), the corner pieces' edges.
     pub fn grid(&self, case: &Case) -> Grid3 {
-        let sizes = case.simulation.mesh.sizes_3d();
+        let sizes = case.simulation.sizes_3d();
         let (h0, growth, hmax) = sizes;
         let (bx, mut bz) = self.section.breakpoints_sized(&self.case, sizes);
         for c in &case.corners {

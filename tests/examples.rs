@@ -267,3 +267,53 @@ fn kettle_hollow_series_coarse() {
     assert!(out.join("winters.csv").exists() && out.join("winters.png").exists());
     crate::plots::check_plots(&out, &s);
 }
+
+/// The 3D demo (Alder Bend house, corner boards) on the coarse mesh, every 3D file and plot.
+/// Checks: the 2D keys as for every example; energy balance and periodic state of the 3D run;
+/// the corner's frost at the footing face at least the mid-wall's (a convex corner loses heat
+/// through two faces: the reason the issue asks for the corner check); the whole-building loss
+/// against the ISO 13370 equivalent strip (2D × P) in [1.00, 1.06]. The band is ours, not a
+/// published one: corners add heat flow, so the ratio exceeds 1 (tests/three_d.rs shows the
+/// excess falling as the corners' share of the perimeter falls); 6 % is about 1.5 times the
+/// largest excess measured on this demo (coarse 2.2 %, normal 2.8 %, without corner boards
+/// 4.1 %).
+#[test]
+fn alder_bend_house_3d_coarse() {
+    let (s, out, stdout) = run_example("alder-bend-house-3d", &["--quiet", "--mesh", "coarse"]);
+    let t = &s["three_d"];
+    let n = |v: &Value| v.as_f64().unwrap();
+    let ratio = n(&t["annual_heat_loss_ratio_3d_to_2d"]);
+    assert!((1.0..1.06).contains(&ratio), "3D / strip {ratio}");
+    assert!(n(&t["energy_balance_error"]).abs() < 1e-6);
+    assert!(t["spin_up_converged"].as_bool().unwrap());
+    assert!(n(&t["corner"]["face_m"]) >= n(&t["mid_long_wall"]["face_m"]));
+    assert!(n(&t["corner"]["face_m"]) >= n(&t["mid_short_wall"]["face_m"]));
+    let kwh = n(&t["headline"]["annual_heat_loss_kwh"]);
+    assert!((kwh - n(&t["headline"]["mean_heat_loss_w"]) * 8.76).abs() < 1e-6 * kwh);
+    assert!(stdout.contains("3D model"), "terminal lacks the 3D block");
+    for f in [
+        "daily_3d.csv",
+        "monthly_3d.csv",
+        "perimeter.csv",
+        "plan_frost.csv",
+        "three_d.json",
+        "plan_frost.png",
+        "perimeter_frost.png",
+        "section_mid_wall.png",
+        "section_corner_diagonal.png",
+    ] {
+        assert!(out.join(f).exists(), "{f} missing");
+    }
+    // The perimeter file runs from mid long wall through the corner to mid short wall.
+    let per = std::fs::read_to_string(out.join("perimeter.csv")).unwrap();
+    let walls: Vec<&str> = per
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with("wall"))
+        .map(|l| l.split(',').next().unwrap())
+        .collect();
+    assert_eq!(walls.first(), Some(&"long"));
+    assert_eq!(walls.last(), Some(&"short"));
+    assert_eq!(walls.iter().filter(|w| **w == "corner").count(), 1);
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(report.contains("id=\"three-d\"") && report.contains("fig-plan_frost"));
+}

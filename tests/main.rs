@@ -9,6 +9,7 @@ mod iso13370;
 mod plots;
 mod regression;
 mod sizing;
+mod three_d;
 mod trust;
 mod verification;
 mod verification3d;

@@ -319,6 +319,21 @@ pub struct Simulation {
     pub wall_extension_m: f64,
     /// The model. Default 2D.
     pub model: ModelKind,
+    /// Explicit mesh sizes (edge size, growth, largest size; m) for both the 2D and the 3D model,
+    /// overriding `mesh`: for studies and tests that compare the two models on one set of sizes.
+    /// Not a case-file key; None from validation.
+    pub mesh_sizes: Option<(f64, f64, f64)>,
+}
+
+impl Simulation {
+    /// Mesh sizes of the 2D section (edge size, growth, largest size), m.
+    pub fn sizes_2d(&self) -> (f64, f64, f64) {
+        self.mesh_sizes.unwrap_or(self.mesh.sizes())
+    }
+    /// Mesh sizes of the 3D model, m.
+    pub fn sizes_3d(&self) -> (f64, f64, f64) {
+        self.mesh_sizes.unwrap_or(self.mesh.sizes_3d())
+    }
 }
 
 /// A named point whose temperature is recorded.

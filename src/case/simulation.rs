@@ -82,6 +82,7 @@ pub fn simulation(
             5,
         )?,
         mesh,
+        mesh_sizes: None,
         domain_width_m: domain(&s.domain_width_m, "simulation.domain_width_m", dom_default)?,
         // Below a basement floor the cut-off plane lies as deep under the floor as under ground.
         domain_depth_m: domain(

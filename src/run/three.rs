@@ -118,6 +118,30 @@ fn coupling(case: &Case, net: &Network, params: SolverParams) -> Result<f64> {
     Ok(4.0 * solver.steady(&zt, None)?.from_zone[INDOOR])
 }
 
+/// Steady indoor heat flow per metre of the long wall at its middle, W/(m·K): the flow from the
+/// indoor air (floor and walls; indoor − outdoor = 1 K) through the faces of the quarter's first
+/// plan column (0 ≤ X ≤ ΔX₀), divided by ΔX₀. The 3D counterpart of the section's L2D: for a
+/// long building the two agree.
+pub fn mid_wall_coupling(case: &Case, params: SolverParams) -> Result<f64> {
+    let (_, mesh, net) = model3(case);
+    let mut zt = forcing::zone_temps(case, 1.0, 0.0);
+    for z in zt.iter_mut().skip(2) {
+        *z = 0.0;
+    }
+    let st = Solver::new(&net, params)?.steady(&zt, None)?;
+    let g = &mesh.grid;
+    let q: f64 = net
+        .bfaces
+        .iter()
+        .filter(|b| b.zone == INDOOR && g.ijk(net.cell_of[b.p]).0 == 0)
+        .map(|b| {
+            let k = net.materials[net.mat[b.p]].conductivity(st.t[b.p]);
+            b.conductance(k, 0.0) * (zt[INDOOR] - st.t[b.p])
+        })
+        .sum();
+    Ok(q / (g.xe[1] - g.xe[0]))
+}
+
 /// The building's steady couplings (see the module's equations).
 pub fn coupling3(
     case: &Case,
