@@ -460,8 +460,18 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
     bar.finish_and_clear();
     let result = result?;
     let mut written = files::write_sizing(&case, &result, &a.out)?;
-    // The chosen design's full results, plots and report (with the sizing) in the same directory.
-    if let Some((chosen, r)) = &result.chosen_run {
+    // The chosen design's full results, plots and report (with the sizing) in the same directory:
+    // its 3D run when the corners were checked, else its 2D run.
+    let corner_run = result.corner.as_ref().and_then(|c| c.chosen_run.as_ref());
+    if let Some((chosen, r3)) = corner_run {
+        written.extend(files::write_run3(
+            chosen,
+            r3,
+            &estimate::cross_check(chosen),
+            &a.out,
+        )?);
+        written.extend(render(&a.out, false)?);
+    } else if let Some((chosen, r)) = &result.chosen_run {
         written.extend(files::write_run(
             chosen,
             r,
@@ -478,6 +488,9 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
     let mut u = Vec::new();
     if result.no_insulation_needed.is_none() && result.chosen.is_none() {
         u.push("no design within the bounds meets the frost margin".to_string());
+    }
+    if let Some(c) = result.corner.as_ref().filter(|c| c.check.chosen.is_none()) {
+        u.push(format!("the 3D corner check: {}", c.check.note));
     }
     if let Some((c, r)) = &result.chosen_run {
         let s = files::Summary::new(c, r, &estimate::cross_check(c));

@@ -187,6 +187,33 @@ fn plan_and_corner_keys_are_validated() {
         "corner[0].length_m",
         InputKind::OutOfRange,
     );
+    // The 3D corner check of a sizing: a known board dimension within the plan.
+    let sizing = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/alder-bend-sizing-3d.toml"),
+    )
+    .unwrap();
+    assert!(parse(&sizing).unwrap().sizing.unwrap().corner.is_some());
+    expect(
+        &sizing.replace(
+            "dimension = \"width_m\"\nmin = 1.2",
+            "dimension = \"depth_m\"\nmin = 1.2",
+        ),
+        "sizing.corner.dimension",
+        InputKind::UnknownName,
+    );
+    expect(
+        &sizing.replace(
+            "dimension = \"width_m\"\nmin = 1.2\nmax = 2.4",
+            "dimension = \"length_m\"\nmin = 1.2\nmax = 6.0",
+        ),
+        "sizing.corner.max",
+        InputKind::OutOfRange,
+    );
+    expect(
+        &sizing.replace("corner = 0\n", "corner = 3\n"),
+        "sizing.corner.corner",
+        InputKind::OutOfRange,
+    );
     // An unknown model.
     expect(
         &text.replace("model = \"3d\"", "model = \"4d\""),

@@ -120,7 +120,12 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
     let probes = simulation::probes(c, &raw.probe, &building, &cons.wall, &simulation)?;
     let sizing = match &raw.sizing {
         None => None,
-        Some(s) => Some(sizing::sizing(c, s, &insulation)?),
+        Some(s) => Some(sizing::sizing(
+            c,
+            s,
+            &insulation,
+            (&corners, plan.as_ref()),
+        )?),
     };
     let case = Case {
         sizing,

@@ -388,6 +388,54 @@ impl Vary {
     }
 }
 
+/// A dimension of a `[[corner]]` board that the 3D corner check varies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum CornerDimension {
+    /// Outer end, m from the wall face.
+    WidthM,
+    /// Extent along each wall from the corner.
+    LengthM,
+    /// Thickness.
+    ThicknessM,
+}
+
+impl CornerDimension {
+    /// The TOML key under `[[corner]]`.
+    pub fn key(self) -> &'static str {
+        match self {
+            CornerDimension::WidthM => "width_m",
+            CornerDimension::LengthM => "length_m",
+            CornerDimension::ThicknessM => "thickness_m",
+        }
+    }
+}
+
+/// `[sizing.corner]`: the 3D corner check's varied dimension of one corner board.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct CornerVary {
+    /// Index of the `[[corner]]` board.
+    pub corner: usize,
+    /// Which dimension.
+    pub dimension: CornerDimension,
+    /// Smallest value, m.
+    pub min: f64,
+    /// Largest value, m.
+    pub max: f64,
+    /// Step, m.
+    pub step: f64,
+}
+
+impl CornerVary {
+    /// The candidate values min, min + step, …, max (rounded to 1 µm).
+    pub fn values(&self) -> Vec<f64> {
+        let n = ((self.max - self.min) / self.step + 1e-9).floor() as usize;
+        (0..=n)
+            .map(|k| ((self.min + k as f64 * self.step) * 1e6).round() / 1e6)
+            .collect()
+    }
+}
+
 /// Sizing settings.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Sizing {
@@ -399,6 +447,8 @@ pub struct Sizing {
     pub cost_per_m3: std::collections::BTreeMap<String, f64>,
     /// Cost weight per m³ of excavation.
     pub excavation_cost_per_m3: f64,
+    /// The 3D corner check after the 2D sizing, if asked for.
+    pub corner: Option<CornerVary>,
 }
 
 /// A validated case in SI units.

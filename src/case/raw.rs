@@ -48,6 +48,18 @@ pub struct RawSizing {
     #[serde(default)]
     pub cost_per_m3: std::collections::BTreeMap<String, f64>,
     pub excavation_cost_per_m3: Option<S<f64>>,
+    pub corner: Option<S<RawCornerVary>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawCornerVary {
+    pub corner: Option<S<i64>>,
+    pub dimension: S<String>,
+    pub min: S<f64>,
+    pub max: S<f64>,
+    pub step: S<f64>,
 }
 
 #[derive(Debug, Deserialize)]

@@ -1,13 +1,21 @@
 //! Validation of `[sizing]`: the one or two varied dimensions, the required margin and the cost
 //! weights.
 use super::ctx::Ctx;
-use super::model::{Dimension, Insulation, InsulationKind, Sizing, Vary};
-use super::raw::{RawSizing, RawVary, S};
+use super::model::{
+    CornerDimension, CornerPiece, CornerVary, Dimension, Insulation, InsulationKind, Plan, Sizing,
+    Vary,
+};
+use super::raw::{RawCornerVary, RawSizing, RawVary, S};
 use crate::error::{InputKind, Result};
 use std::collections::BTreeMap;
 
 /// `[sizing]` for the case's insulation pieces.
-pub fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizing> {
+pub fn sizing(
+    c: &Ctx,
+    s: &RawSizing,
+    insulation: &[Insulation],
+    (corners, plan): (&[CornerPiece], Option<&Plan>),
+) -> Result<Sizing> {
     let n = s.vary.get_ref().len();
     if !(1..=2).contains(&n) {
         return Err(c.err(
@@ -35,6 +43,98 @@ pub fn sizing(c: &Ctx, s: &RawSizing, insulation: &[Insulation]) -> Result<Sizin
             "per m³",
             40.0,
         )?,
+        corner: match &s.corner {
+            None => None,
+            Some(v) => Some(corner_vary(c, v, corners, plan)?),
+        },
+    })
+}
+
+/// `[sizing.corner]`: a dimension of a `[[corner]]` board (the case needs `[plan]`), over what
+/// range.
+fn corner_vary(
+    c: &Ctx,
+    v: &S<RawCornerVary>,
+    corners: &[CornerPiece],
+    plan: Option<&Plan>,
+) -> Result<CornerVary> {
+    let key = "sizing.corner";
+    let r = v.get_ref();
+    let Some(plan) = plan else {
+        return Err(c.err(
+            v.span(),
+            key,
+            InputKind::Missing,
+            "the corner check runs the 3D model: add [plan] with length_m and width_m",
+        ));
+    };
+    let idx = match &r.corner {
+        None => 0,
+        Some(i) => {
+            let k = *i.get_ref();
+            if k < 0 || k as usize >= corners.len().max(1) {
+                return Err(c.err(
+                    i.span(),
+                    &format!("{key}.corner"),
+                    InputKind::OutOfRange,
+                    format!(
+                        "{k} is not a [[corner]] board; allowed: 0 to {}",
+                        corners.len().max(1) as i64 - 1
+                    ),
+                ));
+            }
+            k as usize
+        }
+    };
+    if corners.is_empty() {
+        return Err(c.err(
+            v.span(),
+            key,
+            InputKind::Missing,
+            "the corner check varies a [[corner]] board: add one (its starting dimensions are replaced by the check's values)",
+        ));
+    }
+    let dimension = match r.dimension.get_ref().as_str() {
+        "width_m" => CornerDimension::WidthM,
+        "length_m" => CornerDimension::LengthM,
+        "thickness_m" => CornerDimension::ThicknessM,
+        other => {
+            return Err(c.err(
+                r.dimension.span(),
+                &format!("{key}.dimension"),
+                InputKind::UnknownName,
+                format!("\"{other}\" is not a corner-board dimension; allowed: width_m, length_m, thickness_m"),
+            ))
+        }
+    };
+    let cap = match dimension {
+        CornerDimension::LengthM => 0.5 * plan.length_m.min(plan.width_m),
+        CornerDimension::WidthM => 20.0,
+        CornerDimension::ThicknessM => 1.0,
+    };
+    let min = c.range(&r.min, &format!("{key}.min"), 0.0, cap, "m")?;
+    let max = c.range_incl(&r.max, &format!("{key}.max"), min, cap, "m")?;
+    let step = c.range(
+        &r.step,
+        &format!("{key}.step"),
+        0.0,
+        (max - min).max(1e-9),
+        "m",
+    )?;
+    if (max - min) / step > 50.0 {
+        return Err(c.err(
+            r.step.span(),
+            &format!("{key}.step"),
+            InputKind::OutOfRange,
+            "more than 50 steps (each a 3D run); allowed: a coarser step",
+        ));
+    }
+    Ok(CornerVary {
+        corner: idx,
+        dimension,
+        min,
+        max,
+        step,
     })
 }
 

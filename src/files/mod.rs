@@ -166,7 +166,11 @@ pub fn write_sizing(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<Pat
         write_json(dir, "sizing.json", &f)?,
         write_atomic(dir, "sizing.csv", sizing::sizing_csv(case, &f).as_bytes())?,
     ];
-    if let Some((chosen, _)) = &r.chosen_run {
+    let chosen = match r.corner.as_ref().and_then(|c| c.chosen_run.as_ref()) {
+        Some((c, _)) => Some(c),
+        None => r.chosen_run.as_ref().map(|x| &x.0),
+    };
+    if let Some(chosen) = chosen {
         files.push(write_atomic(
             dir,
             "chosen_case.toml",

@@ -3,10 +3,14 @@
 //! run` accepts and reproduces).
 use super::tables::fmt;
 use crate::case::{Case, Vary};
+pub use crate::design::corner::CornerCheck;
 use crate::design::{dimension_label, Design, SizingResult};
 use serde::{Deserialize, Serialize};
 
 pub use crate::design::SIZING_CAUTION;
+
+/// The corner sentence when the sizing had a 3D corner check.
+pub const CORNERS_3D: &str = "Corners were checked in 3D (see the corner check): the board found keeps the least frost margin anywhere round the building, which is at the corner, at least the required margin.";
 
 /// What the 2D sizing says about corners.
 pub const CORNERS: &str = "Corners are not computed: a 2D section cannot resolve the colder outside corners of a building, \
@@ -51,6 +55,9 @@ pub struct SizingFile {
     pub designs: Vec<Design>,
     /// What the sizing says about corners.
     pub corners: String,
+    /// The 3D corner check, if the sizing had `[sizing.corner]`.
+    #[serde(default)]
+    pub corner_check: Option<CornerCheck>,
     /// Published-method cross-checks.
     pub cross_check: SizingCheck,
     /// Findings in words.
@@ -79,7 +86,12 @@ impl SizingFile {
             chosen: r.chosen.clone(),
             tradeoff: r.tradeoff.clone(),
             designs: r.designs.clone(),
-            corners: CORNERS.into(),
+            corners: if r.corner.is_some() {
+                CORNERS_3D.into()
+            } else {
+                CORNERS.into()
+            },
+            corner_check: r.corner.as_ref().map(|c| c.check.clone()),
             cross_check,
             flags,
             runs: r.runs,

@@ -11,7 +11,7 @@ use crate::mesh::Cell;
 use crate::mesh3::Grid3;
 use crate::run::quarter::{StationYear, WorstPoint};
 use crate::run::three::{Coupling3, Run3Result};
-use crate::run::{frost_line_c, headline, headline_of, Headline, Records, Year};
+use crate::run::{frost_line_c, headline, Headline, Year};
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
@@ -85,24 +85,9 @@ pub struct Summary3 {
     pub years: Vec<Year>,
 }
 
-/// The 3D run's records.
-pub fn records(r: &Run3Result) -> Records<'_> {
-    let s = &r.sim;
-    Records {
-        days: &s.last.days,
-        years: &s.years,
-        reported: s.reported,
-        normal: s.normal.as_ref(),
-        design_day: r.year().design_day,
-    }
-}
-
-/// The 3D headline: the records' numbers with the 3D floor U and Ψ_g.
+/// The 3D headline (see [`Run3Result::headline`]).
 pub fn headline3(case: &Case, r: &Run3Result) -> Headline {
-    let mut h = headline_of(case, &records(r), &r.split);
-    h.floor_u_value_w_per_m2k = r.coupling.floor_u_w_per_m2k;
-    h.junction_psi_w_per_mk = r.coupling.psi_g_w_per_mk;
-    h
+    r.headline(case)
 }
 
 impl Summary3 {
@@ -420,7 +405,7 @@ pub fn three_d_file(case: &Case, r: &Run3Result) -> ThreeDFile {
 
 /// Write the 3D files into `dir`; returns the paths.
 pub fn write_3d(case: &Case, r: &Run3Result, dir: &Path, head: &str) -> Result<Vec<PathBuf>> {
-    let rec = records(r);
+    let rec = r.records();
     Ok(vec![
         write_atomic(dir, "daily_3d.csv", &tables::daily(head, &rec)?)?,
         write_atomic(dir, "monthly_3d.csv", &tables::monthly(head, &rec)?)?,

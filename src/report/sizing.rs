@@ -10,6 +10,11 @@ fn values(v: &[f64], sep: &str, unit: &str) -> String {
         .join(sep)
 }
 
+/// A margin or "none" (no frost near the zone).
+fn opt(v: Option<f64>) -> String {
+    v.map_or("none".into(), |v| format!("{v:.3}"))
+}
+
 /// The printed summary.
 pub fn text(f: &SizingFile) -> String {
     let mut s = format!(
@@ -64,6 +69,25 @@ pub fn text(f: &SizingFile) -> String {
         s += &format!("    NOTE: {flag}\n");
     }
     s += &format!("\n  {}\n", f.corners);
+    if let Some(c) = &f.corner_check {
+        s += &format!(
+            "\n  Corner check in 3D ({}, {:.2} to {:.2} m by {:.2} m):\n",
+            c.dimension, c.range_m[0], c.range_m[1], c.range_m[2]
+        );
+        for d in &c.designs {
+            s += &format!(
+                "    {:>6.3} m  least margin {:>6} m  corner margin {:>6} m  corner frost at the face {:.2} m  heat loss {:.0} kWh/yr{}\n",
+                d.value_m,
+                opt(d.least_margin_m),
+                opt(d.corner_margin_m),
+                d.corner_face_frost_m,
+                d.annual_heat_loss_kwh,
+                if d.feasible { "  passes" } else { "" }
+            );
+        }
+        s += &format!("    {}\n", c.note);
+        s += &format!("    {} 3D runs, {:.1} s\n", c.runs, c.wall_time_s);
+    }
     s += &format!(
         "\n  {} run{}, median {:.2} s per run, {:.1} s in all\n",
         f.runs,
@@ -112,6 +136,21 @@ pub fn html(f: &SizingFile) -> String {
     }
     h += "</table>\n";
     h += &format!("<p><strong>Corners:</strong> {}</p>\n", escape(&f.corners));
+    if let Some(c) = &f.corner_check {
+        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} (m)</th><th>least margin (m)</th><th>corner margin (m)</th><th>corner frost at the face (m)</th><th>annual heat loss (kWh)</th><th>passes</th></tr>\n", escape(&c.dimension));
+        for d in &c.designs {
+            h += &format!(
+                "<tr><td class=n>{:.3}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{:.2}</td><td class=n>{:.0}</td><td>{}</td></tr>\n",
+                d.value_m,
+                opt(d.least_margin_m),
+                opt(d.corner_margin_m),
+                d.corner_face_frost_m,
+                d.annual_heat_loss_kwh,
+                if d.feasible { "yes" } else { "no" }
+            );
+        }
+        h += &format!("</table>\n<p>{}</p>\n", escape(&c.note));
+    }
     for flag in &f.flags {
         h += &format!("<p class=\"caution\">{}</p>\n", escape(flag));
     }

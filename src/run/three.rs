@@ -16,7 +16,8 @@ use super::quarter::{Quarter3, QuarterYear};
 use super::spinup::{self, Simulated};
 use super::split::HeatSplit;
 use super::{
-    forcing, Progress, RunOptions, RunResult, GROUP_FLOOR, GROUP_WALL_ABOVE, GROUP_WALL_BELOW,
+    forcing, Headline, Progress, Records, RunOptions, RunResult, GROUP_FLOOR, GROUP_WALL_ABOVE,
+    GROUP_WALL_BELOW,
 };
 use crate::case::Case;
 use crate::error::Result;
@@ -73,6 +74,26 @@ impl Run3Result {
     /// The reported period's perimeter records.
     pub fn year(&self) -> &QuarterYear {
         &self.sim.last.kept
+    }
+
+    /// The whole building's records of the run (the reported period's days, every year).
+    pub fn records(&self) -> Records<'_> {
+        let s = &self.sim;
+        Records {
+            days: &s.last.days,
+            years: &s.years,
+            reported: s.reported,
+            normal: s.normal.as_ref(),
+            design_day: self.year().design_day,
+        }
+    }
+
+    /// The 3D headline: the records' numbers with the 3D floor U and Ψ_g.
+    pub fn headline(&self, case: &Case) -> Headline {
+        let mut h = super::headline_of(case, &self.records(), &self.split);
+        h.floor_u_value_w_per_m2k = self.coupling.floor_u_w_per_m2k;
+        h.junction_psi_w_per_mk = self.coupling.psi_g_w_per_mk;
+        h
     }
 }
 

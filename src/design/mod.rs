@@ -11,6 +11,8 @@
 //! A design is the case file's text with the varied values written in (and `[sizing]` removed),
 //! validated like any case file: what is evaluated, what is written to `chosen_case.toml` and
 //! what is re-run are the same text.
+pub mod corner;
+
 use crate::case::{parse_case, Case, Dimension, InsulationKind, Sizing, Vary};
 use crate::error::{Error, InputKind, Result};
 use crate::numerics::first_passing;
@@ -19,9 +21,10 @@ use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// The caution every sizing output carries.
-pub const SIZING_CAUTION: &str = "This sizing is an estimate for a homogeneous soil and the stated climate from a 2D model. \
-Drainage, frost-susceptible fill, snow clearing over the insulation, moisture in the insulation and construction quality \
-all matter; corners need more protection than a 2D section shows. Local codes and a licensed engineer govern the design.";
+pub const SIZING_CAUTION: &str = "This sizing is an estimate for a homogeneous soil and the stated climate from a 2D model \
+(and a 3D model where the corners were checked). Drainage, frost-susceptible fill, snow clearing over the insulation, moisture \
+in the insulation and construction quality all matter; corners need more protection than a 2D section shows. Local codes and a \
+licensed engineer govern the design.";
 
 /// Tolerance of the monotonicity check on the frost margin, m (numerical noise of the frost line
 /// between runs on different meshes).
@@ -49,7 +52,7 @@ pub struct Design {
 }
 
 /// Everything a sizing produces.
-#[derive(Debug, Clone)]
+#[derive(Debug)]
 pub struct SizingResult {
     /// Required margin, m.
     pub margin_m: f64,
@@ -70,6 +73,9 @@ pub struct SizingResult {
     /// The chosen design's case (its source is `chosen_case.toml`: see [`chosen_text`]) and its
     /// full run.
     pub chosen_run: Option<(Case, RunResult)>,
+    /// The 3D corner check of the chosen design (`[sizing.corner]`), if asked for and there is a
+    /// design to check.
+    pub corner: Option<corner::CornerSizing>,
     /// Model runs (the chosen design's re-run excluded).
     pub runs: usize,
     /// Median wall time per run, s.
@@ -162,7 +168,15 @@ pub fn chosen_text(case: &Case, vary: &[Vary], values: &[f64]) -> Result<String>
         *n = toml::Value::String(format!("{} (sized)", n.as_str().unwrap_or("case")));
     }
     let body = toml::to_string(&t).map_err(output_err)?;
-    Ok(format!("# Chosen design of `frostline size` for {}; run it with `frostline run`.\n# {SIZING_CAUTION}\n{body}", case.file))
+    Ok(format!("{}{body}", chosen_header(case)))
+}
+
+/// The comment lines at the top of `chosen_case.toml`.
+fn chosen_header(case: &Case) -> String {
+    format!(
+        "# Chosen design of `frostline size` for {}; run it with `frostline run`.\n# {SIZING_CAUTION}\n",
+        case.file
+    )
 }
 
 /// The case with the varied dimensions set to `values`, validated as a case file (an input error
@@ -378,6 +392,7 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
         tradeoff: Vec::new(),
         chosen: None,
         chosen_run: None,
+        corner: None,
         runs: 0,
         median_run_s: 0.0,
         wall_time_s: 0.0,
@@ -396,6 +411,25 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
         let c = parse_case(&case.file, &chosen_text(case, &s.vary, &d.values)?)?;
         let r = run::run(&c, &mut |_| {})?;
         out.chosen_run = Some((c, r));
+    }
+    if let Some(cv) = &s.corner {
+        // The board is checked on the chosen design, or on the foundation without the varied
+        // insulation when that already passes in 2D.
+        let base = match (&out.chosen_run, &out.no_insulation_needed) {
+            (Some((c, _)), _) => Some(c.source.clone()),
+            (None, Some(_)) => Some(self::baseline(case, s)?.source),
+            (None, None) => None,
+        };
+        if let Some(base) = base {
+            let n0 = out.runs;
+            out.corner = Some(corner::size_corner(
+                &case.file,
+                (&base, &chosen_header(case)),
+                cv,
+                s.margin_m,
+                &|n| progress(n0 + n),
+            )?);
+        }
     }
     out.wall_time_s = start.elapsed().as_secs_f64();
     Ok(out)
@@ -449,7 +483,7 @@ mod tests {
     use super::*;
 
     fn sizing_case() -> Case {
-        let src = include_str!("../examples/kettle-hollow-sizing.toml");
+        let src = include_str!("../../examples/kettle-hollow-sizing.toml");
         parse_case(
             concat!(
                 env!("CARGO_MANIFEST_DIR"),
