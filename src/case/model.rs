@@ -38,6 +38,14 @@ impl Fineness {
             Fineness::Fine => Fineness::Normal.sizes(),
         }
     }
+    /// The name in case files and on the command line.
+    pub fn name(self) -> &'static str {
+        match self {
+            Fineness::Coarse => "coarse",
+            Fineness::Normal => "normal",
+            Fineness::Fine => "fine",
+        }
+    }
     /// Parse a name.
     pub fn parse(s: &str) -> Option<Self> {
         match s {

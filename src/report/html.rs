@@ -103,7 +103,12 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
     if s.frost_margin_m < 0.0 {
         h.push_str("<p class=\"caution\"><strong>Frost reaches below the footing base</strong> in this run.</p>\n");
     }
-    h.push_str(&figures(dir, FIGURES, "Figures of the 2D section"));
+    let heading = if s.three_d.is_some() {
+        "Figures of the 2D section"
+    } else {
+        "Figures"
+    };
+    h.push_str(&figures(dir, FIGURES, ("figures", heading)));
     h.push_str(&numerics(&s));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
     h.push_str(&format!(
@@ -291,8 +296,8 @@ fn basement_rows(s: &Summary) -> Vec<Row> {
 }
 
 /// The embedded figures that exist in `dir`.
-pub(super) fn figures(dir: &Path, list: &[(&str, &str)], heading: &str) -> String {
-    let mut h = format!("<h2>{heading}</h2>\n");
+pub(super) fn figures(dir: &Path, list: &[(&str, &str)], (id, heading): (&str, &str)) -> String {
+    let mut h = format!("<h2 id=\"{id}\">{heading}</h2>\n");
     for (stem, caption) in list {
         if let Ok(bytes) = std::fs::read(dir.join(format!("{stem}.png"))) {
             h.push_str(&format!(

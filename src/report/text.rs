@@ -368,12 +368,29 @@ pub fn check_text(case: &Case) -> Result<String> {
         section.x_min, section.x_max, section.z_top, section.z_bottom
     );
     s += &format!(
-        "  mesh ({:?}): {} × {} grid, {} solid cells\n",
-        case.simulation.mesh,
+        "  mesh ({}): {} × {} grid, {} solid cells\n",
+        case.simulation.mesh.name(),
         mesh.grid.nx(),
         mesh.grid.nz(),
         mesh.solid_cells()
     );
+    if let Some(p) = case.plan {
+        let q = crate::geometry3d::Quarter::of(case);
+        let m3 = q.mesh(case);
+        let g = &m3.grid;
+        s += &format!(
+            "  3D ({}): quarter of the {:.2} × {:.2} m plan, {} × {} × {} grid, {} solid cells, {} corner board(s){}\n",
+            if case.simulation.model == crate::case::ModelKind::ThreeD { "the case's model" } else { "with --model 3d" },
+            p.length_m,
+            p.width_m,
+            g.nx(),
+            g.ny(),
+            g.nz(),
+            m3.solid_cells(),
+            case.corners.len(),
+            if case.sizing.as_ref().is_some_and(|s| s.corner.is_some()) { "; the sizing checks the corners in 3D" } else { "" }
+        );
+    }
     let sim = &case.simulation;
     let coarse = match sim.coarse_year_step_days {
         0 => String::new(),

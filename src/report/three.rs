@@ -136,6 +136,6 @@ pub fn html(s: &Summary3, dir: &Path) -> String {
         s.newton_iterations_per_step, s.cg_iterations_per_solve, s.max_cg_iterations,
         s.step_halvings, s.energy_balance_error, s.wall_time_s
     );
-    t += &figures(dir, FIGURES_3D, "3D figures");
+    t += &figures(dir, FIGURES_3D, ("figures-3d", "3D figures"));
     t
 }
