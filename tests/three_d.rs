@@ -221,3 +221,28 @@ fn plan_and_corner_keys_are_validated() {
         InputKind::UnknownName,
     );
 }
+
+/// A plan whose 3D grid would exceed the cell limit is refused before anything is solved or
+/// allocated for it, naming the cell count and the limit (memory target of the issue: < 4 GB).
+#[test]
+fn oversized_3d_grid_is_refused_first() {
+    use frostline::error::{Error, InputKind};
+    use frostline::run::three::MAX_CELLS_3D;
+    let mut c = alder_bend(12.4);
+    c.plan = Some(frostline::case::Plan {
+        length_m: 1000.0,
+        width_m: 1000.0,
+    });
+    let t0 = std::time::Instant::now();
+    match run3(&c, &RunOptions::default(), &mut |_| {}) {
+        Err(Error::Input {
+            key, kind, message, ..
+        }) => {
+            assert_eq!(key, "simulation.mesh");
+            assert_eq!(kind, InputKind::OutOfScope);
+            assert!(message.contains(&MAX_CELLS_3D.to_string()), "{message}");
+        }
+        other => panic!("expected a refusal, got {:?}", other.map(|_| ())),
+    }
+    assert!(t0.elapsed().as_secs_f64() < 5.0, "refused before solving");
+}

@@ -390,6 +390,9 @@ pub fn check_text(case: &Case) -> Result<String> {
             case.corners.len(),
             if case.sizing.as_ref().is_some_and(|s| s.corner.is_some()) { "; the sizing checks the corners in 3D" } else { "" }
         );
+        if let Err(e) = crate::run::three::check_size(case) {
+            s += &format!("  3D refused: {e}\n");
+        }
     }
     let sim = &case.simulation;
     let coarse = match sim.coarse_year_step_days {
