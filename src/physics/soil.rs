@@ -23,6 +23,16 @@ pub enum Texture {
     Fine,
 }
 
+impl Texture {
+    /// The texture in words, for printed output.
+    pub fn label(self) -> &'static str {
+        match self {
+            Texture::Coarse => "coarse (sands and gravels)",
+            Texture::Fine => "fine (silts and clays)",
+        }
+    }
+}
+
 /// Index properties of a soil.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SoilIndex {

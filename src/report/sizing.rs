@@ -86,7 +86,12 @@ pub fn text(f: &SizingFile) -> String {
             );
         }
         s += &format!("    {}\n", c.note);
-        s += &format!("    {} 3D runs, {:.1} s\n", c.runs, c.wall_time_s);
+        s += &format!(
+            "    {} 3D run{}, {:.1} s\n",
+            c.runs,
+            if c.runs == 1 { "" } else { "s" },
+            c.wall_time_s
+        );
     }
     s += &format!(
         "\n  {} run{}, median {:.2} s per run, {:.1} s in all\n",

@@ -467,8 +467,8 @@ pub fn climate_text(s: &ClimateSummary) -> String {
         );
     }
     t += &format!(
-        "  design freezing index, {:.0}-year   {:>8.0} °C·d (Gumbel {:?}: location {:.1}, scale {:.1}; KS D {:.3}, p {:.2})\n",
-        s.return_period_years, s.design_freezing_index_c_days, s.fit_method, s.gumbel_location_c_days, s.gumbel_scale_c_days, s.ks_statistic, s.ks_p_value
+        "  design freezing index, {:.0}-year   {:>8.0} °C·d (Gumbel, {}: location {:.1}, scale {:.1}; KS D {:.3}, p {:.2})\n",
+        s.return_period_years, s.design_freezing_index_c_days, s.fit_method.label(), s.gumbel_location_c_days, s.gumbel_scale_c_days, s.ks_statistic, s.ks_p_value
     );
     t += &format!(
         "  mean of the 3 coldest winters    {:>8.0} °C·d\n",
@@ -490,8 +490,8 @@ pub fn soil_text(name: &str, s: &SoilFile, method: KMethod) -> Option<String> {
         "{} ({name}): {}\n  source: {}\n",
         s.name, s.description, s.source
     );
-    t += &format!("  dry density {:.0} kg/m³, water content {:.1} % of dry mass, quartz {:.0} %, texture {:?}, saturation {:.0} %\n",
-        s.dry_density_kg_per_m3, 100.0 * s.water_content, 100.0 * s.quartz_fraction, s.texture, 100.0 * s.index().saturation());
+    t += &format!("  dry density {:.0} kg/m³, water content {:.1} % of dry mass, quartz {:.0} %, texture {}, saturation {:.0} %\n",
+        s.dry_density_kg_per_m3, 100.0 * s.water_content, 100.0 * s.quartz_fraction, s.texture.label(), 100.0 * s.index().saturation());
     t += &format!("  frost susceptibility: {}\n", s.frost_susceptibility);
     let how = if explicit {
         "explicit in the soil file"

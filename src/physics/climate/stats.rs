@@ -81,6 +81,16 @@ pub enum FitMethod {
     MaximumLikelihood,
 }
 
+impl FitMethod {
+    /// The method in words, for printed output.
+    pub fn label(self) -> &'static str {
+        match self {
+            FitMethod::LMoments => "L-moments",
+            FitMethod::MaximumLikelihood => "maximum likelihood",
+        }
+    }
+}
+
 /// A fitted Gumbel (extreme value type I) distribution F(x) = exp(−exp(−(x − μ)/β)).
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Gumbel {
