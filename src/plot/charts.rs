@@ -53,9 +53,9 @@ fn footing_base_line<'a, DB: DrawingBackend + 'a>(
 fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {
     move |x: &f64| {
         let k = (x.round().max(0.0) as usize).min(d.days.len().saturating_sub(1));
-        d.days
-            .get(k)
-            .map_or(String::new(), |day| format!("{}", day.day_of_year))
+        d.days.get(k).map_or(String::new(), |day| {
+            crate::physics::climate::calendar::day_month(day.day_of_year)
+        })
     }
 }
 
@@ -80,7 +80,7 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .map_err(out_err)?;
     chart
         .configure_mesh()
-        .x_desc("day of year (the reported year runs from the warmest day)")
+        .x_desc("date (the reported year runs from the warmest day)")
         .y_desc("frost depth below ground (m)")
         .x_label_formatter(&doy_label(d))
         .label_style(("sans-serif", 13))
@@ -222,7 +222,7 @@ fn draw_probes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) 
         .map_err(out_err)?;
     chart
         .configure_mesh()
-        .x_desc("day of year")
+        .x_desc("date")
         .y_desc("temperature (°C)")
         .x_label_formatter(&doy_label(d))
         .label_style(("sans-serif", 13))

@@ -82,6 +82,17 @@ pub fn parse_date(s: &str) -> Option<i64> {
     Some(days_from_civil(y, m, d))
 }
 
+/// Day of year `doy` (1–365, a 365-day year) as day and month, e.g. 22 → "22 Jan".
+pub fn day_month(doy: usize) -> String {
+    const NAMES: [&str; 12] = [
+        "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
+    ];
+    const STARTS: [usize; 12] = [0, 31, 59, 90, 120, 151, 181, 212, 243, 273, 304, 334];
+    let d = (doy.max(1) - 1) % 365;
+    let m = STARTS.iter().rposition(|&s| s <= d).unwrap_or(0);
+    format!("{} {}", d - STARTS[m] + 1, NAMES[m])
+}
+
 /// Month (0–11) of calendar day `d` (days since 1 January, 365-day year).
 pub fn month_of(d: f64) -> usize {
     const ENDS: [f64; 12] = [
@@ -128,6 +139,18 @@ fn year_spans(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Day-of-year labels in a 365-day year (month lengths of the Gregorian calendar, common year).
+    #[test]
+    fn day_month_labels() {
+        assert_eq!(day_month(1), "1 Jan");
+        assert_eq!(day_month(31), "31 Jan");
+        assert_eq!(day_month(32), "1 Feb");
+        assert_eq!(day_month(59), "28 Feb");
+        assert_eq!(day_month(60), "1 Mar");
+        assert_eq!(day_month(203), "22 Jul");
+        assert_eq!(day_month(365), "31 Dec");
+    }
 
     #[test]
     fn calendar_round_trip() {
