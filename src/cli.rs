@@ -89,6 +89,16 @@ pub enum ModelArg {
     ThreeD,
 }
 
+/// What `run` prints on standard output.
+#[derive(ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum FormatArg {
+    /// The result table and the list of files written.
+    #[default]
+    Table,
+    /// summary.json as written (for pipes and scripts); nothing else on standard output.
+    Json,
+}
+
 impl From<MeshArg> for Fineness {
     fn from(m: MeshArg) -> Self {
         match m {
@@ -125,6 +135,9 @@ pub struct RunArgs {
     /// Also write soil_temperature.gif, the field through the year.
     #[arg(long)]
     pub animate: bool,
+    /// Standard output: the result table, or summary.json for pipes.
+    #[arg(long, value_enum, default_value_t = FormatArg::Table)]
+    pub format: FormatArg,
 }
 
 /// Gumbel fitting method on the command line.
@@ -416,8 +429,12 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         written.extend(render(&a.out, a.animate)?);
     }
     let summary = files::read_summary(&a.out)?;
-    print!("{}", text::result_table(&summary));
-    print_files(&a.out, &written);
+    if a.format == FormatArg::Json {
+        print!("{}", files::read_text(&a.out, "summary.json")?);
+    } else {
+        print!("{}", text::result_table(&summary));
+        print_files(&a.out, &written);
+    }
     Ok(unmet(&summary))
 }
 

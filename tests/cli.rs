@@ -337,3 +337,40 @@ fn coarse_year_step_out_of_range() {
         &["45 is out of range", "0 (none) to 30 days"],
     );
 }
+
+/// `run --format json` prints summary.json exactly as written and nothing else, so a pipe can
+/// parse it (`frostline run case.toml --out o --format json | jq .frost_margin_m`).
+#[test]
+fn run_prints_json_for_pipes() {
+    let out = scratch("format-json");
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let o = bin()
+        .args([
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ])
+        .args([
+            "--mesh",
+            "coarse",
+            "--no-plots",
+            "--quiet",
+            "--format",
+            "json",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let printed: serde_json::Value = serde_json::from_slice(&o.stdout).expect("stdout is JSON");
+    let file: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    assert_eq!(printed, file);
+    assert!(printed["annual_heat_loss_kwh"].is_number());
+}
