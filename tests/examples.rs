@@ -59,17 +59,30 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
     ] {
         assert!(s["cross_check"][k].is_number(), "{name}: cross_check.{k}");
     }
+    // Every CSV is one header row with units, then data (no comment lines: pandas.read_csv and
+    // a spreadsheet open it without options); csv_notes.json carries the caution and what each
+    // file holds.
+    let notes = read_json(&out.join("csv_notes.json"));
+    assert!(notes["caution"]
+        .as_str()
+        .unwrap()
+        .contains("Results are engineering estimates"));
     for f in ["daily.csv", "monthly.csv", "probes.csv"] {
         let text = std::fs::read_to_string(out.join(f)).unwrap();
         assert!(
-            text.contains("Results are engineering estimates"),
-            "{f} lacks the caution"
+            !text.lines().any(|l| l.starts_with('#')),
+            "{f} has comments"
         );
-        let header = text.lines().find(|l| !l.starts_with('#')).unwrap();
+        let header = text.lines().next().unwrap();
         assert!(
             header.contains("_c") || header.contains("temperature"),
             "{f} header without units: {header}"
         );
+        assert!(notes["files"][f].is_string(), "csv_notes.json lacks {f}");
+        // Read back with the csv crate's default options: every row as long as the header.
+        let mut r = csv::Reader::from_reader(text.as_bytes());
+        let n = r.headers().unwrap().len();
+        assert!(r.records().all(|rec| rec.unwrap().len() == n), "{f}");
     }
     let day = s["design_day_of_year"].as_u64().unwrap();
     let field = std::fs::read_to_string(out.join(format!("field_{day:03}.csv"))).unwrap();

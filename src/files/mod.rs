@@ -28,6 +28,48 @@ pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
     Ok(path)
 }
 
+/// `csv_notes.json`: what each CSV of a run directory holds, with the case, the caution and the
+/// coordinates, so the CSV files themselves are one header row and data (what `pandas.read_csv`
+/// and a spreadsheet open without options).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct CsvNotes {
+    /// Case name.
+    pub case_name: String,
+    /// The caution every result carries.
+    pub caution: String,
+    /// Coordinate conventions of the files.
+    pub coordinates: String,
+    /// Per file: what it holds.
+    pub files: std::collections::BTreeMap<String, String>,
+}
+
+impl CsvNotes {
+    fn new(case: &Case, coordinates: &str) -> Self {
+        CsvNotes {
+            case_name: case.name.clone(),
+            caution: CAUTION.into(),
+            coordinates: coordinates.into(),
+            files: Default::default(),
+        }
+    }
+}
+
+/// Write a CSV into `dir/name` and its note (without the shared head lines) into `notes`.
+pub fn write_csv(
+    dir: &Path,
+    name: &str,
+    csv: tables::Csv,
+    notes: &mut CsvNotes,
+) -> Result<PathBuf> {
+    let note: Vec<&str> = csv
+        .note
+        .lines()
+        .filter(|l| *l != notes.case_name && *l != notes.caution && !l.starts_with("Coordinates: "))
+        .collect();
+    notes.files.insert(name.to_string(), note.join(" "));
+    write_atomic(dir, name, &csv.bytes)
+}
+
 /// Serialise `v` as pretty JSON into `dir/name`.
 pub fn write_json<T: serde::Serialize>(dir: &Path, name: &str, v: &T) -> Result<PathBuf> {
     let bytes = serde_json::to_vec_pretty(v).map_err(|e| Error::Output(e.to_string()))?;
@@ -107,7 +149,9 @@ pub fn read_sizing(dir: &Path) -> Result<Option<SizingFile>> {
 /// Write every result file of a run of `case` (with its cross-checks `cc`) into `dir` (created
 /// if missing); returns the paths.
 pub fn write_run(case: &Case, r: &RunResult, cc: &CrossCheck, dir: &Path) -> Result<Vec<PathBuf>> {
-    write_run_summary(case, r, dir, Summary::new(case, r, cc))
+    let (mut files, notes) = write_run_summary(case, r, dir, Summary::new(case, r, cc))?;
+    files.push(write_json(dir, "csv_notes.json", &notes)?);
+    Ok(files)
 }
 
 /// Write every result file of a 3D run: the 2D section's files (the equivalent strip, its
@@ -120,33 +164,44 @@ pub fn write_run3(
 ) -> Result<Vec<PathBuf>> {
     let mut s = Summary::new(case, &r.two, cc);
     s.three_d = Some(three::Summary3::new(case, r));
-    let mut files = write_run_summary(case, &r.two, dir, s)?;
-    let head = format!("{}\n{CAUTION}\nCoordinates: plan X along the length and Y along the width from the building's centre, z depth below ground; section x outward from the wall's exterior face.\n3D model: whole-building heat loss; frost columns are the worst along the perimeter.", case.name);
-    files.extend(three::write_3d(case, r, dir, &head)?);
+    let (mut files, mut notes) = write_run_summary(case, &r.two, dir, s)?;
+    notes.coordinates += " 3D files: plan X along the length and Y along the width from the building's centre; section x outward from the wall's exterior face.";
+    let head = format!("{}\n{CAUTION}\n3D model: whole-building heat loss; frost columns are the worst along the perimeter.", case.name);
+    files.extend(three::write_3d(case, r, dir, (&head, &mut notes))?);
+    files.push(write_json(dir, "csv_notes.json", &notes)?);
     Ok(files)
 }
 
 /// [`write_run`] with the summary `s`.
-fn write_run_summary(case: &Case, r: &RunResult, dir: &Path, s: Summary) -> Result<Vec<PathBuf>> {
+fn write_run_summary(
+    case: &Case,
+    r: &RunResult,
+    dir: &Path,
+    s: Summary,
+) -> Result<(Vec<PathBuf>, CsvNotes)> {
     create_dir(dir)?;
     let head = format!("{}\n{CAUTION}\nCoordinates: {COORDINATES}.", case.name);
+    let mut notes = CsvNotes::new(case, &format!("{COORDINATES}."));
+    let n = &mut notes;
     let mut files = vec![
         write_json(dir, "summary.json", &s)?,
         write_atomic(dir, "case.toml", case.source.as_bytes())?,
-        write_atomic(dir, "daily.csv", &tables::daily(&head, &r.records())?)?,
-        write_atomic(dir, "monthly.csv", &tables::monthly(&head, &r.records())?)?,
-        write_atomic(dir, "probes.csv", &tables::probes(&head, case, r)?)?,
-        write_atomic(
+        write_csv(dir, "daily.csv", tables::daily(&head, &r.records())?, n)?,
+        write_csv(dir, "monthly.csv", tables::monthly(&head, &r.records())?, n)?,
+        write_csv(dir, "probes.csv", tables::probes(&head, case, r)?, n)?,
+        write_csv(
             dir,
             &format!("field_{:03}.csv", r.field.day_of_year),
-            &tables::field(&head, r)?,
+            tables::field(&head, r)?,
+            n,
         )?,
     ];
     if !r.winters.is_empty() {
-        files.push(write_atomic(
+        files.push(write_csv(
             dir,
             "winters.csv",
-            &tables::winters(&head, &r.winters)?,
+            tables::winters(&head, &r.winters)?,
+            n,
         )?);
     }
     files.push(write_json(dir, "section.json", &SectionFile::new(case, r))?);
@@ -155,7 +210,7 @@ fn write_run_summary(case: &Case, r: &RunResult, dir: &Path, s: Summary) -> Resu
         "fields.i16",
         &section::encode_fields(r.daily_fields.view()),
     )?);
-    Ok(files)
+    Ok((files, notes))
 }
 
 /// Write `sizing.json`, `sizing.csv` and (if a design was chosen) `chosen_case.toml` into `dir`.
@@ -164,7 +219,7 @@ pub fn write_sizing(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<Pat
     let f = SizingFile::new(case, r);
     let mut files = vec![
         write_json(dir, "sizing.json", &f)?,
-        write_atomic(dir, "sizing.csv", sizing::sizing_csv(case, &f).as_bytes())?,
+        write_atomic(dir, "sizing.csv", sizing::sizing_csv(&f).as_bytes())?,
     ];
     let chosen = match r.corner.as_ref().and_then(|c| c.chosen_run.as_ref()) {
         Some((c, _)) => Some(c),

@@ -208,7 +208,8 @@ pub fn read_fields(dir: &Path, sec: &SectionFile) -> Result<Array3<f64>> {
 
 /// `frost_line_<day>.csv`: the frost line drawn on the field, as polylines (x, z in m).
 pub fn frost_line_csv(lines: &[Vec<(f64, f64)>]) -> Vec<u8> {
-    let mut csv = String::from("# Frost line (isotherm at the frost-line temperature) on the plotted day; x, z in m.\nline,x_m,z_m\n");
+    // The frost line (the frost-line isotherm of the frost scalar) drawn on the plotted day.
+    let mut csv = String::from("line,x_m,z_m\n");
     for (k, l) in lines.iter().enumerate() {
         for (x, z) in l {
             csv += &format!("{k},{x:.4},{z:.4}\n");

@@ -122,12 +122,10 @@ fn checks(case: &Case) -> (SizingCheck, Vec<String>) {
 }
 
 /// `sizing.csv`: every evaluated design.
-pub fn sizing_csv(case: &Case, f: &SizingFile) -> String {
-    let mut csv = format!(
-        "# {}\n# {}\n# cost weights are per metre of exposed perimeter\n",
-        case.name, SIZING_CAUTION
-    );
-    csv += &format!("{},frost_margin_m,frost_depth_under_footing_m,annual_heat_loss_kwh,heat_loss_change_kwh,cost_per_m,feasible,on_tradeoff,note\n", f.dimensions.join(","));
+pub fn sizing_csv(f: &SizingFile) -> String {
+    // The case, the caution and the cost basis (per metre of exposed perimeter) are in
+    // sizing.json; the CSV is one header row and data.
+    let mut csv = format!("{},frost_margin_m,frost_depth_under_footing_m,annual_heat_loss_kwh,heat_loss_change_kwh,cost_per_m,feasible,on_tradeoff,note\n", f.dimensions.join(","));
     for d in &f.designs {
         let on = f.tradeoff.iter().any(|t| t.values == d.values);
         let vals: Vec<String> = d.values.iter().map(|v| format!("{v:.4}")).collect();

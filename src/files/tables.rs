@@ -124,27 +124,37 @@ pub fn fmt(v: f64, digits: usize) -> String {
     }
 }
 
-/// A CSV file: `#` lines of `comment`, a header, rows.
+/// A CSV file's bytes (one header row, then the rows: what `pandas.read_csv` and a spreadsheet
+/// open without options) and its note (provenance and meaning), which goes to `csv_notes.json`.
+#[derive(Debug, Clone)]
+pub struct Csv {
+    /// The file's bytes.
+    pub bytes: Vec<u8>,
+    /// What it holds, for `csv_notes.json`.
+    pub note: String,
+}
+
+/// A CSV file: a header and rows; `note` is kept beside it.
 pub fn csv_bytes(
-    comment: &str,
+    note: &str,
     header: &[&str],
     rows: impl Iterator<Item = Vec<String>>,
-) -> Result<Vec<u8>> {
-    let mut out = Vec::new();
-    for line in comment.lines() {
-        out.extend_from_slice(format!("# {line}\n").as_bytes());
-    }
-    let mut w = csv::Writer::from_writer(out);
+) -> Result<Csv> {
+    let mut w = csv::Writer::from_writer(Vec::new());
     let enc = |e: csv::Error| Error::Output(e.to_string());
     w.write_record(header).map_err(enc)?;
     for r in rows {
         w.write_record(&r).map_err(enc)?;
     }
-    w.into_inner().map_err(|e| Error::Output(e.to_string()))
+    let bytes = w.into_inner().map_err(|e| Error::Output(e.to_string()))?;
+    Ok(Csv {
+        bytes,
+        note: note.to_string(),
+    })
 }
 
 /// `daily.csv`.
-pub fn daily(head: &str, r: &Records) -> Result<Vec<u8>> {
+pub fn daily(head: &str, r: &Records) -> Result<Csv> {
     csv_bytes(
         &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
         &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
@@ -157,7 +167,7 @@ pub fn daily(head: &str, r: &Records) -> Result<Vec<u8>> {
 /// `monthly.csv`: calendar months (365-day calendar; day 366 of a leap year stays in December):
 /// heat loss and outdoor temperature of the heat-loss year (the normal year when a design winter
 /// was run), frost depths of the reported period.
-pub fn monthly(head: &str, r: &Records) -> Result<Vec<u8>> {
+pub fn monthly(head: &str, r: &Records) -> Result<Csv> {
     let month = |d: &Day| month_of((d.day_of_year as f64 - 0.5).min(364.5));
     let (mut kwh, mut tout, mut n) = ([0.0; 12], [0.0; 12], [0usize; 12]);
     let (mut fo, mut ff) = ([0.0f64; 12], [0.0f64; 12]);
@@ -194,7 +204,7 @@ pub fn monthly(head: &str, r: &Records) -> Result<Vec<u8>> {
 }
 
 /// `probes.csv`.
-pub fn probes(head: &str, case: &Case, r: &RunResult) -> Result<Vec<u8>> {
+pub fn probes(head: &str, case: &Case, r: &RunResult) -> Result<Csv> {
     let mut ph = vec!["day_of_year".to_string()];
     for p in &case.probes {
         ph.push(format!(
@@ -215,7 +225,7 @@ pub fn probes(head: &str, case: &Case, r: &RunResult) -> Result<Vec<u8>> {
 }
 
 /// `field_<day>.csv`: cell-centre temperatures of the design day, solid cells only.
-pub fn field(head: &str, r: &RunResult) -> Result<Vec<u8>> {
+pub fn field(head: &str, r: &RunResult) -> Result<Csv> {
     let g = &r.mesh.grid;
     let t = &r.field.t;
     csv_bytes(
@@ -229,7 +239,7 @@ pub fn field(head: &str, r: &RunResult) -> Result<Vec<u8>> {
 }
 
 /// `winters.csv`.
-pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Vec<u8>> {
+pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Csv> {
     csv_bytes(
         &format!("{head}\nEvery complete season (1 July - 30 June) of the measured series, named by the year it starts."),
         &["winter", "freezing_index_c_days", "frost_margin_m", "frost_depth_under_footing_m", "frost_depth_open_ground_m", "frost_depth_beside_wall_m", "ground_heat_loss_kwh", "energy_balance_error"],
@@ -239,11 +249,9 @@ pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Vec<u8>> {
     )
 }
 
-/// A CSV reader over `text` skipping `#` comment lines.
+/// A CSV reader over `text` (one header row, no comment lines).
 fn reader(text: &str) -> csv::Reader<&[u8]> {
-    csv::ReaderBuilder::new()
-        .comment(Some(b'#'))
-        .from_reader(text.as_bytes())
+    csv::ReaderBuilder::new().from_reader(text.as_bytes())
 }
 
 /// Typed rows of one of our CSV files in `dir`; an error names the file and the row.
@@ -313,7 +321,12 @@ mod tests {
             rows,
         )
         .unwrap();
-        std::fs::write(dir.join("monthly.csv"), bytes).unwrap();
+        assert!(
+            bytes.bytes.starts_with(b"month,"),
+            "the header is the first line"
+        );
+        assert_eq!(bytes.note, "case\ncaution, with a comma");
+        std::fs::write(dir.join("monthly.csv"), bytes.bytes).unwrap();
         let back: Vec<MonthlyRow> = read_rows(&dir, "monthly.csv").unwrap();
         assert_eq!(back.len(), 12);
         assert_eq!((back[1].month, back[1].ground_heat_loss_kwh), (2, 20.0));

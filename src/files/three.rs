@@ -2,8 +2,8 @@
 //! `perimeter.csv`, `plan_frost.csv` and `three_d.json` (the plan map, the design day's
 //! sections at mid-wall and along the corner diagonal, and the outlines the plots draw).
 use super::section::{part_outlines, PartOutline};
-use super::tables::{self, csv_bytes, fmt};
-use super::{write_atomic, write_json};
+use super::tables::{self, csv_bytes, fmt, Csv};
+use super::{write_csv, write_json, CsvNotes};
 use crate::analysis::frost_scalar;
 use crate::case::{Case, InsulationKind};
 use crate::error::Result;
@@ -225,7 +225,7 @@ fn perimeter_rows(r: &Run3Result) -> Vec<(String, f64, StationYear)> {
 }
 
 /// `perimeter.csv`.
-fn perimeter_csv(head: &str, r: &Run3Result) -> Result<Vec<u8>> {
+fn perimeter_csv(head: &str, r: &Run3Result) -> Result<Csv> {
     csv_bytes(
         &format!("{head}\nFrost along the perimeter over the reported period, station by station: the long wall from its middle to the corner, the corner (the diagonal column at the footing face and the footing's corner square), the short wall from the corner to its middle. distance_m runs along the exterior wall face from the long wall's middle.\nMargin: {MARGIN_3D}"),
         &["wall", "distance_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_margin_m", "margin_day_of_year"],
@@ -236,7 +236,7 @@ fn perimeter_csv(head: &str, r: &Run3Result) -> Result<Vec<u8>> {
 }
 
 /// `plan_frost.csv`: deepest frost per plan column (quarter).
-fn plan_csv(head: &str, r: &Run3Result) -> Result<Vec<u8>> {
+fn plan_csv(head: &str, r: &Run3Result) -> Result<Csv> {
     let g = &r.mesh.grid;
     let f = &r.year().plan_frost_m;
     csv_bytes(
@@ -404,13 +404,18 @@ pub fn three_d_file(case: &Case, r: &Run3Result) -> ThreeDFile {
 }
 
 /// Write the 3D files into `dir`; returns the paths.
-pub fn write_3d(case: &Case, r: &Run3Result, dir: &Path, head: &str) -> Result<Vec<PathBuf>> {
+pub fn write_3d(
+    case: &Case,
+    r: &Run3Result,
+    dir: &Path,
+    (head, notes): (&str, &mut CsvNotes),
+) -> Result<Vec<PathBuf>> {
     let rec = r.records();
     Ok(vec![
-        write_atomic(dir, "daily_3d.csv", &tables::daily(head, &rec)?)?,
-        write_atomic(dir, "monthly_3d.csv", &tables::monthly(head, &rec)?)?,
-        write_atomic(dir, "perimeter.csv", &perimeter_csv(head, r)?)?,
-        write_atomic(dir, "plan_frost.csv", &plan_csv(head, r)?)?,
+        write_csv(dir, "daily_3d.csv", tables::daily(head, &rec)?, notes)?,
+        write_csv(dir, "monthly_3d.csv", tables::monthly(head, &rec)?, notes)?,
+        write_csv(dir, "perimeter.csv", perimeter_csv(head, r)?, notes)?,
+        write_csv(dir, "plan_frost.csv", plan_csv(head, r)?, notes)?,
         write_json(dir, "three_d.json", &three_d_file(case, r))?,
     ])
 }
