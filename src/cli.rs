@@ -419,15 +419,20 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
     let mut written = if three {
         let r3 = run::three::run3(&case, &run::RunOptions::default(), &mut cb);
         bar.finish_and_clear();
-        files::write_run3(&case, &r3?, &cc, &a.out)?
+        let r3 = r3?;
+        files::remove_previous(&a.out)?;
+        files::write_run3(&case, &r3, &cc, &a.out)?
     } else {
         let result = run::run(&case, &mut cb);
         bar.finish_and_clear();
-        files::write_run(&case, &result?, &cc, &a.out)?
+        let result = result?;
+        files::remove_previous(&a.out)?;
+        files::write_run(&case, &result, &cc, &a.out)?
     };
     if !a.no_plots {
         written.extend(render(&a.out, a.animate)?);
     }
+    written.push(files::write_manifest(&a.out, &written, false)?);
     let summary = files::read_summary(&a.out)?;
     if a.format == FormatArg::Json {
         print!("{}", files::read_text(&a.out, "summary.json")?);
@@ -476,6 +481,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
     let result = frostline::design::size(&case, &cb);
     bar.finish_and_clear();
     let result = result?;
+    files::remove_previous(&a.out)?;
     let mut written = files::write_sizing(&case, &result, &a.out)?;
     // The chosen design's full results, plots and report (with the sizing) in the same directory:
     // its 3D run when the corners were checked, else its 2D run.
@@ -497,6 +503,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
         )?);
         written.extend(render(&a.out, false)?);
     }
+    written.push(files::write_manifest(&a.out, &written, false)?);
     print!(
         "{}",
         report::sizing::text(&files::SizingFile::new(&case, &result))
@@ -609,6 +616,7 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
     };
     let mut written = frostline::plot::render_dir(&a.dir, &opts)?;
     written.push(report::html::write_report(&a.dir)?);
+    written.push(files::write_manifest(&a.dir, &written, true)?);
     for f in written {
         println!("{}", f.display());
     }

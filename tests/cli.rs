@@ -374,3 +374,58 @@ fn run_prints_json_for_pipes() {
     assert_eq!(printed, file);
     assert!(printed["annual_heat_loss_kwh"].is_number());
 }
+
+/// A run owns its output directory: a second run into it removes the files the first recorded in
+/// manifest.json that it does not write again (a series run's winters chart, its field file of
+/// another day), so the new report cannot embed stale figures; files it did not write stay.
+#[test]
+fn rerun_removes_its_own_stale_files_only() {
+    let out = scratch("owned-dir");
+    let ex = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples");
+    let run = |case: &str| {
+        let c = ex.join(case);
+        let o = bin()
+            .args([
+                "run".as_ref(),
+                c.as_os_str(),
+                "--out".as_ref(),
+                out.as_os_str(),
+            ])
+            .args(["--mesh", "coarse", "--quiet", "--max-spin-up-years", "2"])
+            .output()
+            .unwrap();
+        assert!(
+            matches!(o.status.code(), Some(0) | Some(3)),
+            "{}",
+            String::from_utf8_lossy(&o.stderr)
+        );
+    };
+    run("kettle-hollow-series.toml");
+    assert!(out.join("winters.csv").exists() && out.join("winters.png").exists());
+    std::fs::write(out.join("my notes.txt"), "mine").unwrap();
+    run("kettle-hollow-house.toml");
+    assert!(!out.join("winters.csv").exists(), "stale winters.csv left");
+    assert!(!out.join("winters.png").exists(), "stale winters.png left");
+    assert!(
+        out.join("my notes.txt").exists(),
+        "a file frostline did not write was removed"
+    );
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        !report.contains("fig-winters"),
+        "the report embeds a stale chart"
+    );
+    let m: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("manifest.json")).unwrap()).unwrap();
+    let names: Vec<&str> = m["files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_str().unwrap())
+        .collect();
+    assert!(names.contains(&"summary.json") && names.contains(&"report.html"));
+    assert!(!names.contains(&"my notes.txt"));
+    for n in names {
+        assert!(out.join(n).exists(), "manifest lists {n}, which is missing");
+    }
+}

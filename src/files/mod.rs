@@ -70,6 +70,69 @@ pub fn write_csv(
     write_atomic(dir, name, &csv.bytes)
 }
 
+/// `manifest.json`: the files frostline wrote into a run directory, so a later run into the same
+/// directory removes exactly its own earlier files (and never a file it did not write).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Manifest {
+    /// The tool and version that wrote the files.
+    pub written_by: String,
+    /// File names (in the directory, no paths).
+    pub files: Vec<String>,
+}
+
+const MANIFEST: &str = "manifest.json";
+
+/// A plain file name (no separator, not `.` or `..`).
+fn plain_name(n: &str) -> bool {
+    !n.is_empty() && n != "." && n != ".." && !n.contains(['/', '\\'])
+}
+
+/// The manifest of `dir`, if any (a damaged one counts as none: nothing is removed on its word).
+pub fn read_manifest(dir: &Path) -> Option<Manifest> {
+    let text = std::fs::read_to_string(dir.join(MANIFEST)).ok()?;
+    serde_json::from_str(&text).ok()
+}
+
+/// Remove the files an earlier run recorded in `dir`'s manifest (regular files only, by plain
+/// name; links and directories are left alone); returns their names. Called once the new results
+/// exist, just before they are written.
+pub fn remove_previous(dir: &Path) -> Result<Vec<String>> {
+    let Some(m) = read_manifest(dir) else {
+        return Ok(Vec::new());
+    };
+    let mut removed = Vec::new();
+    for name in m.files.iter().filter(|n| plain_name(n) && *n != MANIFEST) {
+        let p = dir.join(name);
+        if std::fs::symlink_metadata(&p).is_ok_and(|md| md.file_type().is_file()) {
+            std::fs::remove_file(&p).map_err(|e| Error::io(&p, e))?;
+            removed.push(name.clone());
+        }
+    }
+    Ok(removed)
+}
+
+/// Record `written` (paths in `dir`) in `dir`'s manifest, with the names already there when
+/// `append` (a re-plot adds to its run's files).
+pub fn write_manifest(dir: &Path, written: &[PathBuf], append: bool) -> Result<PathBuf> {
+    let mut files: Vec<String> = if append {
+        read_manifest(dir).map(|m| m.files).unwrap_or_default()
+    } else {
+        Vec::new()
+    };
+    for p in written {
+        if let Some(n) = p.file_name().map(|s| s.to_string_lossy().to_string()) {
+            if plain_name(&n) && n != MANIFEST && !files.contains(&n) {
+                files.push(n);
+            }
+        }
+    }
+    let m = Manifest {
+        written_by: format!("frostline {}", env!("CARGO_PKG_VERSION")),
+        files,
+    };
+    write_json(dir, MANIFEST, &m)
+}
+
 /// Serialise `v` as pretty JSON into `dir/name`.
 pub fn write_json<T: serde::Serialize>(dir: &Path, name: &str, v: &T) -> Result<PathBuf> {
     let bytes = serde_json::to_vec_pretty(v).map_err(|e| Error::Output(e.to_string()))?;
