@@ -160,12 +160,15 @@ fn draw_isotherms<DB: DrawingBackend>(
                 if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
                     let (x, z) = pts[pts.len() / 2];
                     placed.push((x, z));
+                    // The label in °C on a pale box, readable on dark and light colours.
+                    let text = format!("{level:.0} °C");
+                    let w = 7 * text.chars().count() as i32;
                     chart
-                        .draw_series(std::iter::once(Text::new(
-                            format!("{level:.0}"),
-                            (x, z),
-                            ("sans-serif", 12).into_font(),
-                        )))
+                        .draw_series(std::iter::once(
+                            EmptyElement::at((x, z))
+                                + Rectangle::new([(-2, -8), (w, 8)], WHITE.mix(0.8).filled())
+                                + Text::new(text, (0, -6), ("sans-serif", 12).into_font()),
+                        ))
                         .map_err(out_err)?;
                 }
             }
@@ -214,9 +217,12 @@ fn draw_colour_bar<DB: DrawingBackend>(
         .caption("°C", ("sans-serif", 15))
         .build_cartesian_2d(0.0..1.0, tmin..tmax)
         .map_err(out_err)?;
+    // Whole degrees when the range is wide enough, so ticks carry no spurious decimals.
+    let digits = if tmax - tmin >= 5.0 { 0 } else { 1 };
     bar.configure_mesh()
         .disable_mesh()
         .disable_x_axis()
+        .y_label_formatter(&|v: &f64| format!("{v:.digits$}"))
         .label_style(("sans-serif", 12))
         .draw()
         .map_err(out_err)?;
