@@ -236,6 +236,10 @@ pub struct PlotArgs {
     /// Also write soil_temperature.gif.
     #[arg(long)]
     pub animate: bool,
+    /// Write the plots, the drawn day's field CSV and report.html into this directory instead of
+    /// the run directory (created if missing), so the run's own figures stay as they are.
+    #[arg(long, short)]
+    pub out: Option<PathBuf>,
 }
 
 impl From<FitArg> for FitMethod {
@@ -613,10 +617,12 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
         day_of_year: a.day,
         zoom,
         animate: a.animate,
+        out: a.out.clone(),
     };
+    let out = a.out.as_deref().unwrap_or(&a.dir);
     let mut written = frostline::plot::render_dir(&a.dir, &opts)?;
-    written.push(report::html::write_report(&a.dir)?);
-    written.push(files::write_manifest(&a.dir, &written, true)?);
+    written.push(report::html::write_report_to(&a.dir, out)?);
+    written.push(files::write_manifest(out, &written, true)?);
     for f in written {
         println!("{}", f.display());
     }

@@ -429,3 +429,61 @@ fn rerun_removes_its_own_stale_files_only() {
         assert!(out.join(n).exists(), "manifest lists {n}, which is missing");
     }
 }
+
+/// `plot --day N --out SUB` draws another day into its own directory: the run's figures stay as
+/// they are, and the drawn day's field is written as CSV (one value per solid cell).
+#[test]
+fn plot_another_day_into_its_own_directory() {
+    let out = scratch("plot-out");
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let o = bin()
+        .args([
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ])
+        .args(["--mesh", "coarse", "--quiet"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0));
+    let before = std::fs::read(out.join("soil_temperature.png")).unwrap();
+    let sub = out.join("day60");
+    let o = bin()
+        .args([
+            "plot".as_ref(),
+            out.as_os_str(),
+            "--day".as_ref(),
+            "60".as_ref(),
+        ])
+        .args(["--out".as_ref(), sub.as_os_str()])
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    assert_eq!(
+        std::fs::read(out.join("soil_temperature.png")).unwrap(),
+        before
+    );
+    for f in [
+        "soil_temperature.png",
+        "frost_depth.png",
+        "report.html",
+        "frost_line_060.csv",
+    ] {
+        assert!(sub.join(f).exists(), "{f}");
+    }
+    let field = std::fs::read_to_string(sub.join("field_060.csv")).unwrap();
+    assert_eq!(field.lines().next(), Some("x_m,z_m,temperature_c"));
+    let summary: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    assert_eq!(
+        field.lines().count() as u64 - 1,
+        summary["cells"].as_u64().unwrap()
+    );
+}

@@ -23,6 +23,8 @@ pub struct PlotOptions {
     pub zoom: Option<[f64; 4]>,
     /// Also write `soil_temperature.gif` (the field through the year).
     pub animate: bool,
+    /// Write the plots here instead of the run directory (created if missing).
+    pub out: Option<PathBuf>,
 }
 
 fn register_fonts() {
@@ -439,10 +441,38 @@ fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)>
     Ok((path, entry))
 }
 
-/// Render every plot of the run saved in `dir`; returns the files written.
+/// `field_<day>.csv` of the drawn day (a day other than the run's own field day): cell-centre
+/// temperatures of the solid cells from the saved daily fields (0.01 K resolution).
+fn field_csv(out: &Path, d: &PlotData, day: usize) -> Result<PathBuf> {
+    use crate::files::tables::{csv_bytes, fmt};
+    let f = d.field(day);
+    let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
+    let c = |e: &[f64], i: usize| 0.5 * (e[i] + e[i + 1]);
+    let csv = csv_bytes(
+        "",
+        &["x_m", "z_m", "temperature_c"],
+        (0..nz)
+            .flat_map(|j| (0..nx).map(move |i| (i, j)))
+            .filter_map(|(i, j)| {
+                let v = f[[j, i]];
+                v.is_finite()
+                    .then(|| vec![fmt(c(&d.xe, i), 4), fmt(c(&d.ze, j), 4), fmt(v, 2)])
+            }),
+    )?;
+    crate::files::write_atomic(
+        out,
+        &format!("field_{:03}.csv", d.days[day].day_of_year),
+        &csv.bytes,
+    )
+}
+
+/// Render every plot of the run saved in `dir` (into `opts.out` if given); returns the files
+/// written.
 pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     register_fonts();
     let d = PlotData::load(dir)?;
+    let out = opts.out.as_deref().unwrap_or(dir);
+    crate::files::create_dir(out)?;
     let mut files = Vec::new();
     let day = match opts.day_of_year {
         Some(doy) => d.day_index(doy).ok_or_else(|| {
@@ -474,7 +504,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         ("probes", charts::SIZE),
     ];
     render_both!(
-        dir,
+        out,
         "soil_temperature",
         field_size(full),
         files,
@@ -498,7 +528,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     );
     sizes.push(("soil_temperature_zoom", field_size(zoom)));
     let frost = render_both!(
-        dir,
+        out,
         "soil_temperature_zoom",
         field_size(zoom),
         files,
@@ -506,30 +536,33 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     );
     // The frost line drawn on the field, saved as data.
     files.push(crate::files::write_atomic(
-        dir,
+        out,
         &format!("frost_line_{doy:03}.csv"),
         &crate::files::section::frost_line_csv(&frost),
     )?);
-    charts::frost_depth(dir, &d, &mut files)?;
-    charts::heat_loss(dir, &d, &mut files)?;
+    charts::frost_depth(out, &d, &mut files)?;
+    charts::heat_loss(out, &d, &mut files)?;
     if !d.probe_names.is_empty() {
-        charts::probes(dir, &d, &mut files)?;
+        charts::probes(out, &d, &mut files)?;
     }
     if let Some(f) = crate::files::read_three_d(dir)? {
-        sizes.extend(three::render(dir, &f, &mut files)?);
+        sizes.extend(three::render(out, &f, &mut files)?);
     }
     if let Some(w) = charts::read_winters(dir)? {
-        charts::winters(dir, &d, &w, &mut files)?;
+        charts::winters(out, &d, &w, &mut files)?;
         sizes.push(("winters", charts::SIZE));
     }
     let mut index = plot_index(&files, &sizes);
     if opts.animate {
-        let (path, entry) = animate(dir, &d, zoom)?;
+        let (path, entry) = animate(out, &d, zoom)?;
         files.push(path);
         index.push(entry);
     }
+    if day != d.field_day_index {
+        files.push(field_csv(out, &d, day)?);
+    }
     files.push(crate::files::write_json(
-        dir,
+        out,
         "plots.json",
         &PlotIndex {
             day_of_year: doy,

@@ -69,6 +69,11 @@ pub(super) fn f(v: f64, d: usize) -> String {
 
 /// Write `dir/report.html` from the run's files; returns its path.
 pub fn write_report(dir: &Path) -> Result<PathBuf> {
+    write_report_to(dir, dir)
+}
+
+/// Write `out/report.html` from the run's files in `dir`, embedding the plots in `out`.
+pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
     let s = files::read_summary(dir)?;
     let case_text = files::read_text(dir, "case.toml")?;
     let sizing = files::read_sizing(dir)?;
@@ -94,7 +99,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         escape(&s.note)
     ));
     if let Some(s3) = &s.three_d {
-        h.push_str(&super::three::html(s3, dir));
+        h.push_str(&super::three::html(s3, out));
     }
     h.push_str(&results(&s));
     if let Some(z) = &sizing {
@@ -108,7 +113,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
     } else {
         "Figures"
     };
-    h.push_str(&figures(dir, FIGURES, ("figures", heading)));
+    h.push_str(&figures(out, FIGURES, ("figures", heading)));
     h.push_str(&numerics(&s));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
     h.push_str(&format!(
@@ -132,7 +137,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
         h.push_str(&format!("<li>{}</li>\n", escape(c)));
     }
     h.push_str("</ul>\n</body>\n</html>\n");
-    files::write_atomic(dir, "report.html", h.as_bytes())
+    files::write_atomic(out, "report.html", h.as_bytes())
 }
 
 /// The results table: model beside the published methods.
