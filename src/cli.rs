@@ -65,6 +65,18 @@ pub enum Command {
         /// The case file (TOML).
         case: PathBuf,
     },
+    /// Print a shell completion script to standard output.
+    #[command(
+        after_help = "Examples:\n  frostline completions bash > ~/.local/share/bash-completion/completions/frostline\n  \
+        frostline completions zsh > ~/.zfunc/_frostline"
+    )]
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff) to standard output.
+    #[command(after_help = "Example:\n  frostline man > frostline.1 && man ./frostline.1")]
+    Man,
 }
 
 /// Mesh fineness on the command line.
@@ -293,6 +305,17 @@ pub fn main_exit_code() -> i32 {
     }
 }
 
+/// Write `bytes` to standard output; a closed pipe (`| head`) is not an error.
+fn write_stdout(bytes: &[u8]) -> Result<(), Error> {
+    use std::io::Write;
+    match std::io::stdout().write_all(bytes) {
+        Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
+            Err(Error::io(Path::new("standard output"), e))
+        }
+        _ => Ok(()),
+    }
+}
+
 /// Run a command; returns the stated criteria the results do not meet (empty: all met).
 fn execute(cli: Cli) -> Result<Vec<String>, Error> {
     match cli.command {
@@ -308,6 +331,22 @@ fn execute(cli: Cli) -> Result<Vec<String>, Error> {
         Command::Climate(a) => climate(a).map(|_| Vec::new()),
         Command::Plot(a) => plot(a).map(|_| Vec::new()),
         Command::Run(a) => run_case(a),
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            let mut buf = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "frostline", &mut buf);
+            write_stdout(&buf)?;
+            Ok(Vec::new())
+        }
+        Command::Man => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            let mut buf = Vec::new();
+            clap_mangen::Man::new(cmd)
+                .render(&mut buf)
+                .map_err(|e| Error::io(Path::new("standard output"), e))?;
+            write_stdout(&buf)?;
+            Ok(Vec::new())
+        }
     }
 }
 

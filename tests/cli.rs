@@ -1,4 +1,5 @@
 //! The command-line interface: exit codes, error messages for bad input, help text.
+use crate::common::run_ok;
 use std::path::PathBuf;
 use std::process::Command;
 
@@ -486,4 +487,23 @@ fn plot_another_day_into_its_own_directory() {
         field.lines().count() as u64 - 1,
         summary["cells"].as_u64().unwrap()
     );
+}
+
+/// Shell completions and the manual page come from the command-line definition: every shell's
+/// script and the roff page generate and name the subcommands.
+#[test]
+fn completions_and_man_page_generate() {
+    for shell in ["bash", "zsh", "fish", "elvish", "powershell"] {
+        let out = run_ok(&["completions", shell]);
+        assert!(out.contains("frostline") && out.contains("size"), "{shell}");
+    }
+    let man = run_ok(&["man"]);
+    assert!(
+        man.starts_with(".ie") || man.contains(".TH frostline 1"),
+        "{}",
+        &man[..80.min(man.len())]
+    );
+    for sub in ["run", "plot", "climate", "soil", "size", "check"] {
+        assert!(man.contains(sub), "{sub}");
+    }
 }
