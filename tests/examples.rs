@@ -59,6 +59,16 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
     ] {
         assert!(s["cross_check"][k].is_number(), "{name}: cross_check.{k}");
     }
+    // Provenance: the case as read, hashed; the report names it.
+    let p = &s["provenance"];
+    let case_text = std::fs::read(out.join("case.toml")).unwrap();
+    use sha2::Digest;
+    let digest: String = sha2::Sha256::digest(&case_text)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect();
+    assert_eq!(p["case_sha256"].as_str().unwrap(), digest);
+    assert!(p["tool"].as_str().unwrap().starts_with("frostline "));
     // Every CSV is one header row with units, then data (no comment lines: pandas.read_csv and
     // a spreadsheet open it without options); csv_notes.json carries the caution and what each
     // file holds.

@@ -10,6 +10,64 @@ pub const CAUTION: &str = "Results are engineering estimates from a 2D or 3D hea
 They do not replace the judgement of a licensed engineer; local codes and standards govern the design of \
 foundations and frost protection.";
 
+/// Where a run's results came from.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Provenance {
+    /// Tool and version.
+    pub tool: String,
+    /// When the results were written, UTC (ISO 8601).
+    pub written_utc: String,
+    /// The case file as named on the command line.
+    pub case_file: String,
+    /// SHA-256 of the case as read (hex).
+    pub case_sha256: String,
+    /// The climate series file, if the case reads one.
+    pub climate_file: Option<String>,
+    /// SHA-256 of the climate file (hex), if it could be read again.
+    pub climate_sha256: Option<String>,
+}
+
+fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::Digest;
+    sha2::Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+impl Provenance {
+    /// The provenance of a run of `case`, now.
+    pub fn of(case: &Case) -> Self {
+        let climate_file = match (&case.climate.source, &case.climate.design_winter) {
+            (crate::case::ClimateSource::Series(s), _) => Some(s.source.clone()),
+            (_, Some(d)) => d.from_series.as_ref().map(|y| y.series.clone()),
+            _ => None,
+        };
+        let climate_sha256 = climate_file
+            .as_ref()
+            .and_then(|f| std::fs::read(f).ok())
+            .map(|b| sha256_hex(&b));
+        let secs = std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .map_or(0, |d| d.as_secs() as i64);
+        let (y, m, d) = crate::physics::climate::calendar::civil_from_days(secs.div_euclid(86400));
+        let s = secs.rem_euclid(86400);
+        Provenance {
+            tool: format!("frostline {}", env!("CARGO_PKG_VERSION")),
+            written_utc: format!(
+                "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
+                s / 3600,
+                s / 60 % 60,
+                s % 60
+            ),
+            case_file: case.file.clone(),
+            case_sha256: sha256_hex(case.source.as_bytes()),
+            climate_file,
+            climate_sha256,
+        }
+    }
+}
+
 /// The coordinate convention, stated in file headers.
 pub const COORDINATES: &str =
     "x horizontal, 0 at the exterior face of the foundation wall, positive outward; z depth below finished ground level, positive down";
@@ -90,6 +148,9 @@ pub struct BasementSummary {
 pub struct Summary {
     /// Case name.
     pub case_name: String,
+    /// Where the results came from: tool version, time, input files and their SHA-256 digests.
+    #[serde(default)]
+    pub provenance: Option<Provenance>,
     /// The caution.
     pub caution: String,
     /// Coordinate convention.
@@ -236,6 +297,7 @@ impl Summary {
         let st = r.stats;
         let series = !r.winters.is_empty();
         Summary {
+            provenance: Some(Provenance::of(case)),
             case_name: case.name.clone(),
             caution: CAUTION.into(),
             coordinates: COORDINATES.into(),
@@ -345,4 +407,21 @@ fn basement_summary(case: &Case, r: &RunResult) -> Option<BasementSummary> {
         effective_u_value_w_per_m2k: v.effective_u_value_w_per_m2k,
         basement_note: "Wall U is the wall's below-ground loss over z·P; effective U is (floor + below-ground wall) over (A + z·P) (ISO 13370 heated basement); the loss through the wall above ground is reported on its own line.".into(),
     })
+}
+
+#[cfg(test)]
+mod provenance_tests {
+    /// SHA-256 of "abc" and of the empty message: FIPS 180-2, Appendix B.1, and the standard's
+    /// empty-string digest.
+    #[test]
+    fn sha256_vectors() {
+        assert_eq!(
+            super::sha256_hex(b"abc"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(
+            super::sha256_hex(b""),
+            "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
+        );
+    }
 }

@@ -93,6 +93,21 @@ pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
         "<p class=\"caution\"><strong>Caution.</strong> {}</p>\n",
         escape(CAUTION)
     ));
+    if let Some(p) = &s.provenance {
+        h.push_str(&format!(
+            "<p class=\"provenance\">{}; results written {}; case file {} (SHA-256 {}){}.</p>\n",
+            escape(&p.tool),
+            escape(&p.written_utc),
+            escape(&p.case_file),
+            escape(&p.case_sha256),
+            match (&p.climate_file, &p.climate_sha256) {
+                (Some(f), Some(h)) =>
+                    format!("; climate file {} (SHA-256 {})", escape(f), escape(h)),
+                (Some(f), None) => format!("; climate file {}", escape(f)),
+                _ => String::new(),
+            }
+        ));
+    }
     h.push_str(&format!(
         "<p>Coordinates: {}. {}</p>\n",
         escape(COORDINATES),
@@ -114,6 +129,7 @@ pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
         "Figures"
     };
     h.push_str(&figures(out, FIGURES, ("figures", heading)));
+    h.push_str(&monthly(dir)?);
     h.push_str(&numerics(&s));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
     h.push_str(&format!(
@@ -314,6 +330,42 @@ pub(super) fn figures(dir: &Path, list: &[(&str, &str)], (id, heading): (&str, &
         }
     }
     h
+}
+
+/// The monthly results as a table (from monthly.csv): the chart's numbers.
+fn monthly(dir: &Path) -> Result<String> {
+    let rows: Vec<files::tables::MonthlyRow> = files::tables::read_rows(dir, "monthly.csv")?;
+    const NAMES: [&str; 12] = [
+        "January",
+        "February",
+        "March",
+        "April",
+        "May",
+        "June",
+        "July",
+        "August",
+        "September",
+        "October",
+        "November",
+        "December",
+    ];
+    let mut h = String::from("<h2 id=\"monthly\">Monthly results (2D section, whole building)</h2>\n<table>\n<tr><th>month</th><th>ground heat loss (kWh)</th><th>mean outdoor air (°C)</th><th>deepest frost, open ground (m)</th><th>deepest frost at the footing face (m)</th></tr>\n");
+    for r in &rows {
+        h += &format!(
+            "<tr><td>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
+            NAMES.get(r.month.wrapping_sub(1)).unwrap_or(&"?"),
+            f(r.ground_heat_loss_kwh, 1),
+            f(r.mean_outdoor_temperature_c, 1),
+            f(r.max_frost_depth_open_ground_m, 2),
+            f(r.max_frost_depth_at_footing_face_m, 2)
+        );
+    }
+    let total: f64 = rows.iter().map(|r| r.ground_heat_loss_kwh).sum();
+    h += &format!(
+        "<tr><th>year</th><th class=n>{}</th><th></th><th></th><th></th></tr>\n</table>\n",
+        f(total, 0)
+    );
+    Ok(h)
 }
 
 /// The numerical record.
