@@ -35,8 +35,18 @@ fn main() {
         net.n,
         t0.elapsed().as_secs_f64()
     );
+    // `omega X`: the preconditioner's modification (default PcgParams's).
+    let omega = args
+        .iter()
+        .position(|a| a == "omega")
+        .and_then(|k| args.get(k + 1))
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(PcgParams::default().omega);
     let params = SolverParams {
-        linear: Linear::Pcg(PcgParams::default()),
+        linear: Linear::Pcg(PcgParams {
+            omega,
+            ..PcgParams::default()
+        }),
         ..Default::default()
     };
     match args.get(1).map(String::as_str) {

@@ -96,6 +96,31 @@ fn misspelt_key() {
     );
 }
 
+/// A number where an integer belongs: the key is named, not the value (hardening finding 7).
+#[test]
+fn fractional_count_names_its_key() {
+    let src = VALID.replace(
+        "name = \"test house\"\n",
+        "name = \"test house\"\n[simulation]\nmax_spin_up_years = 2.5\n",
+    );
+    let (code, err, _) = check("fraction", &src);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("simulation.max_spin_up_years"), "{err}");
+    assert!(!err.contains("simulation.2.5"), "{err}");
+}
+
+/// A case file that does not exist is a usage error: exit 2 with the file named (hardening
+/// finding 15).
+#[test]
+fn missing_case_file_exits_2() {
+    let out = bin()
+        .args(["check", "/nonexistent/case.toml"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("/nonexistent/case.toml"));
+}
+
 #[test]
 fn wrong_type() {
     let src = VALID.replace("base_depth_m = 0.6", "base_depth_m = \"deep\"");
@@ -228,16 +253,6 @@ fn garbage_never_panics() {
         assert_eq!(code, 2, "{junk:?}: {err}");
         assert!(!err.contains("panicked"));
     }
-}
-
-#[test]
-fn missing_file_is_a_runtime_error_not_a_panic() {
-    let out = bin()
-        .args(["check", "/nonexistent/case.toml"])
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(1));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("/nonexistent/case.toml"));
 }
 
 #[test]

@@ -33,7 +33,15 @@ pub fn parse_case(file: &str, src: &str) -> Result<Case> {
 
 /// Read, parse and validate a case file.
 pub fn load_case(path: &std::path::Path) -> Result<Case> {
-    let src = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    // A case file that cannot be read is a usage error (exit 2), not a runtime failure.
+    let src = std::fs::read_to_string(path).map_err(|e| {
+        Error::in_file(
+            &path.display().to_string(),
+            "(file)",
+            InputKind::Unreadable,
+            format!("cannot read the case file: {e}"),
+        )
+    })?;
     parse_case(&path.display().to_string(), &src)
 }
 
@@ -49,7 +57,17 @@ fn toml_error(file: &str, src: &str, e: &toml::de::Error) -> Error {
         ),
         None => (Location::file_only(file), String::new(), None),
     };
-    let named = msg.split('`').nth(1).map(str::to_string).or(line_key);
+    // A `quoted` word names a key in "missing field `k`", "unknown field `k`" and "duplicate
+    // key `k`"; in "invalid type: floating point `2.5`" it is the value, so the line's key wins.
+    let quoted = msg.split('`').nth(1).map(str::to_string);
+    let names_key = ["missing field", "unknown field", "duplicate key"]
+        .iter()
+        .any(|p| msg.starts_with(p));
+    let named = if names_key {
+        quoted.or(line_key)
+    } else {
+        line_key.or(quoted)
+    };
     let key = match (named.as_deref(), table.is_empty()) {
         (Some(k), false) => format!("{table}.{k}"),
         (Some(k), true) => k.to_string(),
