@@ -522,3 +522,23 @@ fn completions_and_man_page_generate() {
         assert!(man.contains(sub), "{sub}");
     }
 }
+
+/// A perimeter so small that B′ runs away is refused by its bound, and a section grid beyond the
+/// cell limit is refused with the count before anything is allocated (hardening finding 1: these
+/// used to abort on a multi-terabyte allocation).
+#[test]
+fn runaway_b_prime_and_grid_are_refused_quickly() {
+    let t0 = std::time::Instant::now();
+    let src = VALID.replace("exposed_perimeter_m = 40.0", "exposed_perimeter_m = 0.001");
+    let (code, err, _) = check("b-prime", &src);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("building.exposed_perimeter_m") && err.contains("at most 1000 m"),
+        "{err}"
+    );
+    let src = VALID.replace("exposed_perimeter_m = 40.0", "exposed_perimeter_m = 0.21");
+    let (code, err, _) = check("big-grid", &src);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("cells; the limit is 500000"), "{err}");
+    assert!(t0.elapsed().as_secs_f64() < 10.0);
+}

@@ -95,6 +95,14 @@ fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
             let a_v = c.range(a, "building.floor_area_m2", 0.0, 1e6, "m²")?;
             let p_v = c.range(p, "building.exposed_perimeter_m", 0.0, 1e5, "m")?;
             let bp = a_v / (0.5 * p_v);
+            if bp > 1000.0 {
+                return Err(c.err(
+                    p.span(),
+                    "building.exposed_perimeter_m",
+                    InputKind::OutOfRange,
+                    format!("{p_v} m gives B' = A/(0.5 P) = {bp:.0} m; allowed: B' of at most 1000 m (the same bound as characteristic_dimension_m: the section's domain grows with B')"),
+                ));
+            }
             if bp < 1.0 {
                 return Err(c.err(
                     p.span(),

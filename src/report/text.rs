@@ -354,6 +354,7 @@ fn numerics_line(s: &Summary) -> String {
 
 /// The text `check` prints: geometry, mesh, and the closed-form estimates.
 pub fn check_text(case: &Case) -> Result<String> {
+    crate::run::check_size_2d(case)?;
     let section = crate::geometry::Section::from_case(case);
     let mesh = section.mesh(case);
     let c = crate::estimate::cross_check(case);

@@ -73,6 +73,28 @@ pub fn assign_groups(net: &mut Network, mesh: &Mesh) {
     }
 }
 
+/// Most cells of a 2D section (the direct factor of a larger one would take gigabytes).
+pub const MAX_CELLS_2D: usize = 500_000;
+
+/// Refuse a section grid larger than [`MAX_CELLS_2D`] before building it (edges only).
+pub fn check_size_2d(case: &Case) -> Result<()> {
+    let g = Section::from_case(case).grid(case);
+    let n = g.nx() * g.nz();
+    if n > MAX_CELLS_2D {
+        return Err(crate::error::Error::in_file(
+            &case.file,
+            "simulation.mesh",
+            crate::error::InputKind::OutOfScope,
+            format!(
+                "the section's grid would have {} × {} = {n} cells; the limit is {MAX_CELLS_2D}: use a coarser mesh or a smaller domain (simulation.domain_width_m, domain_depth_m)",
+                g.nx(),
+                g.nz()
+            ),
+        ));
+    }
+    Ok(())
+}
+
 /// The section, mesh and network (with reporting groups) of a case.
 pub fn model(case: &Case) -> (Section, Mesh, Network) {
     let section = Section::from_case(case);
@@ -124,6 +146,7 @@ fn run_here(
     progress: &mut (dyn FnMut(Progress) + Send),
 ) -> Result<RunResult> {
     let start = std::time::Instant::now();
+    check_size_2d(case)?;
     let (section, mesh, net) = model(case);
     let split = split::split(case, &mesh, &net)?;
     let mut drv = Driver {
