@@ -542,3 +542,47 @@ fn runaway_b_prime_and_grid_are_refused_quickly() {
     assert!(err.contains("cells; the limit is 500000"), "{err}");
     assert!(t0.elapsed().as_secs_f64() < 10.0);
 }
+
+/// Output files are written through new, uniquely named temporaries: a link planted at the old
+/// fixed temporary name is never followed (hardening finding 9), and no temporary is left.
+#[test]
+fn planted_links_are_not_followed() {
+    let out = scratch("planted-link");
+    std::fs::create_dir_all(&out).unwrap();
+    let outside = scratch("planted-target").join("outside.txt");
+    std::fs::create_dir_all(outside.parent().unwrap()).unwrap();
+    std::fs::write(&outside, "untouched").unwrap();
+    for name in [".summary.json.tmp", ".daily.csv.tmp", ".report.html.tmp"] {
+        std::os::unix::fs::symlink(&outside, out.join(name)).unwrap();
+    }
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let o = bin()
+        .args([
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ])
+        .args(["--mesh", "coarse", "--quiet"])
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    assert_eq!(std::fs::read_to_string(&outside).unwrap(), "untouched");
+    let left: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().to_string())
+        .filter(|n| {
+            n.contains(".tmp")
+                && !n.ends_with(".json.tmp")
+                && !n.ends_with(".csv.tmp")
+                && !n.ends_with(".html.tmp")
+        })
+        .collect();
+    assert!(left.is_empty(), "temporaries left: {left:?}");
+}

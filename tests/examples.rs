@@ -105,7 +105,7 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
         .unwrap()
         .file_name()
         .to_string_lossy()
-        .ends_with(".tmp")));
+        .contains(".tmp")));
     assert!(stdout.contains("Caution"), "result table lacks the caution");
     (s, out, stdout)
 }

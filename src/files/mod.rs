@@ -19,13 +19,48 @@ use crate::estimate::CrossCheck;
 use crate::run::RunResult;
 use std::path::{Path, PathBuf};
 
-/// Write `bytes` to `dir/name` through a temporary file and a rename.
-pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
+/// A temporary name beside `dir/name` unique to this process and call (`.name.PID.N.tmp`), so
+/// two runs into one directory never share one and a planted file or link cannot be predicted.
+/// Images keep their extension last (`.name.PID.N.tmp.png`): the plotting library chooses the
+/// format by it.
+pub fn temp_path(dir: &Path, name: &str) -> PathBuf {
+    static N: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+    let n = N.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let pid = std::process::id();
+    match name.rsplit_once('.') {
+        Some((stem, ext)) if ["png", "svg", "gif"].contains(&ext) => {
+            dir.join(format!(".{stem}.{pid}.{n}.tmp.{ext}"))
+        }
+        _ => dir.join(format!(".{name}.{pid}.{n}.tmp")),
+    }
+}
+
+/// Move the finished temporary `tmp` to `dir/name` (removing `tmp` if that fails).
+pub fn finish_temp(tmp: &Path, dir: &Path, name: &str) -> Result<PathBuf> {
     let path = dir.join(name);
-    let tmp = dir.join(format!(".{name}.tmp"));
-    std::fs::write(&tmp, bytes).map_err(|e| Error::io(&path, e))?;
-    std::fs::rename(&tmp, &path).map_err(|e| Error::io(&path, e))?;
+    std::fs::rename(tmp, &path).map_err(|e| {
+        let _ = std::fs::remove_file(tmp);
+        Error::io(&path, e)
+    })?;
     Ok(path)
+}
+
+/// Write `bytes` to `dir/name` through a new temporary file (created exclusively: an existing
+/// file or link of that name is never followed or overwritten) and a rename.
+pub fn write_atomic(dir: &Path, name: &str, bytes: &[u8]) -> Result<PathBuf> {
+    use std::io::Write;
+    let path = dir.join(name);
+    let tmp = temp_path(dir, name);
+    let written = std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&tmp)
+        .and_then(|mut f| f.write_all(bytes).and_then(|_| f.sync_data()));
+    if let Err(e) = written {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(Error::io(&path, e));
+    }
+    finish_temp(&tmp, dir, name)
 }
 
 /// `csv_notes.json`: what each CSV of a run directory holds, with the case, the caution and the

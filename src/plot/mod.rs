@@ -353,18 +353,35 @@ fn draw_field<DB: DrawingBackend>(
 /// PNG call's result.
 macro_rules! render_both {
     ($dir:expr, $stem:expr, $size:expr, $files:expr, $draw:ident ( $($arg:expr),* )) => {{
-        let png = $dir.join(format!("{}.png", $stem));
-        let svg = $dir.join(format!("{}.svg", $stem));
+        // Drawn into temporary files and renamed, so no half-written image ever has its final
+        // name.
+        let (png, svg) = (format!("{}.png", $stem), format!("{}.svg", $stem));
+        let (tpng, tsvg) = (
+            crate::files::temp_path($dir, &png),
+            crate::files::temp_path($dir, &svg),
+        );
         let out = {
-            let root = BitMapBackend::new(&png, $size).into_drawing_area();
-            $draw(&root, $($arg),*)?
+            let root = BitMapBackend::new(&tpng, $size).into_drawing_area();
+            $draw(&root, $($arg),*)
         };
-        {
-            let root = SVGBackend::new(&svg, $size).into_drawing_area();
-            $draw(&root, $($arg),*)?;
+        let out = match out {
+            Ok(o) => o,
+            Err(e) => {
+                let _ = std::fs::remove_file(&tpng);
+                return Err(e);
+            }
+        };
+        let drawn = {
+            let root = SVGBackend::new(&tsvg, $size).into_drawing_area();
+            $draw(&root, $($arg),*)
+        };
+        if let Err(e) = drawn {
+            let _ = std::fs::remove_file(&tpng);
+            let _ = std::fs::remove_file(&tsvg);
+            return Err(e);
         }
-        $files.push(png);
-        $files.push(svg);
+        $files.push(crate::files::finish_temp(&tpng, $dir, &png)?);
+        $files.push(crate::files::finish_temp(&tsvg, $dir, &svg)?);
         out
     }};
 }
@@ -415,9 +432,26 @@ fn plot_index(files: &[PathBuf], sizes: &[(&str, (u32, u32))]) -> Vec<PlotEntry>
 /// `soil_temperature.gif`: the field every 7 days in `view`, on one colour scale (the period's
 /// extremes).
 fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)> {
-    let path = dir.join("soil_temperature.gif");
+    let name = "soil_temperature.gif";
+    let tmp = crate::files::temp_path(dir, name);
+    let drawn = draw_animation(&tmp, d, view);
+    if drawn.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    let size = drawn?;
+    let path = crate::files::finish_temp(&tmp, dir, name)?;
+    let entry = PlotEntry {
+        file: name.into(),
+        width_px: size.0,
+        height_px: size.1,
+    };
+    Ok((path, entry))
+}
+
+/// Draw the animation into `path`; returns its size in pixels.
+fn draw_animation(path: &Path, d: &PlotData, view: View) -> Result<(u32, u32)> {
     let size = field_size(view);
-    let root = BitMapBackend::gif(&path, size, 150)
+    let root = BitMapBackend::gif(path, size, 150)
         .map_err(out_err)?
         .into_drawing_area();
     let (lo, hi) = d
@@ -433,12 +467,7 @@ fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)>
         );
         draw_field(&root, &FieldView::of_day(d, k), view, 1.0, &t, range)?;
     }
-    let entry = PlotEntry {
-        file: "soil_temperature.gif".into(),
-        width_px: size.0,
-        height_px: size.1,
-    };
-    Ok((path, entry))
+    Ok(size)
 }
 
 /// `field_<day>.csv` of the drawn day (a day other than the run's own field day): cell-centre
