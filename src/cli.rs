@@ -454,6 +454,7 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         }
         bar.set_position((p.year * 365 + p.day) as u64);
     };
+    files::check_writable(&a.out)?;
     let three = case.simulation.model == ModelKind::ThreeD;
     if three {
         bar.set_message("2D section, then 3D");
@@ -518,6 +519,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             .num_threads(j.max(1))
             .build_global();
     }
+    files::check_writable(&a.out)?;
     let bar = bar(a.quiet, None);
     bar.set_message("model runs");
     let cb = |n: usize| bar.set_message(format!("{n} model runs"));

@@ -586,3 +586,32 @@ fn planted_links_are_not_followed() {
         .collect();
     assert!(left.is_empty(), "temporaries left: {left:?}");
 }
+
+/// An output directory that cannot be written is found before solving (hardening finding 11): a
+/// path under a regular file fails in well under the run's time, naming the path. (CI runs as
+/// root, where a read-only directory would still be writable, so a file stands in for it.)
+#[test]
+fn unwritable_output_is_found_before_solving() {
+    let dir = scratch("unwritable");
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("plain-file");
+    std::fs::write(&file, "x").unwrap();
+    let out = file.join("sub");
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let t0 = std::time::Instant::now();
+    let o = bin()
+        .args([
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+            "--quiet".as_ref(),
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("plain-file"));
+    // The solve alone takes over a second on any mesh of this case.
+    assert!(t0.elapsed().as_secs_f64() < 1.0, "{:?}", t0.elapsed());
+}

@@ -423,3 +423,27 @@ fn n_factor_and_snow_reduce_frost() {
         depth(&bare)
     );
 }
+
+/// A series whose dates span thousands of years, or a file without end, is refused with its
+/// bound before memory is spent on it (hardening findings 2 and 3: these used to abort on
+/// allocation after reading gigabytes).
+#[test]
+fn series_bounds_are_checked_first() {
+    let dir = scratch("series-bounds");
+    std::fs::create_dir_all(&dir).unwrap();
+    let f = dir.join("span.csv");
+    std::fs::write(&f, "date,temperature_c\n2030-01-01,1.0\n99999-01-01,2.0\n").unwrap();
+    let o = crate::cli::bin().arg("climate").arg(&f).output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("at most 73200 days"));
+    if std::path::Path::new("/dev/zero").exists() {
+        let t0 = std::time::Instant::now();
+        let o = crate::cli::bin()
+            .args(["climate", "/dev/zero"])
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(2));
+        assert!(String::from_utf8_lossy(&o.stderr).contains("larger than 256 MB"));
+        assert!(t0.elapsed().as_secs_f64() < 20.0);
+    }
+}

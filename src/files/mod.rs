@@ -35,6 +35,20 @@ pub fn temp_path(dir: &Path, name: &str) -> PathBuf {
     }
 }
 
+/// Create `dir` if missing and check that a file can be created in it, before a long solve
+/// (a read-only or full directory is found in milliseconds, not after the run).
+pub fn check_writable(dir: &Path) -> Result<()> {
+    create_dir(dir)?;
+    let probe = temp_path(dir, "write-check");
+    std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&probe)
+        .map_err(|e| Error::io(dir, e))?;
+    let _ = std::fs::remove_file(&probe);
+    Ok(())
+}
+
 /// Move the finished temporary `tmp` to `dir/name` (removing `tmp` if that fails).
 pub fn finish_temp(tmp: &Path, dir: &Path, name: &str) -> Result<PathBuf> {
     let path = dir.join(name);

@@ -52,17 +52,41 @@ impl DailySeries {
     }
 }
 
-/// Read a series file; every error names the file and line.
+/// The longest calendar span a series may cover, days (200 years).
+pub const MAX_SPAN_DAYS: i64 = 200 * 366;
+
+/// The largest series file read, bytes (200 years of hourly rows is about 100 MB).
+pub const MAX_FILE_BYTES: u64 = 256 * 1024 * 1024;
+
+/// Read a series file (at most [`MAX_FILE_BYTES`]: an endless or huge file is refused, not read
+/// to exhaustion); every error names the file and line.
 pub fn read_series(path: &Path, opts: &ReadOptions) -> Result<DailySeries> {
+    use std::io::Read;
+    let name = path.display().to_string();
     let f = std::fs::File::open(path).map_err(|e| Error::Io {
         path: path.to_path_buf(),
         source: e,
     })?;
-    read_series_from(
-        std::io::BufReader::new(f),
-        &path.display().to_string(),
-        opts,
-    )
+    let mut bytes = Vec::new();
+    f.take(MAX_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| Error::Io {
+            path: path.to_path_buf(),
+            source: e,
+        })?;
+    if bytes.len() as u64 > MAX_FILE_BYTES {
+        return Err(err(
+            &name,
+            0,
+            "(file)",
+            InputKind::OutOfRange,
+            format!(
+                "larger than {} MB; allowed: a daily or hourly series of at most 200 years",
+                MAX_FILE_BYTES / (1024 * 1024)
+            ),
+        ));
+    }
+    read_series_from(std::io::Cursor::new(bytes), &name, opts)
 }
 
 /// Column positions of the header: (date column, temperature column, temperatures in °F).
@@ -266,6 +290,19 @@ fn lay_out(name: &str, raw: &[(i64, f64)], rows: usize, opts: &ReadOptions) -> R
         ));
     };
     let last = raw.last().map_or(first, |r| r.0);
+    // The calendar span is bounded before anything is laid out (memory follows the span).
+    if last - first + 1 > MAX_SPAN_DAYS {
+        return Err(err(
+            name,
+            0,
+            "(data)",
+            InputKind::OutOfRange,
+            format!(
+                "the dates span {} days; allowed: at most {MAX_SPAN_DAYS} days (200 years)",
+                last - first + 1
+            ),
+        ));
+    }
     let n = (last - first + 1) as usize;
     let mut values = vec![f64::NAN; n];
     for &(d, v) in raw {
