@@ -249,9 +249,17 @@ pub fn winters(head: &str, winters: &[WinterResult]) -> Result<Csv> {
     )
 }
 
-/// A CSV reader over `text` (one header row, no comment lines).
+/// A CSV reader over `text`: one header row, then data. Leading `#` lines, which run directories
+/// written before the CSVs lost their comment lines carry, are skipped (only before the header,
+/// so a `#` in a data value or column name is read as it is).
 fn reader(text: &str) -> csv::Reader<&[u8]> {
-    csv::ReaderBuilder::new().from_reader(text.as_bytes())
+    let mut start = 0;
+    while text[start..].starts_with('#') {
+        start = text[start..]
+            .find('\n')
+            .map_or(text.len(), |k| start + k + 1);
+    }
+    csv::ReaderBuilder::new().from_reader(&text.as_bytes()[start..])
 }
 
 /// Typed rows of one of our CSV files in `dir`; an error names the file and the row.
@@ -326,9 +334,15 @@ mod tests {
             "the header is the first line"
         );
         assert_eq!(bytes.note, "case\ncaution, with a comma");
-        std::fs::write(dir.join("monthly.csv"), bytes.bytes).unwrap();
+        std::fs::write(dir.join("monthly.csv"), &bytes.bytes).unwrap();
         let back: Vec<MonthlyRow> = read_rows(&dir, "monthly.csv").unwrap();
         assert_eq!(back.len(), 12);
+        // A run directory of the earlier layout (leading `#` lines) still reads.
+        let mut legacy = b"# case\n# caution, with a comma\n".to_vec();
+        legacy.extend_from_slice(&bytes.bytes);
+        std::fs::write(dir.join("monthly.csv"), legacy).unwrap();
+        let old: Vec<MonthlyRow> = read_rows(&dir, "monthly.csv").unwrap();
+        assert_eq!(old.len(), 12);
         assert_eq!((back[1].month, back[1].ground_heat_loss_kwh), (2, 20.0));
         assert!(back[2].mean_outdoor_temperature_c.is_nan());
         std::fs::write(
