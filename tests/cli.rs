@@ -615,3 +615,42 @@ fn unwritable_output_is_found_before_solving() {
     // The solve alone takes over a second on any mesh of this case.
     assert!(t0.elapsed().as_secs_f64() < 1.0, "{:?}", t0.elapsed());
 }
+
+/// The probe count is bounded (1000) and checked in linear time (hardening finding 16: 40,000
+/// probes took 6 s in a quadratic duplicate check).
+#[test]
+fn probe_count_is_bounded() {
+    let probes: String = (0..1001)
+        .map(|k| format!("\n[[probe]]\nname = \"p{k}\"\nx_m = 1.0\nz_m = 0.5\n"))
+        .collect();
+    let (code, err, _) = check("many-probes", &format!("{VALID}{probes}"));
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("probe[1000]") && err.contains("at most 1000"),
+        "{err}"
+    );
+    let probes: String = (0..3)
+        .map(|k| format!("\n[[probe]]\nname = \"same\"\nx_m = 1.0\nz_m = 0.{k}\n"))
+        .collect();
+    let (code, err, _) = check("duplicate-probes", &format!("{VALID}{probes}"));
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("probe[1].name"), "{err}");
+}
+
+/// A case file that is not UTF-8 is located by line and column of its first bad byte (hardening
+/// finding 14).
+#[test]
+fn non_utf8_case_is_located() {
+    let dir = scratch("non-utf8");
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("case.toml");
+    std::fs::write(
+        &path,
+        b"name = \"x\"\n[building]\nfloor_area_m2 = 1\xff00.0\n",
+    )
+    .unwrap();
+    let out = bin().arg("check").arg(&path).output().unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains(&format!("{}:3:18:", path.display())), "{err}");
+}

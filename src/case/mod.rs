@@ -34,15 +34,30 @@ pub fn parse_case(file: &str, src: &str) -> Result<Case> {
 /// Read, parse and validate a case file.
 pub fn load_case(path: &std::path::Path) -> Result<Case> {
     // A case file that cannot be read is a usage error (exit 2), not a runtime failure.
-    let src = std::fs::read_to_string(path).map_err(|e| {
+    let file = path.display().to_string();
+    let bytes = std::fs::read(path).map_err(|e| {
         Error::in_file(
-            &path.display().to_string(),
+            &file,
             "(file)",
             InputKind::Unreadable,
             format!("cannot read the case file: {e}"),
         )
     })?;
-    parse_case(&path.display().to_string(), &src)
+    let src = match String::from_utf8(bytes) {
+        Ok(s) => s,
+        Err(e) => {
+            // Locate the first byte that is not UTF-8 by the valid text before it.
+            let good = e.utf8_error().valid_up_to();
+            let text = String::from_utf8_lossy(&e.as_bytes()[..good]).into_owned();
+            return Err(Error::input(
+                Location::from_offset(&file, &text, good),
+                "(file)",
+                InputKind::Syntax,
+                "not UTF-8 text here; allowed: a UTF-8 TOML file",
+            ));
+        }
+    };
+    parse_case(&file, &src)
 }
 
 /// A TOML syntax or type error, located, with the key it concerns: the first `quoted` name in the

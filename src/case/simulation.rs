@@ -121,7 +121,18 @@ pub fn probes(
     wall: &Wall,
     sim: &Simulation,
 ) -> Result<Vec<Probe>> {
+    /// Most probes: each is a column of probes.csv and a line of the probe chart.
+    const MAX_PROBES: usize = 1000;
+    if raw.len() > MAX_PROBES {
+        return Err(c.err(
+            raw[MAX_PROBES].span(),
+            &format!("probe[{MAX_PROBES}]"),
+            InputKind::OutOfRange,
+            format!("{} probes; allowed: at most {MAX_PROBES}", raw.len()),
+        ));
+    }
     let mut probes: Vec<Probe> = Vec::new();
+    let mut names = std::collections::HashSet::new();
     let x_min = -(wall.thickness_m + 0.5 * building.b_prime_m);
     for (k, p) in raw.iter().enumerate() {
         let r = p.get_ref();
@@ -140,7 +151,7 @@ pub fn probes(
             "m",
         )?;
         let name = r.name.get_ref().trim().to_string();
-        if name.is_empty() || name.contains(',') || probes.iter().any(|q| q.name == name) {
+        if name.is_empty() || name.contains(',') || !names.insert(name.clone()) {
             return Err(c.err(
                 r.name.span(),
                 &format!("probe[{k}].name"),
