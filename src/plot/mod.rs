@@ -180,27 +180,44 @@ fn draw_isotherms<DB: DrawingBackend>(
     Ok(())
 }
 
-/// Outlines of the construction parts (insulation in magenta).
+/// Outlines of the construction parts by kind (concrete dark grey, fill brown, insulation
+/// magenta), with a legend entry for each kind in view.
 fn draw_outlines<DB: DrawingBackend>(
     chart: &mut Section2d<DB>,
     parts: &[PartOutline],
     v: View,
 ) -> Result<()> {
-    for p in parts {
-        let colour = if p.kind == "insulation" {
-            RGBColor(220, 0, 140)
-        } else {
-            RGBColor(40, 40, 40)
-        };
-        let r = [
-            (p.x0.max(v.x0), p.z0.max(v.z0)),
-            (p.x1.min(v.x1), p.z1.min(v.z1)),
-        ];
-        if r[0].0 < r[1].0 && r[0].1 < r[1].1 {
-            chart
-                .draw_series(std::iter::once(Rectangle::new(r, colour.stroke_width(2))))
-                .map_err(out_err)?;
+    let kinds = [
+        ("concrete", RGBColor(40, 40, 40), "concrete"),
+        ("fill", RGBColor(130, 90, 40), "fill and backfill"),
+        ("insulation", RGBColor(220, 0, 140), "insulation"),
+    ];
+    for (kind, colour, label) in kinds {
+        let rects: Vec<[(f64, f64); 2]> = parts
+            .iter()
+            .filter(|p| p.kind == kind)
+            .map(|p| {
+                [
+                    (p.x0.max(v.x0), p.z0.max(v.z0)),
+                    (p.x1.min(v.x1), p.z1.min(v.z1)),
+                ]
+            })
+            .filter(|r| r[0].0 < r[1].0 && r[0].1 < r[1].1)
+            .collect();
+        if rects.is_empty() {
+            continue;
         }
+        chart
+            .draw_series(
+                rects
+                    .into_iter()
+                    .map(|r| Rectangle::new(r, colour.stroke_width(2))),
+            )
+            .map_err(out_err)?
+            .label(label)
+            .legend(move |(x, y)| {
+                Rectangle::new([(x, y - 5), (x + 18, y + 5)], colour.stroke_width(2))
+            });
     }
     Ok(())
 }
@@ -333,16 +350,39 @@ fn draw_field<DB: DrawingBackend>(
         )))
         .map_err(out_err)?;
     let frost = isolines(&xs, &zs, &f.frost, f.frost_line_c);
+    let mut labelled = false;
     for pts in frost.iter().flat_map(|l| runs_inside(l, &inside)) {
         if pts.len() >= 2 {
-            chart
+            let s = chart
                 .draw_series(std::iter::once(PathElement::new(
                     pts,
                     BLACK.stroke_width(4),
                 )))
                 .map_err(out_err)?;
+            if !labelled {
+                labelled = true;
+                s.label(format!("frost line ({:.2} °C)", f.frost_line_c))
+                    .legend(|(x, y)| {
+                        PathElement::new(vec![(x, y), (x + 18, y)], BLACK.stroke_width(4))
+                    });
+            }
         }
     }
+    // The legend in the air above ground (top right) when the view shows enough of it, else at
+    // the bottom right, in the deep ground's even field.
+    let air = (-v.z0).max(0.0) / (v.z1 - v.z0);
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(RGBColor(120, 120, 120))
+        .label_font(("sans-serif", 12))
+        .position(if air >= 0.15 {
+            SeriesLabelPosition::UpperRight
+        } else {
+            SeriesLabelPosition::LowerRight
+        })
+        .draw()
+        .map_err(out_err)?;
     let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
     draw_colour_bar(&right, (tmin, tmax), f.frost_line_c)?;
     root.present().map_err(out_err)?;
