@@ -273,6 +273,8 @@ pub(crate) struct FieldView<'a> {
     parts: &'a [PartOutline],
     frost_line_c: f64,
     x_desc: &'a str,
+    /// Depths of the soil-layer boundaries, m (drawn outside the building).
+    strata_z: Vec<f64>,
 }
 
 impl<'a> FieldView<'a> {
@@ -286,8 +288,22 @@ impl<'a> FieldView<'a> {
             parts: &d.parts,
             frost_line_c: d.frost_line_c,
             x_desc: "x (m), 0 at the wall's exterior face",
+            strata_z: strata_boundaries(d),
         }
     }
+}
+
+/// Depths where the material changes down the far column below ground (the soil strata).
+fn strata_boundaries(d: &PlotData) -> Vec<f64> {
+    let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
+    let m = |j: usize| d.section.cell_materials.get(j * nx + nx - 1).copied();
+    (0..nz.saturating_sub(1))
+        .filter(|&j| {
+            d.ze[j] >= 0.0
+                && matches!((m(j), m(j + 1)), (Some(a), Some(b)) if a >= 0 && b >= 0 && a != b)
+        })
+        .map(|j| d.ze[j + 1])
+        .collect()
 }
 
 /// Draw the field `f` in view `v`.
@@ -342,6 +358,27 @@ fn draw_field<DB: DrawingBackend>(
     let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
     draw_isotherms(&mut chart, (&xs, &zs, field), v, (lo, hi, interval))?;
     draw_outlines(&mut chart, f.parts, v)?;
+    let brown = RGBColor(110, 70, 30);
+    for (k, &z) in f
+        .strata_z
+        .iter()
+        .filter(|&&z| z > v.z0 && z < v.z1)
+        .enumerate()
+    {
+        let s = chart
+            .draw_series(DashedLineSeries::new(
+                vec![(0.0f64.max(v.x0), z), (v.x1, z)],
+                6,
+                4,
+                brown.stroke_width(1),
+            ))
+            .map_err(out_err)?;
+        if k == 0 {
+            s.label("soil-layer boundary").legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 18, y)], brown.stroke_width(1))
+            });
+        }
+    }
     // Ground line outside, and the frost line.
     chart
         .draw_series(std::iter::once(PathElement::new(

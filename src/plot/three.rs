@@ -313,6 +313,7 @@ fn slice_view(s: &Slice, frost_line_c: f64) -> FieldView<'_> {
         parts: &s.parts,
         frost_line_c,
         x_desc: &s.axis,
+        strata_z: Vec::new(),
     }
 }
 
