@@ -385,8 +385,7 @@ fn run_prints_json_for_pipes() {
         String::from_utf8_lossy(&o.stderr)
     );
     let printed: serde_json::Value = serde_json::from_slice(&o.stdout).expect("stdout is JSON");
-    let file: serde_json::Value =
-        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    let file: serde_json::Value = crate::common::read_json(&out.join("summary.json"));
     assert_eq!(printed, file);
     assert!(printed["annual_heat_loss_kwh"].is_number());
 }
@@ -431,8 +430,7 @@ fn rerun_removes_its_own_stale_files_only() {
         !report.contains("fig-winters"),
         "the report embeds a stale chart"
     );
-    let m: serde_json::Value =
-        serde_json::from_slice(&std::fs::read(out.join("manifest.json")).unwrap()).unwrap();
+    let m: serde_json::Value = crate::common::read_json(&out.join("manifest.json"));
     let names: Vec<&str> = m["files"]
         .as_array()
         .unwrap()
@@ -496,8 +494,7 @@ fn plot_another_day_into_its_own_directory() {
     }
     let field = std::fs::read_to_string(sub.join("field_060.csv")).unwrap();
     assert_eq!(field.lines().next(), Some("x_m,z_m,temperature_c"));
-    let summary: serde_json::Value =
-        serde_json::from_slice(&std::fs::read(out.join("summary.json")).unwrap()).unwrap();
+    let summary: serde_json::Value = crate::common::read_json(&out.join("summary.json"));
     assert_eq!(
         field.lines().count() as u64 - 1,
         summary["cells"].as_u64().unwrap()
@@ -548,9 +545,7 @@ fn runaway_b_prime_and_grid_are_refused_quickly() {
 #[test]
 fn planted_links_are_not_followed() {
     let out = scratch("planted-link");
-    std::fs::create_dir_all(&out).unwrap();
     let outside = scratch("planted-target").join("outside.txt");
-    std::fs::create_dir_all(outside.parent().unwrap()).unwrap();
     std::fs::write(&outside, "untouched").unwrap();
     for name in [".summary.json.tmp", ".daily.csv.tmp", ".report.html.tmp"] {
         std::os::unix::fs::symlink(&outside, out.join(name)).unwrap();
@@ -593,7 +588,6 @@ fn planted_links_are_not_followed() {
 #[test]
 fn unwritable_output_is_found_before_solving() {
     let dir = scratch("unwritable");
-    std::fs::create_dir_all(&dir).unwrap();
     let file = dir.join("plain-file");
     std::fs::write(&file, "x").unwrap();
     let out = file.join("sub");
@@ -642,7 +636,6 @@ fn probe_count_is_bounded() {
 #[test]
 fn non_utf8_case_is_located() {
     let dir = scratch("non-utf8");
-    std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join("case.toml");
     std::fs::write(
         &path,

@@ -430,7 +430,6 @@ fn n_factor_and_snow_reduce_frost() {
 #[test]
 fn series_bounds_are_checked_first() {
     let dir = scratch("series-bounds");
-    std::fs::create_dir_all(&dir).unwrap();
     let f = dir.join("span.csv");
     std::fs::write(&f, "date,temperature_c\n2030-01-01,1.0\n99999-01-01,2.0\n").unwrap();
     let o = crate::cli::bin().arg("climate").arg(&f).output().unwrap();

@@ -365,7 +365,8 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
         times: std::sync::Mutex::new(Vec::new()),
         progress,
     };
-    let (bm, bf, bq) = runner.run(&baseline(case, s)?)?;
+    let base_case = baseline(case, s)?;
+    let (bm, bf, bq) = runner.run(&base_case)?;
     let baseline = Design {
         values: Vec::new(),
         frost_margin_m: bm,
@@ -417,7 +418,7 @@ pub fn size(case: &Case, progress: &(dyn Fn(usize) + Sync)) -> Result<SizingResu
         // insulation when that already passes in 2D.
         let base = match (&out.chosen_run, &out.no_insulation_needed) {
             (Some((c, _)), _) => Some(c.source.clone()),
-            (None, Some(_)) => Some(self::baseline(case, s)?.source),
+            (None, Some(_)) => Some(base_case.source.clone()),
             (None, None) => None,
         };
         if let Some(base) = base {

@@ -85,15 +85,10 @@ pub struct Summary3 {
     pub years: Vec<Year>,
 }
 
-/// The 3D headline (see [`Run3Result::headline`]).
-pub fn headline3(case: &Case, r: &Run3Result) -> Headline {
-    r.headline(case)
-}
-
 impl Summary3 {
     /// The block of a 3D run.
     pub fn new(case: &Case, r: &Run3Result) -> Self {
-        let h = headline3(case, r);
+        let h = r.headline(case);
         let two = headline(case, &r.two);
         let y = r.year();
         let st = r.stats;

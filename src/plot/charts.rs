@@ -27,7 +27,7 @@ fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTranslate>(
 }
 
 /// The dashed footing-base reference line from x0 to x1 at depth `base` (m), with its legend entry.
-fn footing_base_line<'a, DB: DrawingBackend + 'a>(
+pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
     chart: &mut ChartContext<
         'a,
         DB,

@@ -609,12 +609,14 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         ("heat_loss", charts::SIZE),
         ("probes", charts::SIZE),
     ];
+    // The day's field (and its frost scalar) once for both views and both image formats.
+    let fv = FieldView::of_day(&d, day);
     render_both!(
         out,
         "soil_temperature",
         field_size(full),
         files,
-        draw_field(&FieldView::of_day(&d, day), full, 2.0, &title, None)
+        draw_field(&fv, full, 2.0, &title, None)
     );
     let zoom = match opts.zoom {
         Some([x0, x1, z0, z1]) => View { x0, x1, z0, z1 },
@@ -638,7 +640,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         "soil_temperature_zoom",
         field_size(zoom),
         files,
-        draw_field(&FieldView::of_day(&d, day), zoom, 1.0, &ztitle, None)
+        draw_field(&fv, zoom, 1.0, &ztitle, None)
     );
     // The frost line drawn on the field, saved as data.
     files.push(crate::files::write_atomic(

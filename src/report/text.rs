@@ -375,7 +375,10 @@ pub fn check_text(case: &Case) -> Result<String> {
         mesh.grid.nz(),
         mesh.solid_cells()
     );
-    if let Some(p) = case.plan {
+    // An oversized 3D grid is named and refused without building its mesh.
+    if let Some(Err(e)) = case.plan.map(|_| crate::run::three::check_size(case)) {
+        s += &format!("  3D refused: {e}\n");
+    } else if let Some(p) = case.plan {
         let q = crate::geometry3d::Quarter::of(case);
         let m3 = q.mesh(case);
         let g = &m3.grid;
@@ -391,9 +394,6 @@ pub fn check_text(case: &Case) -> Result<String> {
             case.corners.len(),
             if case.sizing.as_ref().is_some_and(|s| s.corner.is_some()) { "; the sizing checks the corners in 3D" } else { "" }
         );
-        if let Err(e) = crate::run::three::check_size(case) {
-            s += &format!("  3D refused: {e}\n");
-        }
     }
     let sim = &case.simulation;
     let coarse = match sim.coarse_year_step_days {

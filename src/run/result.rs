@@ -177,7 +177,7 @@ impl RunResult {
     }
     /// The reported year.
     pub fn final_year(&self) -> &Year {
-        &self.years[self.reported]
+        self.records().final_year()
     }
     /// The year heat-loss figures come from: the normal year when a design winter was run,
     /// else the reported one.

@@ -129,12 +129,18 @@ pub fn model3(case: &Case) -> (Quarter, Mesh3, Network) {
     (q, mesh, net)
 }
 
-/// Steady indoor heat flow of the whole building per kelvin, W/K.
-fn coupling(case: &Case, net: &Network, params: SolverParams) -> Result<f64> {
+/// Zone temperatures of a coupling: indoor 1 °C, outdoor and every other zone 0 °C.
+fn unit_zone_temps(case: &Case) -> Vec<f64> {
     let mut zt = forcing::zone_temps(case, 1.0, 0.0);
     for z in zt.iter_mut().skip(2) {
         *z = 0.0;
     }
+    zt
+}
+
+/// Steady indoor heat flow of the whole building per kelvin, W/K.
+fn coupling(case: &Case, net: &Network, params: SolverParams) -> Result<f64> {
+    let zt = unit_zone_temps(case);
     let mut solver = Solver::new(net, params)?;
     Ok(4.0 * solver.steady(&zt, None)?.from_zone[INDOOR])
 }
@@ -145,10 +151,7 @@ fn coupling(case: &Case, net: &Network, params: SolverParams) -> Result<f64> {
 /// long building the two agree.
 pub fn mid_wall_coupling(case: &Case, params: SolverParams) -> Result<f64> {
     let (_, mesh, net) = model3(case);
-    let mut zt = forcing::zone_temps(case, 1.0, 0.0);
-    for z in zt.iter_mut().skip(2) {
-        *z = 0.0;
-    }
+    let zt = unit_zone_temps(case);
     let st = Solver::new(&net, params)?.steady(&zt, None)?;
     let g = &mesh.grid;
     let q: f64 = net

@@ -203,7 +203,6 @@ impl Network {
     /// neighbours (areas Δy Δz, Δx Δz, Δx Δy), a boundary face towards every zone cell (surface
     /// resistance by the face's orientation) and towards the bottom zone.
     pub fn new3(mesh: &crate::mesh3::Mesh3) -> Self {
-        use crate::mesh3::Grid3;
         let g = &mesh.grid;
         let (nx, ny, nz) = (g.nx(), g.ny(), g.nz());
         let mut unk_of = vec![usize::MAX; g.len()];
@@ -331,7 +330,6 @@ impl Network {
                 }
             }
         }
-        let _ = Grid3::centre;
         let n = cell_of.len();
         let (col_ptr, row_idx, diag_slot, face_slot) = lower_pattern(n, &faces);
         Network {
