@@ -243,17 +243,16 @@ impl<'a> Quarter3<'a> {
         Some(z.max(z_from))
     }
 
-    /// The frost measures of one station's columns.
-    fn station(&self, c: &Columns) -> (f64, f64, f64) {
-        let deepest = |cols: &[usize], from: f64| {
-            cols.iter()
-                .filter_map(|&col| self.depth(col, from))
-                .fold(0.0, f64::max)
-        };
+    /// The frost measures of one station's columns; `plan` holds every column's frost depth from
+    /// the surface (0: none), so only the footing's columns are measured again, from the base.
+    fn station(&self, c: &Columns, plan: &[f64]) -> (f64, f64, f64) {
         (
-            self.depth(c.face, 0.0).unwrap_or(0.0),
-            deepest(&c.footing, self.zone.base_z),
-            deepest(&c.beside, 0.0),
+            plan[c.face],
+            c.footing
+                .iter()
+                .filter_map(|&col| self.depth(col, self.zone.base_z))
+                .fold(0.0, f64::max),
+            c.beside.iter().map(|&col| plan[col]).fold(0.0, f64::max),
         )
     }
 
@@ -349,9 +348,7 @@ impl Observer for Quarter3<'_> {
         let mut worst = (f64::INFINITY, 0.0, 0.0, 0.0);
         let mut corner_dist = f64::INFINITY;
         let zone = self.zone;
-        let mut pts = Vec::new();
-        self.frost_points(|x, y, z| pts.push((x, y, z)));
-        for &(x, y, z) in &pts {
+        self.frost_points(|x, y, z| {
             let s = self.q.s(x, y);
             let m = zone.signed_distance(s, z);
             corner_dist =
@@ -366,19 +363,21 @@ impl Observer for Quarter3<'_> {
                 // Points under the building's interior beyond the stations' lines.
                 Bin::East(_) | Bin::North(_) => {}
             }
-        }
+        });
         let no_frost = zone.base_z;
         let fix = |m: f64| if m.is_finite() { m } else { no_frost };
-        let east: Vec<_> = self.east.iter().map(|c| self.station(c)).collect();
-        let north: Vec<_> = self.north.iter().map(|c| self.station(c)).collect();
-        let corner = self.station(&self.corner);
-        let open = self.depth(self.open, 0.0).unwrap_or(0.0);
+        // Every plan column's depth once (row-major j·nx + i, the columns' ids).
         let mut plan = Array2::zeros((g.ny(), g.nx()));
         for j in 0..g.ny() {
             for i in 0..g.nx() {
                 plan[[j, i]] = self.depth(j * g.nx() + i, 0.0).unwrap_or(0.0);
             }
         }
+        let cols: Vec<f64> = plan.iter().copied().collect();
+        let east: Vec<_> = self.east.iter().map(|c| self.station(c, &cols)).collect();
+        let north: Vec<_> = self.north.iter().map(|c| self.station(c, &cols)).collect();
+        let corner = self.station(&self.corner, &cols);
+        let open = cols[self.open];
         let today = Today {
             east: east
                 .iter()
