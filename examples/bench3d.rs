@@ -5,7 +5,10 @@
 //!   of steps a winter is made of: time per step, Newton iterations and CG iterations per solve;
 //! - `run`: a whole 3D design run (spin-up and reported year), as `frostline run --model 3d`.
 //!
-//! Add `coarse` or `fine` for another mesh. Run with
+//! Add `coarse` or `fine` for another mesh, `amg` for the multigrid-preconditioned solver instead
+//! of the incomplete factor (environment AMG_THETA, AMG_DOM, AMG_PASSES set its strength
+//! threshold, dominance and aggregation passes; PCG_TOL the incomplete-factor solver's relative
+//! tolerance). Run with
 //! `cargo run --release --example bench3d -- days 20 coarse` and take medians of repeated runs
 //! (the machine is noisy).
 use frostline::case::{load_case, Fineness};
@@ -42,11 +45,31 @@ fn main() {
         .and_then(|k| args.get(k + 1))
         .and_then(|v| v.parse().ok())
         .unwrap_or(PcgParams::default().omega);
-    let params = SolverParams {
-        linear: Linear::Pcg(PcgParams {
+    let linear = if args.iter().any(|a| a == "amg") {
+        let env = |k: &str, d: f64| {
+            std::env::var(k)
+                .ok()
+                .and_then(|v| v.parse().ok())
+                .unwrap_or(d)
+        };
+        Linear::Multigrid(frostline::solver::amg::AmgParams {
+            strength: env("AMG_THETA", 0.25),
+            dominance: env("AMG_DOM", 5.0),
+            passes: env("AMG_PASSES", 1.0) as usize,
+            ..Default::default()
+        })
+    } else {
+        Linear::Pcg(PcgParams {
             omega,
+            rel_tol: std::env::var("PCG_TOL")
+                .ok()
+                .and_then(|v| v.parse().ok())
+                .unwrap_or(1e-8),
             ..PcgParams::default()
-        }),
+        })
+    };
+    let params = SolverParams {
+        linear,
         ..Default::default()
     };
     match args.get(1).map(String::as_str) {

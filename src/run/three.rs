@@ -101,7 +101,7 @@ impl Run3Result {
 /// them.
 fn params3(opts: &RunOptions) -> SolverParams {
     let mut p = opts.solver;
-    if !matches!(p.linear, Linear::Pcg(_)) {
+    if !matches!(p.linear, Linear::Pcg(_) | Linear::Multigrid(_)) {
         p.linear = Linear::Pcg(PcgParams::default());
     }
     p

@@ -24,6 +24,7 @@
 //!
 //! # Steady state
 //! K(T) T = b with conductivities updated by Picard iteration until max |ΔT| < `tol_k`.
+pub mod amg;
 pub mod linsys;
 pub mod network;
 pub mod pcg;
@@ -65,12 +66,15 @@ pub enum Linear {
     Cholesky,
     /// Conjugate gradients with a modified incomplete-Cholesky preconditioner.
     Pcg(pcg::PcgParams),
+    /// Flexible conjugate gradients with an aggregation multigrid preconditioner.
+    Multigrid(amg::AmgParams),
 }
 
 /// A linear solver of either kind.
 enum Lin {
     Direct(Box<SpdSolver>),
     Iterative(Box<pcg::PcgSolver>),
+    Multigrid(Box<amg::AmgSolver>),
 }
 
 impl Lin {
@@ -78,12 +82,14 @@ impl Lin {
         match self {
             Lin::Direct(s) => s.solve(vals, rhs),
             Lin::Iterative(s) => s.solve(vals, rhs),
+            Lin::Multigrid(s) => s.solve(vals, rhs),
         }
     }
     fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
         match self {
             Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
             Lin::Iterative(s) => s.solve(vals, rhs),
+            Lin::Multigrid(s) => s.solve(vals, rhs),
         }
     }
 }
@@ -203,6 +209,12 @@ impl<'a> Solver<'a> {
                 net.row_idx.clone(),
                 p,
             ))),
+            Linear::Multigrid(p) => Lin::Multigrid(Box::new(amg::AmgSolver::new(
+                net.n,
+                &net.col_ptr,
+                &net.row_idx,
+                p,
+            ))),
         };
         Ok(Solver {
             lin,
@@ -250,6 +262,12 @@ impl<'a> Solver<'a> {
                 s.solves = l.solves;
                 s.near_factor_solves = l.near_solves;
                 s.cg_iterations = l.cg_iterations;
+            }
+            Lin::Multigrid(l) => {
+                s.factorizations = l.setups;
+                s.solves = l.solves;
+                s.cg_iterations = l.iterations;
+                s.max_cg_iterations = l.max_iterations;
             }
             Lin::Iterative(l) => {
                 s.factorizations = l.setups;
