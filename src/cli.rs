@@ -454,7 +454,7 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         }
         bar.set_position((p.year * 365 + p.day) as u64);
     };
-    files::check_writable(&a.out)?;
+    let _lock = files::check_writable(&a.out)?;
     let three = case.simulation.model == ModelKind::ThreeD;
     if three {
         bar.set_message("2D section, then 3D");
@@ -519,7 +519,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             .num_threads(j.max(1))
             .build_global();
     }
-    files::check_writable(&a.out)?;
+    let _lock = files::check_writable(&a.out)?;
     let bar = bar(a.quiet, None);
     bar.set_message("model runs");
     let cb = |n: usize| bar.set_message(format!("{n} model runs"));
@@ -661,6 +661,9 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
         out: a.out.clone(),
     };
     let out = a.out.as_deref().unwrap_or(&a.dir);
+    let _lock = files::check_writable(out)?;
+    // The run directory's files are checked before anything is drawn.
+    files::read_case_copy(&a.dir, &files::read_summary(&a.dir)?)?;
     let mut written = frostline::plot::render_dir(&a.dir, &opts)?;
     written.push(report::html::write_report_to(&a.dir, out)?);
     written.push(files::write_manifest(out, &written, true)?);

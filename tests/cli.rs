@@ -359,31 +359,7 @@ fn coarse_year_step_out_of_range() {
 #[test]
 fn run_prints_json_for_pipes() {
     let out = scratch("format-json");
-    let case =
-        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
-    let o = bin()
-        .args([
-            "run".as_ref(),
-            case.as_os_str(),
-            "--out".as_ref(),
-            out.as_os_str(),
-        ])
-        .args([
-            "--mesh",
-            "coarse",
-            "--no-plots",
-            "--quiet",
-            "--format",
-            "json",
-        ])
-        .output()
-        .unwrap();
-    assert_eq!(
-        o.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    let o = quick_demo_run(&out, &["--format", "json"]);
     let printed: serde_json::Value = serde_json::from_slice(&o.stdout).expect("stdout is JSON");
     let file: serde_json::Value = crate::common::read_json(&out.join("summary.json"));
     assert_eq!(printed, file);
@@ -499,6 +475,99 @@ fn plot_another_day_into_its_own_directory() {
         field.lines().count() as u64 - 1,
         summary["cells"].as_u64().unwrap()
     );
+    damaged_run_directories_are_refused(&out);
+    full_disk_names_the_file(&out);
+}
+
+/// Copy the files of run directory `from` into a fresh scratch directory.
+fn copy_run(from: &std::path::Path, name: &str) -> PathBuf {
+    let to = scratch(name);
+    for e in std::fs::read_dir(from).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_file() {
+            std::fs::copy(&p, to.join(p.file_name().unwrap())).unwrap();
+        }
+    }
+    to
+}
+
+/// `plot` refuses a damaged run directory with exit 2 and the file's name, before drawing
+/// anything: a truncated case copy (its hash differs from summary.json's), days out of order in
+/// daily.csv, months out of order in monthly.csv.
+fn damaged_run_directories_are_refused(run: &std::path::Path) {
+    type Damage = fn(&str) -> String;
+    let cases: [(&str, &str, Damage); 3] = [
+        ("case.toml", "SHA-256", |t| t[..t.len() / 2].to_string()),
+        ("daily.csv", "day_of_year", |t| {
+            let mut lines: Vec<&str> = t.lines().collect();
+            lines.swap(5, 6);
+            lines.join("\n")
+        }),
+        ("monthly.csv", "month", |t| {
+            let mut lines: Vec<&str> = t.lines().collect();
+            lines.remove(3);
+            lines.join("\n")
+        }),
+    ];
+    for (file, word, damage) in cases {
+        let dir = copy_run(run, &format!("damaged-{file}"));
+        let text = std::fs::read_to_string(dir.join(file)).unwrap();
+        std::fs::write(dir.join(file), damage(&text)).unwrap();
+        let before = std::fs::read(dir.join("frost_depth.png")).unwrap();
+        let o = bin().arg("plot").arg(&dir).output().unwrap();
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(2), "{file}: {err}");
+        assert!(err.contains(file) && err.contains(word), "{file}: {err}");
+        if file == "case.toml" {
+            // Refused before drawing: the run's figure is untouched.
+            assert_eq!(std::fs::read(dir.join("frost_depth.png")).unwrap(), before);
+        }
+    }
+}
+
+/// A full disk during `plot` (a 300 kB tmpfs, which needs root; skipped with a note where it
+/// cannot be mounted) is an I/O error (exit 1) naming the file that did not fit, and leaves no
+/// temporary or half-written image behind.
+fn full_disk_names_the_file(run: &std::path::Path) {
+    let mnt = scratch("full-disk");
+    let mounted = Command::new("mount")
+        .args(["-t", "tmpfs", "-o", "size=300k", "tmpfs"])
+        .arg(&mnt)
+        .status()
+        .is_ok_and(|s| s.success());
+    if !mounted {
+        eprintln!("full-disk check skipped: cannot mount a tmpfs here");
+        return;
+    }
+    let out = mnt.join("plots");
+    let o = bin()
+        .arg("plot")
+        .arg(run)
+        .arg("--out")
+        .arg(&out)
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr).to_string();
+    let names: Vec<String> = std::fs::read_dir(&out)
+        .map(|d| {
+            d.filter_map(|e| e.ok())
+                .map(|e| e.file_name().to_string_lossy().to_string())
+                .collect()
+        })
+        .unwrap_or_default();
+    // Every PNG that has its final name is whole (ends with the IEND chunk, PNG spec §11.2.5).
+    let whole = names
+        .iter()
+        .filter(|n| n.ends_with(".png"))
+        .all(|n| std::fs::read(out.join(n)).is_ok_and(|b| b.ends_with(&[0xAE, 0x42, 0x60, 0x82])));
+    let _ = Command::new("umount").arg(&mnt).status();
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains(&out.display().to_string()) && err.contains("No space left"),
+        "{err}"
+    );
+    assert!(!names.iter().any(|n| n.contains(".tmp")), "{names:?}");
+    assert!(whole, "{names:?}");
 }
 
 /// Shell completions and the manual page come from the command-line definition: every shell's
@@ -608,6 +677,54 @@ fn unwritable_output_is_found_before_solving() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("plain-file"));
     // The solve alone takes over a second on any mesh of this case.
     assert!(t0.elapsed().as_secs_f64() < 1.0, "{:?}", t0.elapsed());
+}
+
+/// A second process writing into a directory another one is writing into fails at once (exit 1,
+/// naming the directory) and writes nothing; the lock is the operating system's advisory lock on
+/// `.frostline.lock`, here held by the test itself.
+#[test]
+fn a_directory_in_use_is_refused_at_once() {
+    let out = scratch("locked");
+    let lock = std::fs::File::create(out.join(".frostline.lock")).unwrap();
+    lock.lock().unwrap();
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let t0 = std::time::Instant::now();
+    let o = bin()
+        .args(["run".as_ref(), case.as_os_str(), "--out".as_ref()])
+        .arg(&out)
+        .arg("--quiet")
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(err.contains("another frostline process") && err.contains(&out.display().to_string()));
+    assert!(t0.elapsed().as_secs_f64() < 1.0, "{:?}", t0.elapsed());
+    assert_eq!(std::fs::read_dir(&out).unwrap().count(), 1);
+    drop(lock);
+    // Released (as when the other process ends, however it ends): the run proceeds.
+    quick_demo_run(&out, &[]);
+}
+
+/// The Kettle Hollow demo on the coarse mesh without plots into `out`, with `extra` flags; it
+/// must succeed.
+fn quick_demo_run(out: &std::path::Path, extra: &[&str]) -> std::process::Output {
+    let case =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml");
+    let o = bin()
+        .args(["run".as_ref(), case.as_os_str(), "--out".as_ref()])
+        .arg(out)
+        .args(["--quiet", "--mesh", "coarse", "--no-plots"])
+        .args(extra)
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    o
 }
 
 /// The probe count is bounded (1000) and checked in linear time (hardening finding 16: 40,000

@@ -35,9 +35,15 @@ pub fn temp_path(dir: &Path, name: &str) -> PathBuf {
     }
 }
 
-/// Create `dir` if missing and check that a file can be created in it, before a long solve
-/// (a read-only or full directory is found in milliseconds, not after the run).
-pub fn check_writable(dir: &Path) -> Result<()> {
+/// Name of the lock file a writing command holds in its output directory.
+pub const LOCK_FILE: &str = ".frostline.lock";
+
+/// Create `dir` if missing, take its lock and check that a file can be created in it, before a
+/// long solve (a read-only or full directory, or another frostline process writing into it, is
+/// found in milliseconds, not after the run). The lock (an advisory `flock` on
+/// `dir/.frostline.lock`) is held while the returned file is open; the system releases it when
+/// the process ends, however it ends, so a killed run leaves no stale lock.
+pub fn check_writable(dir: &Path) -> Result<std::fs::File> {
     create_dir(dir)?;
     let probe = temp_path(dir, "write-check");
     std::fs::OpenOptions::new()
@@ -46,7 +52,31 @@ pub fn check_writable(dir: &Path) -> Result<()> {
         .open(&probe)
         .map_err(|e| Error::io(dir, e))?;
     let _ = std::fs::remove_file(&probe);
-    Ok(())
+    let path = dir.join(LOCK_FILE);
+    if std::fs::symlink_metadata(&path).is_ok_and(|m| !m.is_file()) {
+        return Err(Error::io(
+            &path,
+            std::io::Error::other("not a regular file (a link?); remove it"),
+        ));
+    }
+    let lock = std::fs::OpenOptions::new()
+        .write(true)
+        .create(true)
+        .truncate(false)
+        .open(&path)
+        .map_err(|e| Error::io(&path, e))?;
+    match lock.try_lock() {
+        Ok(()) => Ok(lock),
+        Err(std::fs::TryLockError::WouldBlock) => Err(Error::io(
+            dir,
+            std::io::Error::new(
+                std::io::ErrorKind::WouldBlock,
+                "another frostline process is writing into this directory; wait for it to \
+                 finish or choose another output directory",
+            ),
+        )),
+        Err(std::fs::TryLockError::Error(e)) => Err(Error::io(&path, e)),
+    }
 }
 
 /// Move the finished temporary `tmp` to `dir/name` (removing `tmp` if that fails).
@@ -207,6 +237,21 @@ pub fn bad_file(dir: &Path, name: &str, what: impl std::fmt::Display) -> Error {
         InputKind::NotAResult,
         format!("not a frostline result file: {what}"),
     )
+}
+
+/// The copy of the case in `dir` (`case.toml`), checked against the hash in its summary: the
+/// report shows the case as run, so an edited or truncated copy is refused.
+pub fn read_case_copy(dir: &Path, s: &Summary) -> Result<String> {
+    let text = read_text(dir, "case.toml")?;
+    match &s.provenance {
+        Some(p) if summary::sha256_hex(text.as_bytes()) != p.case_sha256 => Err(bad_file(
+            dir,
+            "case.toml",
+            "its SHA-256 differs from the case hash in summary.json (edited or truncated since \
+             the run)",
+        )),
+        _ => Ok(text),
+    }
 }
 
 /// `summary.json` of `dir`.

@@ -27,7 +27,8 @@ pub struct Provenance {
     pub climate_sha256: Option<String>,
 }
 
-fn sha256_hex(bytes: &[u8]) -> String {
+/// SHA-256 of `bytes` as lower-case hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
     use sha2::Digest;
     sha2::Sha256::digest(bytes)
         .iter()

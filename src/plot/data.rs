@@ -52,7 +52,33 @@ impl PlotData {
                 format!("{} days; section.json says {}", days.len(), sec.days),
             ));
         }
+        // Days of the year follow each other (1 after 365 or 366).
+        for (k, w) in daily.windows(2).enumerate() {
+            let (a, b) = (w[0].day_of_year, w[1].day_of_year);
+            if !(1..=366).contains(&a) || !(b == a + 1 || (b == 1 && a >= 365)) {
+                return Err(files::bad_file(
+                    dir,
+                    "daily.csv",
+                    format!(
+                        "data row {}: day_of_year {b} after {a}; allowed: the next day of the \
+                         year (1 … 366)",
+                        k + 2
+                    ),
+                ));
+            }
+        }
         let monthly: Vec<tables::MonthlyRow> = tables::read_rows(dir, "monthly.csv")?;
+        if let Some(k) = (0..monthly.len()).find(|&k| monthly[k].month != k + 1) {
+            return Err(files::bad_file(
+                dir,
+                "monthly.csv",
+                format!(
+                    "data row {}: month {}; allowed: the months 1 … 12 in order",
+                    k + 1,
+                    monthly[k].month
+                ),
+            ));
+        }
         if monthly.len() != 12 {
             return Err(files::bad_file(
                 dir,

@@ -41,8 +41,23 @@ fn register_fonts() {
     });
 }
 
-fn out_err<E: std::fmt::Debug>(e: E) -> Error {
-    Error::Output(format!("plot: {e:?}"))
+fn out_err<E: std::fmt::Display>(e: E) -> Error {
+    Error::Output(format!("plot: {e}"))
+}
+
+/// An RGB image buffer encoded as PNG.
+pub(crate) fn png_bytes(rgb: &[u8], (w, h): (u32, u32)) -> Result<Vec<u8>> {
+    let mut out = Vec::new();
+    {
+        let mut enc = png::Encoder::new(&mut out, w, h);
+        enc.set_color(png::ColorType::Rgb);
+        enc.set_depth(png::BitDepth::Eight);
+        enc.set_compression(png::Compression::Best);
+        enc.set_adaptive_filter(png::AdaptiveFilterType::Adaptive);
+        let mut wr = enc.write_header().map_err(out_err)?;
+        wr.write_image_data(rgb).map_err(out_err)?;
+    }
+    Ok(out)
 }
 
 /// The temperature colour scale (°C → colour): blues for frozen ground below 0 °C, from pale ice
@@ -430,35 +445,23 @@ fn draw_field<DB: DrawingBackend>(
 /// PNG call's result.
 macro_rules! render_both {
     ($dir:expr, $stem:expr, $size:expr, $files:expr, $draw:ident ( $($arg:expr),* )) => {{
-        // Drawn into temporary files and renamed, so no half-written image ever has its final
-        // name.
-        let (png, svg) = (format!("{}.png", $stem), format!("{}.svg", $stem));
-        let (tpng, tsvg) = (
-            crate::files::temp_path($dir, &png),
-            crate::files::temp_path($dir, &svg),
-        );
+        // Drawn in memory and written like every other output file (an exclusive temporary
+        // and a rename), so no half-written image ever has its final name and a write error
+        // names the file.
+        let size: (u32, u32) = $size;
+        let mut rgb = vec![0u8; size.0 as usize * size.1 as usize * 3];
         let out = {
-            let root = BitMapBackend::new(&tpng, $size).into_drawing_area();
-            $draw(&root, $($arg),*)
+            let root = BitMapBackend::with_buffer(&mut rgb, size).into_drawing_area();
+            $draw(&root, $($arg),*)?
         };
-        let out = match out {
-            Ok(o) => o,
-            Err(e) => {
-                let _ = std::fs::remove_file(&tpng);
-                return Err(e);
-            }
-        };
-        let drawn = {
-            let root = SVGBackend::new(&tsvg, $size).into_drawing_area();
-            $draw(&root, $($arg),*)
-        };
-        if let Err(e) = drawn {
-            let _ = std::fs::remove_file(&tpng);
-            let _ = std::fs::remove_file(&tsvg);
-            return Err(e);
+        let mut svg = String::new();
+        {
+            let root = SVGBackend::with_string(&mut svg, size).into_drawing_area();
+            $draw(&root, $($arg),*)?;
         }
-        $files.push(crate::files::finish_temp(&tpng, $dir, &png)?);
-        $files.push(crate::files::finish_temp(&tsvg, $dir, &svg)?);
+        let png = crate::plot::png_bytes(&rgb, size)?;
+        $files.push(crate::files::write_atomic($dir, &format!("{}.png", $stem), &png)?);
+        $files.push(crate::files::write_atomic($dir, &format!("{}.svg", $stem), svg.as_bytes())?);
         out
     }};
 }
@@ -515,7 +518,10 @@ fn animate(dir: &Path, d: &PlotData, view: View) -> Result<(PathBuf, PlotEntry)>
     if drawn.is_err() {
         let _ = std::fs::remove_file(&tmp);
     }
-    let size = drawn?;
+    let size = drawn.map_err(|e| match e {
+        Error::Output(m) => Error::Output(format!("{}: {m}", dir.join(name).display())),
+        e => e,
+    })?;
     let path = crate::files::finish_temp(&tmp, dir, name)?;
     let entry = PlotEntry {
         file: name.into(),

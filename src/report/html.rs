@@ -75,7 +75,7 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
 /// Write `out/report.html` from the run's files in `dir`, embedding the plots in `out`.
 pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
     let s = files::read_summary(dir)?;
-    let case_text = files::read_text(dir, "case.toml")?;
+    let case_text = files::read_case_copy(dir, &s)?;
     let sizing = files::read_sizing(dir)?;
     let mut h = String::new();
     h.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
@@ -114,7 +114,7 @@ pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
         escape(&s.note)
     ));
     if let Some(s3) = &s.three_d {
-        h.push_str(&super::three::html(s3, out));
+        h.push_str(&super::three::html(s3, out)?);
     }
     h.push_str(&results(&s));
     if let Some(z) = &sizing {
@@ -128,7 +128,7 @@ pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
     } else {
         "Figures"
     };
-    h.push_str(&figures(out, FIGURES, ("figures", heading)));
+    h.push_str(&figures(out, FIGURES, ("figures", heading))?);
     h.push_str(&monthly(dir)?);
     h.push_str(&numerics(&s));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
@@ -316,11 +316,27 @@ fn basement_rows(s: &Summary) -> Vec<Row> {
     ]
 }
 
-/// The embedded figures that exist in `dir`.
-pub(super) fn figures(dir: &Path, list: &[(&str, &str)], (id, heading): (&str, &str)) -> String {
+/// Whether `bytes` is a whole PNG file: the signature, and the IEND chunk at the end (a
+/// truncated file lacks it). PNG specification (ISO/IEC 15948), §5.2 and §11.2.5.
+fn whole_png(bytes: &[u8]) -> bool {
+    const SIGNATURE: [u8; 8] = [137, 80, 78, 71, 13, 10, 26, 10];
+    const IEND: [u8; 12] = [0, 0, 0, 0, b'I', b'E', b'N', b'D', 0xAE, 0x42, 0x60, 0x82];
+    bytes.starts_with(&SIGNATURE) && bytes.ends_with(&IEND)
+}
+
+/// The embedded figures that exist in `dir`; a damaged one is an error naming it.
+pub(super) fn figures(
+    dir: &Path,
+    list: &[(&str, &str)],
+    (id, heading): (&str, &str),
+) -> Result<String> {
     let mut h = format!("<h2 id=\"{id}\">{heading}</h2>\n");
     for (stem, caption) in list {
-        if let Ok(bytes) = std::fs::read(dir.join(format!("{stem}.png"))) {
+        let name = format!("{stem}.png");
+        if let Ok(bytes) = std::fs::read(dir.join(&name)) {
+            if !whole_png(&bytes) {
+                return Err(files::bad_file(dir, &name, "a damaged or truncated PNG"));
+            }
             h.push_str(&format!(
                 "<figure id=\"fig-{stem}\"><img alt=\"{}\" src=\"data:image/png;base64,{}\"><figcaption>{}</figcaption></figure>\n",
                 escape(caption),
@@ -329,7 +345,7 @@ pub(super) fn figures(dir: &Path, list: &[(&str, &str)], (id, heading): (&str, &
             ));
         }
     }
-    h
+    Ok(h)
 }
 
 /// The monthly results as a table (from monthly.csv): the chart's numbers.
@@ -423,6 +439,25 @@ fn numerics(s: &Summary) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A PNG is whole with its signature and IEND trailer (PNG spec §5.2, §11.2.5); cut short
+    /// or not a PNG, it is not.
+    #[test]
+    fn whole_png_needs_signature_and_iend() {
+        let mut png = Vec::new();
+        {
+            let mut enc = png::Encoder::new(&mut png, 2, 1);
+            enc.set_color(png::ColorType::Rgb);
+            enc.write_header()
+                .unwrap()
+                .write_image_data(&[0; 6])
+                .unwrap();
+        }
+        assert!(whole_png(&png));
+        assert!(!whole_png(&png[..png.len() - 1]));
+        assert!(!whole_png(&png[1..]));
+        assert!(!whole_png(b""));
+    }
 
     #[test]
     fn base64_rfc4648_vectors() {

@@ -14,7 +14,7 @@ pub const FIGURES_3D: &[(&str, &str)] = &[
 ];
 
 /// The 3D section's HTML.
-pub fn html(s: &Summary3, dir: &Path) -> String {
+pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
     let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
     let o = |v: Option<f64>, d: usize| f(v.unwrap_or(f64::NAN), d);
     let mut t = format!(
@@ -136,6 +136,6 @@ pub fn html(s: &Summary3, dir: &Path) -> String {
         s.newton_iterations_per_step, s.cg_iterations_per_solve, s.max_cg_iterations,
         s.step_halvings, s.energy_balance_error, s.wall_time_s
     );
-    t += &figures(dir, FIGURES_3D, ("figures-3d", "3D figures"));
-    t
+    t += &figures(dir, FIGURES_3D, ("figures-3d", "3D figures"))?;
+    Ok(t)
 }
