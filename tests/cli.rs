@@ -491,12 +491,25 @@ fn copy_run(from: &std::path::Path, name: &str) -> PathBuf {
     to
 }
 
-/// `plot` refuses a damaged run directory with exit 2 and the file's name, before drawing
-/// anything: a truncated case copy (its hash differs from summary.json's), days out of order in
-/// daily.csv, months out of order in monthly.csv.
+/// `plot` refuses a damaged run directory with exit 2 and the file's name, never panicking or
+/// looping (hardening findings 4, 5 and 13): a truncated case copy (its hash differs from
+/// summary.json's), days out of order in daily.csv, months out of order in monthly.csv,
+/// monthly.csv with no data rows, daily.csv rows of two columns, section.json with `days = 0`.
 fn damaged_run_directories_are_refused(run: &std::path::Path) {
     type Damage = fn(&str) -> String;
-    let cases: [(&str, &str, Damage); 3] = [
+    let cases: [(&str, &str, Damage); 6] = [
+        ("monthly.csv", "months", |t| t.lines().next().unwrap().to_string()),
+        ("daily.csv", "missing field", |t| {
+            t.lines()
+                .map(|l| l.split(',').take(2).collect::<Vec<_>>().join(","))
+                .collect::<Vec<_>>()
+                .join("\n")
+        }),
+        ("section.json", "days", |t| {
+            let mut v: serde_json::Value = serde_json::from_str(t).unwrap();
+            v["days"] = 0.into();
+            v.to_string()
+        }),
         ("case.toml", "SHA-256", |t| t[..t.len() / 2].to_string()),
         ("daily.csv", "day_of_year", |t| {
             let mut lines: Vec<&str> = t.lines().collect();
@@ -525,7 +538,7 @@ fn damaged_run_directories_are_refused(run: &std::path::Path) {
     }
 }
 
-/// A full disk during `plot` (a 300 kB tmpfs, which needs root; skipped with a note where it
+/// A full disk during `plot` (hardening finding 12; a 300 kB tmpfs, which needs root; skipped with a note where it
 /// cannot be mounted) is an I/O error (exit 1) naming the file that did not fit, and leaves no
 /// temporary or half-written image behind.
 fn full_disk_names_the_file(run: &std::path::Path) {
@@ -680,7 +693,7 @@ fn unwritable_output_is_found_before_solving() {
 }
 
 /// A second process writing into a directory another one is writing into fails at once (exit 1,
-/// naming the directory) and writes nothing; the lock is the operating system's advisory lock on
+/// naming the directory) and writes nothing (hardening finding 10); the lock is the operating system's advisory lock on
 /// `.frostline.lock`, here held by the test itself.
 #[test]
 fn a_directory_in_use_is_refused_at_once() {
