@@ -498,7 +498,9 @@ fn copy_run(from: &std::path::Path, name: &str) -> PathBuf {
 fn damaged_run_directories_are_refused(run: &std::path::Path) {
     type Damage = fn(&str) -> String;
     let cases: [(&str, &str, Damage); 6] = [
-        ("monthly.csv", "months", |t| t.lines().next().unwrap().to_string()),
+        ("monthly.csv", "months", |t| {
+            t.lines().next().unwrap().to_string()
+        }),
         ("daily.csv", "missing field", |t| {
             t.lines()
                 .map(|l| l.split(',').take(2).collect::<Vec<_>>().join(","))

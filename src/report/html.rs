@@ -50,7 +50,7 @@ fn row(out: &mut String, name: &str, unit: &str, model: String, check: String, m
 
 /// The figures the report embeds, in order: (file stem, caption).
 pub const FIGURES: &[(&str, &str)] = &[
-    ("soil_temperature", "Soil temperature in the half-section on the day of deepest frost; bold black line: frost line."),
+    ("soil_temperature", "Soil temperature on the day of deepest frost, over the part of the half-section where it varies; bold black line: frost line, also the boundary of the blue (frozen) shading."),
     ("soil_temperature_zoom", "The same field around the footing."),
     ("frost_depth", "Frost depth in open ground and under the footing over the reported year, with the footing base."),
     ("heat_loss", "Monthly ground heat loss of the whole building and the monthly mean outdoor temperature."),

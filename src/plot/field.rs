@@ -1,0 +1,458 @@
+//! The section's temperature field: its view, the smooth shading (see `shade`), isotherms with
+//! labels, the construction outlines, soil-layer boundaries, the frost line and the colour bar.
+use super::{data::PlotData, out_err, shade};
+use crate::analysis::isolines::{self, isolines};
+use crate::error::Result;
+use crate::files::section::PartOutline;
+use plotters::coord::types::RangedCoordf64;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+
+/// A view of the section: x and z ranges, m.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct View {
+    pub(crate) x0: f64,
+    pub(crate) x1: f64,
+    pub(crate) z0: f64,
+    pub(crate) z1: f64,
+}
+
+/// The pieces of a polyline that lie inside the view (split where it leaves, so no chord is drawn
+/// across the part outside).
+/// Each run ends on the view's border where the line crosses it (found by bisection of the
+/// segment), so lines reach the edge of the picture.
+pub(crate) fn runs_inside(
+    line: &[(f64, f64)],
+    inside: &impl Fn(&(f64, f64)) -> bool,
+) -> Vec<Vec<(f64, f64)>> {
+    // The last point inside on the segment from `a` (inside) to `b` (outside).
+    let border = |a: (f64, f64), b: (f64, f64)| {
+        let (mut s0, mut s1) = (0.0, 1.0);
+        for _ in 0..30 {
+            let s = 0.5 * (s0 + s1);
+            if inside(&(a.0 + s * (b.0 - a.0), a.1 + s * (b.1 - a.1))) {
+                s0 = s;
+            } else {
+                s1 = s;
+            }
+        }
+        (a.0 + s0 * (b.0 - a.0), a.1 + s0 * (b.1 - a.1))
+    };
+    let mut out = Vec::new();
+    let mut cur = Vec::new();
+    for (k, p) in line.iter().enumerate() {
+        if inside(p) {
+            if cur.is_empty() && k > 0 {
+                cur.push(border(*p, line[k - 1]));
+            }
+            cur.push(*p);
+        } else if !cur.is_empty() {
+            cur.push(border(line[k - 1], *p));
+            out.push(std::mem::take(&mut cur));
+        }
+    }
+    if !cur.is_empty() {
+        out.push(cur);
+    }
+    out
+}
+
+/// The cell-centre grid of `f` with the temperature and frost scalar, extended by the section's
+/// side edges and its bottom, where the boundaries are adiabatic (or the field nearly uniform):
+/// the edge takes its cell's value (zero gradient), so isotherms and the frost line reach the
+/// edges instead of stopping half a cell short.
+fn padded(f: &FieldView) -> (Vec<f64>, Vec<f64>, Vec<f64>, Vec<f64>) {
+    let (nx, nz) = (f.xe.len() - 1, f.ze.len() - 1);
+    let mut xs = vec![f.xe[0]];
+    xs.extend(f.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])));
+    xs.push(f.xe[nx]);
+    let mut zs: Vec<f64> = f.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    zs.push(f.ze[nz]);
+    let pad = |v: &[f64]| {
+        let mut out = Vec::with_capacity((nx + 2) * (nz + 1));
+        for j in 0..=nz {
+            let row = &v[j.min(nz - 1) * nx..(j.min(nz - 1) + 1) * nx];
+            out.push(row[0]);
+            out.extend_from_slice(row);
+            out.push(row[nx - 1]);
+        }
+        out
+    };
+    (xs, zs, pad(&f.t), pad(&f.frost))
+}
+
+/// Vertical temperature gradient below which deep ground is left out of the section view, K/m.
+const VIEW_GRADIENT_K_PER_M: f64 = 1.0;
+/// Horizontal temperature gradient below which far ground is left out, K/m.
+const VIEW_HORIZONTAL_K_PER_M: f64 = 0.1;
+
+/// The part of the full section `full` worth drawing, together with `keep` (the construction and
+/// the frost) and widened by 10 % on each side: in depth, down to the cells where the day's
+/// temperature gradient exceeds 1 K/m; across, out to those where the field still varies
+/// sideways (a horizontal gradient over 0.1 K/m; beyond, the ground is one-dimensional). Deep and
+/// far ground, where the field is nearly uniform, is left out, so the frost line of a large
+/// building stays visible.
+pub(crate) fn physics_view(f: &FieldView, full: View, keep: View) -> View {
+    let (nx, nz) = (f.xe.len() - 1, f.ze.len() - 1);
+    let xc: Vec<f64> = f.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let zc: Vec<f64> = f.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let mut b = keep;
+    let t = |i: usize, j: usize| f.t[j * nx + i];
+    // |T(i2, j2) − T(i, j)| over distance d exceeds `g` (K/m), both cells solid.
+    let steep = |(i, j): (usize, usize), (i2, j2): (usize, usize), d: f64, g: f64| {
+        let (u, w) = (t(i, j), t(i2, j2));
+        u.is_finite() && w.is_finite() && (u - w).abs() > g * d
+    };
+    // Depth first (any steep gradient), then the width within that depth.
+    for j in 0..nz {
+        for i in 0..nx {
+            let s = (i + 1 < nx
+                && steep((i, j), (i + 1, j), xc[i + 1] - xc[i], VIEW_GRADIENT_K_PER_M))
+                || (j + 1 < nz
+                    && steep((i, j), (i, j + 1), zc[j + 1] - zc[j], VIEW_GRADIENT_K_PER_M));
+            if s {
+                b.z0 = b.z0.min(f.ze[j]);
+                b.z1 = b.z1.max(f.ze[j + 1]);
+            }
+        }
+    }
+    for j in (0..nz).filter(|&j| f.ze[j] < b.z1) {
+        for i in 0..nx - 1 {
+            if steep(
+                (i, j),
+                (i + 1, j),
+                xc[i + 1] - xc[i],
+                VIEW_HORIZONTAL_K_PER_M,
+            ) {
+                b.x0 = b.x0.min(f.xe[i]);
+                b.x1 = b.x1.max(f.xe[i + 2]);
+            }
+        }
+    }
+    let (dx, dz) = (0.1 * (b.x1 - b.x0), 0.1 * (b.z1 - b.z0));
+    View {
+        x0: (b.x0 - dx).max(full.x0),
+        x1: (b.x1 + dx).min(full.x1),
+        z0: (b.z0 - dz).max(full.z0),
+        z1: (b.z1 + dz).min(full.z1),
+    }
+}
+
+/// Image size (w, h) in pixels for a view drawn with equal scales on both axes.
+pub(crate) fn field_size(v: View) -> (u32, u32) {
+    let (bar, ylab, xlab, cap, margin) = (110.0, 60.0, 45.0, 40.0, 15.0);
+    let aspect = (v.z1 - v.z0) / (v.x1 - v.x0);
+    let mut plot_w = 860.0;
+    let mut plot_h = plot_w * aspect;
+    if plot_h > 1100.0 {
+        plot_h = 1100.0;
+        plot_w = plot_h / aspect;
+    }
+    if plot_h < 260.0 {
+        plot_h = 260.0;
+        plot_w = plot_h / aspect;
+    }
+    (
+        (plot_w + ylab + bar + 2.0 * margin) as u32,
+        (plot_h + xlab + cap + 2.0 * margin) as u32,
+    )
+}
+
+/// A chart of the section in metres.
+pub(crate) type Section2d<'a, DB> =
+    ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Isotherms every `interval` K between `lo` and `hi` (the 0 °C line excepted), labelled where
+/// labels do not crowd.
+pub(crate) fn draw_isotherms<DB: DrawingBackend>(
+    chart: &mut Section2d<DB>,
+    (xs, zs, field): (&[f64], &[f64], &[f64]),
+    v: View,
+    (lo, hi, interval): (f64, f64, f64),
+) -> Result<()> {
+    let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
+    // Labels keep a distance of 6 % of the view from each other.
+    let mut placed: Vec<(f64, f64)> = Vec::new();
+    let far = |p: (f64, f64), placed: &[(f64, f64)]| {
+        placed.iter().all(|q| {
+            (((p.0 - q.0) / (v.x1 - v.x0)).powi(2) + ((p.1 - q.1) / (v.z1 - v.z0)).powi(2)).sqrt()
+                > 0.06
+        })
+    };
+    let mut level = (lo / interval).ceil() * interval;
+    while level <= hi {
+        if level.abs() > 1e-9 {
+            for pts in isolines(xs, zs, field, level)
+                .iter()
+                .flat_map(|l| runs_inside(l, &inside))
+            {
+                if pts.len() < 2 {
+                    continue;
+                }
+                chart
+                    .draw_series(std::iter::once(PathElement::new(
+                        pts.clone(),
+                        RGBColor(70, 70, 70).stroke_width(1),
+                    )))
+                    .map_err(out_err)?;
+                if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
+                    let (x, z) = pts[pts.len() / 2];
+                    placed.push((x, z));
+                    // The label in °C on a pale box, readable on dark and light colours.
+                    let text = format!("{level:.0} °C");
+                    let w = 7 * text.chars().count() as i32;
+                    chart
+                        .draw_series(std::iter::once(
+                            EmptyElement::at((x, z))
+                                + Rectangle::new([(-2, -8), (w, 8)], WHITE.mix(0.8).filled())
+                                + Text::new(text, (0, -6), ("sans-serif", 12).into_font()),
+                        ))
+                        .map_err(out_err)?;
+                }
+            }
+        }
+        level += interval;
+    }
+    Ok(())
+}
+
+/// Outlines of the construction parts by kind (concrete dark grey, fill brown, insulation
+/// magenta), with a legend entry for each kind in view.
+pub(crate) fn draw_outlines<DB: DrawingBackend>(
+    chart: &mut Section2d<DB>,
+    parts: &[PartOutline],
+    v: View,
+) -> Result<()> {
+    let kinds = [
+        ("concrete", RGBColor(40, 40, 40), "concrete"),
+        ("fill", RGBColor(130, 90, 40), "fill and backfill"),
+        ("insulation", RGBColor(220, 0, 140), "insulation"),
+    ];
+    for (kind, colour, label) in kinds {
+        let rects: Vec<[(f64, f64); 2]> = parts
+            .iter()
+            .filter(|p| p.kind == kind)
+            .map(|p| {
+                [
+                    (p.x0.max(v.x0), p.z0.max(v.z0)),
+                    (p.x1.min(v.x1), p.z1.min(v.z1)),
+                ]
+            })
+            .filter(|r| r[0].0 < r[1].0 && r[0].1 < r[1].1)
+            .collect();
+        if rects.is_empty() {
+            continue;
+        }
+        chart
+            .draw_series(
+                rects
+                    .into_iter()
+                    .map(|r| Rectangle::new(r, colour.stroke_width(2))),
+            )
+            .map_err(out_err)?
+            .label(label)
+            .legend(move |(x, y)| {
+                Rectangle::new([(x, y - 5), (x + 18, y + 5)], colour.stroke_width(2))
+            });
+    }
+    Ok(())
+}
+
+/// The colour bar over [tmin, tmax] °C with the frost-line temperature marked.
+pub(crate) fn draw_colour_bar<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    (tmin, tmax): (f64, f64),
+    frost_line_c: f64,
+) -> Result<()> {
+    let mut bar = ChartBuilder::on(area)
+        .margin_top(60)
+        .margin_bottom(60)
+        .margin_right(10)
+        .y_label_area_size(50)
+        .caption("°C", ("sans-serif", 15))
+        .build_cartesian_2d(0.0..1.0, tmin..tmax)
+        .map_err(out_err)?;
+    // Whole degrees when the range is wide enough, so ticks carry no spurious decimals.
+    let digits = if tmax - tmin >= 5.0 { 0 } else { 1 };
+    bar.configure_mesh()
+        .disable_mesh()
+        .disable_x_axis()
+        .y_label_formatter(&|v: &f64| format!("{v:.digits$}"))
+        .label_style(("sans-serif", 12))
+        .draw()
+        .map_err(out_err)?;
+    let n = 200;
+    bar.draw_series((0..n).map(|k| {
+        let a = tmin + (tmax - tmin) * k as f64 / n as f64;
+        let b = tmin + (tmax - tmin) * (k + 1) as f64 / n as f64;
+        let t = 0.5 * (a + b);
+        Rectangle::new(
+            [(0.0, a), (1.0, b)],
+            shade::split_colour(t, t < frost_line_c).filled(),
+        )
+    }))
+    .map_err(out_err)?;
+    bar.draw_series(std::iter::once(PathElement::new(
+        vec![(0.0, frost_line_c), (1.0, frost_line_c)],
+        BLACK.stroke_width(3),
+    )))
+    .map_err(out_err)?;
+    Ok(())
+}
+
+/// A vertical section's field to draw: cell edges, temperature and frost scalar per cell
+/// (row-major nz × nx, NaN for air), the construction outlines and the frost-line temperature.
+pub(crate) struct FieldView<'a> {
+    pub(crate) xe: &'a [f64],
+    pub(crate) ze: &'a [f64],
+    pub(crate) t: Vec<f64>,
+    pub(crate) frost: Vec<f64>,
+    pub(crate) parts: &'a [PartOutline],
+    pub(crate) frost_line_c: f64,
+    pub(crate) x_desc: &'a str,
+    /// Depths of the soil-layer boundaries, m (drawn outside the building).
+    pub(crate) strata_z: Vec<f64>,
+}
+
+impl<'a> FieldView<'a> {
+    /// The saved 2D field of day index `day`.
+    pub(crate) fn of_day(d: &'a PlotData, day: usize) -> Self {
+        FieldView {
+            xe: &d.xe,
+            ze: &d.ze,
+            t: d.field(day).iter().copied().collect(),
+            frost: d.frost_field(day),
+            parts: &d.parts,
+            frost_line_c: d.frost_line_c,
+            x_desc: "x (m), 0 at the wall's exterior face",
+            strata_z: strata_boundaries(d),
+        }
+    }
+}
+
+/// Depths where the material changes down the far column below ground (the soil strata).
+pub(crate) fn strata_boundaries(d: &PlotData) -> Vec<f64> {
+    let (nx, nz) = (d.xe.len() - 1, d.ze.len() - 1);
+    let m = |j: usize| d.section.cell_materials.get(j * nx + nx - 1).copied();
+    (0..nz.saturating_sub(1))
+        .filter(|&j| {
+            d.ze[j] >= 0.0
+                && matches!((m(j), m(j + 1)), (Some(a), Some(b)) if a >= 0 && b >= 0 && a != b)
+        })
+        .map(|j| d.ze[j + 1])
+        .collect()
+}
+
+/// Draw the field `f` in view `v`.
+pub(crate) fn draw_field<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    f: &FieldView,
+    v: View,
+    interval: f64,
+    title: &str,
+    range: Option<(f64, f64)>,
+) -> Result<Vec<isolines::Polyline>> {
+    root.fill(&WHITE).map_err(out_err)?;
+    let (w, _) = root.dim_in_pixel();
+    let (left, right) = root.split_horizontally(w.saturating_sub(110));
+    let mut chart = ChartBuilder::on(&left)
+        .caption(title, ("sans-serif", 18))
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(v.x0..v.x1, v.z1..v.z0)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc(f.x_desc)
+        .y_desc("depth z (m) below ground")
+        .label_style(("sans-serif", 13))
+        .draw()
+        .map_err(out_err)?;
+    let field = &f.t[..];
+    // The field shaded smoothly, one pixel at a time (see `shade`).
+    let size = chart.plotting_area().dim_in_pixel();
+    let image = BitMapElement::<_, plotters::backend::RGBPixel>::with_owned_buffer(
+        (v.x0, v.z0),
+        size,
+        shade::raster(f, v, size),
+    )
+    .ok_or_else(|| out_err("field image of the wrong size"))?;
+    chart.draw_series(std::iter::once(image)).map_err(out_err)?;
+    // Isotherms.
+    let (xs, zs, padded_t, padded_frost) = padded(f);
+    let (lo, hi) = field
+        .iter()
+        .filter(|t| t.is_finite())
+        .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
+    let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
+    draw_isotherms(&mut chart, (&xs, &zs, &padded_t), v, (lo, hi, interval))?;
+    draw_outlines(&mut chart, f.parts, v)?;
+    let brown = RGBColor(110, 70, 30);
+    for (k, &z) in f
+        .strata_z
+        .iter()
+        .filter(|&&z| z > v.z0 && z < v.z1)
+        .enumerate()
+    {
+        let s = chart
+            .draw_series(DashedLineSeries::new(
+                vec![(0.0f64.max(v.x0), z), (v.x1, z)],
+                6,
+                4,
+                brown.stroke_width(1),
+            ))
+            .map_err(out_err)?;
+        if k == 0 {
+            s.label("soil-layer boundary").legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 18, y)], brown.stroke_width(1))
+            });
+        }
+    }
+    // Ground line outside, and the frost line.
+    chart
+        .draw_series(std::iter::once(PathElement::new(
+            vec![(0.0f64.max(v.x0), 0.0), (v.x1, 0.0)],
+            RGBColor(90, 60, 30).stroke_width(2),
+        )))
+        .map_err(out_err)?;
+    let frost = isolines(&xs, &zs, &padded_frost, f.frost_line_c);
+    let mut labelled = false;
+    for pts in frost.iter().flat_map(|l| runs_inside(l, &inside)) {
+        if pts.len() >= 2 {
+            let s = chart
+                .draw_series(std::iter::once(PathElement::new(
+                    pts,
+                    BLACK.stroke_width(4),
+                )))
+                .map_err(out_err)?;
+            if !labelled {
+                labelled = true;
+                s.label(format!("frost line ({:.2} °C)", f.frost_line_c))
+                    .legend(|(x, y)| {
+                        PathElement::new(vec![(x, y), (x + 18, y)], BLACK.stroke_width(4))
+                    });
+            }
+        }
+    }
+    // The legend in the air above ground (top right) when the view shows enough of it, else at
+    // the bottom right, in the deep ground's even field.
+    let air = (-v.z0).max(0.0) / (v.z1 - v.z0);
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(RGBColor(120, 120, 120))
+        .label_font(("sans-serif", 12))
+        .position(if air >= 0.15 {
+            SeriesLabelPosition::UpperRight
+        } else {
+            SeriesLabelPosition::LowerRight
+        })
+        .draw()
+        .map_err(out_err)?;
+    let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
+    draw_colour_bar(&right, (tmin, tmax), f.frost_line_c)?;
+    root.present().map_err(out_err)?;
+    Ok(frost)
+}
