@@ -477,6 +477,69 @@ fn plot_another_day_into_its_own_directory() {
     );
     damaged_run_directories_are_refused(&out);
     full_disk_names_the_file(&out);
+    killed_plots_leave_no_damage(&out);
+}
+
+/// `plot --animate` killed (SIGKILL) at several instants (hardening finding 8): every image under
+/// its final name is whole (PNG ends with IEND, PNG spec §11.2.5; SVG with `</svg>`; GIF with its
+/// trailer 0x3B, GIF89a spec §27), and the next command into the directory removes the
+/// temporaries the killed ones left.
+fn killed_plots_leave_no_damage(run: &std::path::Path) {
+    let out = scratch("killed-plot");
+    for delay_ms in [30u64, 80, 150, 300, 600] {
+        let mut child = bin()
+            .arg("plot")
+            .arg(run)
+            .arg("--animate")
+            .arg("--out")
+            .arg(&out)
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::null())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(delay_ms));
+        let _ = child.kill();
+        let _ = child.wait();
+        for e in std::fs::read_dir(&out).unwrap() {
+            let p = e.unwrap().path();
+            let name = p.file_name().unwrap().to_string_lossy().to_string();
+            if name.starts_with('.') {
+                continue;
+            }
+            let b = std::fs::read(&p).unwrap();
+            let whole = match p.extension().and_then(|x| x.to_str()) {
+                Some("png") => b.ends_with(&[0xAE, 0x42, 0x60, 0x82]),
+                Some("svg") => String::from_utf8_lossy(&b).trim_end().ends_with("</svg>"),
+                Some("gif") => b.last() == Some(&0x3B),
+                _ => !b.is_empty(),
+            };
+            assert!(whole, "{name} damaged after a kill at {delay_ms} ms");
+        }
+    }
+    // As a killed process leaves them (the window is short, so plant two), beside a file of
+    // the user's that must stay.
+    for n in [
+        ".summary.json.999999.7.tmp",
+        ".frost_depth.999999.8.tmp.png",
+        ".keep",
+    ] {
+        std::fs::write(out.join(n), "x").unwrap();
+    }
+    let o = bin()
+        .arg("plot")
+        .arg(run)
+        .arg("--out")
+        .arg(&out)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0));
+    assert!(out.join(".keep").exists());
+    let left: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().to_string())
+        .filter(|n| n.contains(".tmp"))
+        .collect();
+    assert!(left.is_empty(), "{left:?}");
 }
 
 /// Copy the files of run directory `from` into a fresh scratch directory.

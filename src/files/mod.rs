@@ -66,7 +66,10 @@ pub fn check_writable(dir: &Path) -> Result<std::fs::File> {
         .open(&path)
         .map_err(|e| Error::io(&path, e))?;
     match lock.try_lock() {
-        Ok(()) => Ok(lock),
+        Ok(()) => {
+            remove_stale_temporaries(dir);
+            Ok(lock)
+        }
         Err(std::fs::TryLockError::WouldBlock) => Err(Error::io(
             dir,
             std::io::Error::new(
@@ -76,6 +79,38 @@ pub fn check_writable(dir: &Path) -> Result<std::fs::File> {
             ),
         )),
         Err(std::fs::TryLockError::Error(e)) => Err(Error::io(&path, e)),
+    }
+}
+
+/// Whether `name` is one of our temporary names (`.NAME.PID.N.tmp`, images `.STEM.PID.N.tmp.EXT`).
+fn is_temporary(name: &str) -> bool {
+    let Some(rest) = name.strip_prefix('.') else {
+        return false;
+    };
+    let rest = ["png", "svg", "gif"]
+        .iter()
+        .find_map(|e| rest.strip_suffix(&format!(".tmp.{e}")))
+        .or_else(|| rest.strip_suffix(".tmp"));
+    let mut parts = rest.map(|r| r.rsplitn(3, '.')).into_iter().flatten();
+    let (n, pid, stem) = (parts.next(), parts.next(), parts.next());
+    let digits =
+        |s: Option<&str>| s.is_some_and(|s| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit()));
+    digits(n) && digits(pid) && stem.is_some_and(|s| !s.is_empty())
+}
+
+/// Remove temporaries left in `dir` by a process that was killed before it could rename or
+/// remove them. Called with the directory's lock held, so no other frostline process is writing
+/// there; only names of our temporary pattern are touched.
+fn remove_stale_temporaries(dir: &Path) {
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let name = e.file_name();
+        let is_file = e.file_type().is_ok_and(|t| t.is_file() || t.is_symlink());
+        if is_file && name.to_str().is_some_and(is_temporary) {
+            let _ = std::fs::remove_file(e.path());
+        }
     }
 }
 
@@ -390,4 +425,37 @@ pub fn write_sizing(case: &Case, r: &SizingResult, dir: &Path) -> Result<Vec<Pat
         )?);
     }
     Ok(files)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The names `temp_path` makes are recognised as temporaries; result files and other hidden
+    /// files are not.
+    #[test]
+    fn temporary_names() {
+        let d = Path::new("/x");
+        for n in [
+            "summary.json",
+            "frost_depth.png",
+            "winters.csv",
+            "report.html",
+        ] {
+            let t = temp_path(d, n);
+            let name = t.file_name().unwrap().to_str().unwrap();
+            assert!(is_temporary(name), "{name}");
+        }
+        for n in [
+            "summary.json",
+            ".frostline.lock",
+            ".hidden",
+            ".a.b.tmp",
+            ".a.1.tmp.txt",
+            "x.1.2.tmp",
+            ".1.2.tmp",
+        ] {
+            assert!(!is_temporary(n), "{n}");
+        }
+    }
 }
