@@ -337,6 +337,19 @@ fn soil_file_and_method_in_a_case() {
     let out = bin().arg("check").arg(&path).output().unwrap();
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("site.toml"));
+    // A range error inside the soil file names its line and column (hardening finding 14).
+    std::fs::write(
+        dir.join("site.toml"),
+        "name = \"site clay\"\ndescription = \"d\"\nsource = \"site report\"\ndry_density_kg_per_m3 = 1480.0\n  water_content =  50.0\nquartz_fraction = 0.25\ntexture = \"fine\"\nfrost_susceptibility = \"F3\"\n",
+    )
+    .unwrap();
+    let out = bin().arg("check").arg(&path).output().unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        err.contains("site.toml:5:20: water_content: 50 is out of range"),
+        "{err}"
+    );
 }
 
 #[test]

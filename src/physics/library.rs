@@ -205,7 +205,22 @@ pub fn parse_soil_file(name: &str, src: &str) -> crate::error::Result<SoilFile> 
             e.message(),
         )
     })?;
-    let bad = |key: &str, msg: String| Error::in_file(name, key, InputKind::OutOfRange, msg);
+    // The error at the value of `key` (line and column), found as the line that assigns it.
+    let bad = |key: &str, msg: String| {
+        let mut offset = 0;
+        let at = src.split_inclusive('\n').find_map(|line| {
+            let start = offset;
+            offset += line.len();
+            let rest = line.trim_start().strip_prefix(key)?.trim_start();
+            let value = rest.strip_prefix('=')?;
+            let lead = line.len() - value.trim_start().len();
+            Some(start + lead)
+        });
+        let loc = at.map_or(Location::file_only(name), |o| {
+            Location::from_offset(name, src, o)
+        });
+        Error::input(loc, key, InputKind::OutOfRange, msg)
+    };
     if !(100.0..=2700.0).contains(&s.dry_density_kg_per_m3) {
         return Err(bad(
             "dry_density_kg_per_m3",
