@@ -17,6 +17,19 @@ pub struct Cli {
     /// What to do.
     #[command(subcommand)]
     pub command: Command,
+    /// How errors are printed on stderr: text, or one JSON object per line for tools (input
+    /// errors with file, line, column, key, kind, message and allowed values).
+    #[arg(long, global = true, value_enum, default_value_t = ErrorFormat::Text)]
+    pub error_format: ErrorFormat,
+}
+
+/// Format of the error messages.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ErrorFormat {
+    /// `error: FILE:LINE:COLUMN: KEY: MESSAGE`.
+    Text,
+    /// `{"error": {...}, "exit_code": N}` on one line.
+    Json,
 }
 
 /// Subcommands.
@@ -282,25 +295,54 @@ pub fn main_exit_code() -> i32 {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
-            let _ = e.print();
-            return e.exit_code();
+            // The flag cannot be read from a command line that does not parse: look for it.
+            let args: Vec<String> = std::env::args().collect();
+            let json = args
+                .windows(2)
+                .any(|w| w[0] == "--error-format" && w[1] == "json")
+                || args.iter().any(|a| a == "--error-format=json");
+            let code = e.exit_code();
+            if json && code != 0 {
+                eprintln!(
+                    "{}",
+                    serde_json::json!({
+                        "error": {"class": "usage", "message": e.to_string().trim()},
+                        "exit_code": code,
+                    })
+                );
+            } else {
+                let _ = e.print();
+            }
+            return code;
         }
     };
+    let format = cli.error_format;
     match execute(cli) {
         Ok(unmet) if unmet.is_empty() => 0,
         Ok(unmet) => {
-            for u in unmet {
-                eprintln!("criterion not met: {u}");
+            if format == ErrorFormat::Json {
+                eprintln!(
+                    "{}",
+                    serde_json::json!({"criteria_not_met": unmet, "exit_code": EXIT_CRITERION})
+                );
+            } else {
+                for u in unmet {
+                    eprintln!("criterion not met: {u}");
+                }
             }
             EXIT_CRITERION
         }
         Err(e) => {
-            eprintln!("error: {e}");
-            if e.is_input() {
-                2
+            let code = if e.is_input() { 2 } else { 1 };
+            if format == ErrorFormat::Json {
+                eprintln!(
+                    "{}",
+                    serde_json::json!({"error": e.to_json(), "exit_code": code})
+                );
             } else {
-                1
+                eprintln!("error: {e}");
             }
+            code
         }
     }
 }

@@ -171,6 +171,42 @@ impl Error {
         matches!(self, Error::Input { .. })
     }
 
+    /// The error as a JSON object for tools (`--error-format json`): `class` (input, io,
+    /// numerical, method, output), the message, and for input errors `file`, `line`, `column`
+    /// (0 when not known), `key`, `kind` and `allowed` (the message's "allowed: …" part, if any);
+    /// for I/O errors `path`.
+    pub fn to_json(&self) -> serde_json::Value {
+        use serde_json::json;
+        match self {
+            Error::Input {
+                location,
+                key,
+                kind,
+                message,
+            } => {
+                let allowed = message.split_once("allowed: ").map(|(_, a)| a.trim());
+                json!({
+                    "class": "input",
+                    "file": location.file,
+                    "line": location.line,
+                    "column": location.column,
+                    "key": key,
+                    "kind": kind,
+                    "message": message,
+                    "allowed": allowed,
+                })
+            }
+            Error::Io { path, source } => json!({
+                "class": "io",
+                "path": path.display().to_string(),
+                "message": source.to_string(),
+            }),
+            Error::Method(m) => json!({"class": "method", "message": m}),
+            Error::Output(m) => json!({"class": "output", "message": m}),
+            other => json!({"class": "numerical", "message": other.to_string()}),
+        }
+    }
+
     /// The kind of an input error, if it is one.
     pub fn input_kind(&self) -> Option<InputKind> {
         match self {

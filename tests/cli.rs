@@ -219,6 +219,42 @@ fn amplitude_too_large() {
     );
 }
 
+/// `--error-format json`: one JSON object on stderr with the input error's file, line, column,
+/// key, kind and allowed values, and the exit code; a usage error is one too.
+#[test]
+fn errors_as_json_for_tools() {
+    let dir = scratch("error-json");
+    let path = dir.join("case.toml");
+    std::fs::write(
+        &path,
+        VALID.replace("amplitude_k = 14.0", "amplitude_k = 45.0"),
+    )
+    .unwrap();
+    let o = bin()
+        .args(["check".as_ref(), path.as_os_str()])
+        .args(["--error-format", "json"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let v: serde_json::Value = serde_json::from_slice(&o.stderr).expect("stderr is JSON");
+    let e = &v["error"];
+    assert_eq!(e["class"], "input");
+    assert_eq!(e["file"], path.display().to_string());
+    assert_eq!(e["line"], 26);
+    assert!(e["column"].as_u64().unwrap() > 0);
+    assert_eq!(e["key"], "climate.amplitude_k");
+    assert_eq!(e["kind"], "out_of_range");
+    assert_eq!(e["allowed"], "0 to 30 K");
+    assert_eq!(v["exit_code"], 2);
+    let o = bin()
+        .args(["--error-format", "json", "chek"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let v: serde_json::Value = serde_json::from_slice(&o.stderr).expect("stderr is JSON");
+    assert_eq!(v["error"]["class"], "usage");
+}
+
 #[test]
 fn permafrost_climate_rejected() {
     let src = VALID.replace("mean_c = 3.0", "mean_c = -4.0");
