@@ -102,6 +102,17 @@ fn sizing_example_and_its_chosen_design() {
         .contains("frost_margin_m"));
     // The chosen design's protected zone, read back from its saved field.
     crate::trust::check_zone_from_saved_field(&out, margin);
+    // The trade-off chart is drawn, listed with its size, and embedded in the report.
+    crate::plots::check_plots(&out, &read_json(&out.join("summary.json")));
+    let index = read_json(&out.join("plots.json"));
+    assert!(index["plots"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|p| p["file"] == "sizing_tradeoff.png"));
+    assert!(std::fs::read_to_string(out.join("report.html"))
+        .unwrap()
+        .contains("fig-sizing_tradeoff"));
     // No hedged values in what a design note would carry (finding 6).
     for f in ["sizing.json", "sizing.csv", "report.html", "summary.json"] {
         let text = std::fs::read_to_string(out.join(f)).unwrap().to_lowercase();

@@ -314,6 +314,11 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     if let Some(f) = crate::files::read_three_d(dir)? {
         sizes.extend(three::render(out, &f, &mut files)?);
     }
+    if let Some(z) = crate::files::read_sizing(dir)? {
+        if tradeoff::render(out, &z, &mut files)? {
+            sizes.push(("sizing_tradeoff", charts::SIZE));
+        }
+    }
     if let Some(w) = charts::read_winters(dir)? {
         charts::winters(out, &d, &w, &mut files)?;
         sizes.push(("winters", charts::SIZE));
@@ -340,3 +345,4 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
 
 pub mod charts;
 pub mod three;
+mod tradeoff;

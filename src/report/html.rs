@@ -56,6 +56,7 @@ pub const FIGURES: &[(&str, &str)] = &[
     ("heat_loss", "Monthly ground heat loss of the whole building and the monthly mean outdoor temperature."),
     ("probes", "Temperatures at the named probe points."),
     ("winters", "Deepest frost of every winter of the measured series."),
+    ("sizing_tradeoff", "Sizing: the frost margin (one varied dimension) or the least second dimension (two) of each design, and its annual ground heat loss; red circle: the chosen design."),
 ];
 
 /// `v` with `d` decimals, "–" if not finite.
