@@ -168,6 +168,29 @@ fn kettle_hollow_house() {
     assert!(stdout.contains("kWh") && stdout.contains("W/(m²K)"));
     crate::plots::check_plots(&out, &s);
     crate::plots::check_report(&out, &s);
+    // The properties used, in summary.json and the report: every construction part, insulation
+    // piece and soil stratum, the XPS at the library's 0.032 W/(m·K) and the soil freezing over
+    // its interval.
+    let mats = s["materials"].as_array().unwrap();
+    let roles: Vec<&str> = mats.iter().map(|m| m["role"].as_str().unwrap()).collect();
+    assert!(
+        roles.contains(&"slab") && roles.contains(&"footing"),
+        "{roles:?}"
+    );
+    assert!(roles.iter().any(|r| r.starts_with("soil 1")), "{roles:?}");
+    let wing = mats
+        .iter()
+        .find(|m| m["role"] == "insulation[2] (wing)")
+        .unwrap();
+    assert_eq!(wing["k_unfrozen_w_per_mk"].as_f64(), Some(0.032));
+    let soil = mats
+        .iter()
+        .find(|m| m["role"].as_str().unwrap().starts_with("soil 1"))
+        .unwrap();
+    assert!(soil["latent_heat_j_per_m3"].as_f64().unwrap() > 0.0);
+    assert!(soil["freezing_interval_c"].is_array());
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(report.contains("Properties used") && report.contains("insulation[2] (wing)"));
     // Re-render from the saved results for another day and window, with the animation.
     let out_s = out.as_os_str();
     run_ok(&[

@@ -144,6 +144,75 @@ pub struct BasementSummary {
     pub basement_note: String,
 }
 
+/// A material as the model used it: the properties derived from the case (library soil, index
+/// properties, explicit values or defaults), for the report's table.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MaterialInfo {
+    /// Where it is used, e.g. `slab`, `insulation[1] (wing)`, `soil 2 (1.20 to 3.00 m)`.
+    pub role: String,
+    /// The material's name.
+    pub name: String,
+    /// Thermal conductivity unfrozen / frozen, W/(m·K).
+    pub k_unfrozen_w_per_mk: f64,
+    /// Frozen, W/(m·K).
+    pub k_frozen_w_per_mk: f64,
+    /// Volumetric heat capacity unfrozen, J/(m³·K).
+    pub c_unfrozen_j_per_m3k: f64,
+    /// Frozen, J/(m³·K).
+    pub c_frozen_j_per_m3k: f64,
+    /// Volumetric latent heat of the pore water, J/m³ (0: does not freeze).
+    pub latent_heat_j_per_m3: f64,
+    /// The freezing interval, °C, from its lower to its upper end (none when it does not freeze).
+    pub freezing_interval_c: Option<[f64; 2]>,
+    /// The unfrozen water follows a tabulated curve instead of the linear interval.
+    pub tabulated_freezing_curve: bool,
+}
+
+/// Every material of `case` with its role, construction first, then the soil strata.
+pub fn materials_of(case: &Case) -> Vec<MaterialInfo> {
+    use crate::case::InsulationKind as K;
+    let info = |role: String, m: &crate::physics::material::Material| MaterialInfo {
+        role,
+        name: m.name.clone(),
+        k_unfrozen_w_per_mk: m.k_unfrozen,
+        k_frozen_w_per_mk: m.k_frozen,
+        c_unfrozen_j_per_m3k: m.c_unfrozen,
+        c_frozen_j_per_m3k: m.c_frozen,
+        latent_heat_j_per_m3: m.latent,
+        freezing_interval_c: (m.latent > 0.0)
+            .then_some([m.t_freeze - m.freezing_interval, m.t_freeze]),
+        tabulated_freezing_curve: m.curve.is_some(),
+    };
+    let mut v = vec![
+        info("slab".into(), &case.slab.material),
+        info("wall".into(), &case.wall.material),
+        info("footing".into(), &case.footing.material),
+    ];
+    for (k, ins) in case.insulation.iter().enumerate() {
+        let kind = match ins.kind {
+            K::UnderSlab { .. } => "under slab",
+            K::VerticalOutside { .. } => "vertical, outside",
+            K::VerticalInside { .. } => "vertical, inside",
+            K::Wing { .. } => "wing",
+        };
+        v.push(info(format!("insulation[{k}] ({kind})"), &ins.material));
+    }
+    if let Some(f) = &case.fill {
+        v.push(info("fill".into(), &f.material));
+    }
+    let mut top = 0.0;
+    for (k, s) in case.strata.iter().enumerate() {
+        let range = if s.bottom_m.is_finite() {
+            format!("{top:.2} to {:.2} m", s.bottom_m)
+        } else {
+            format!("below {top:.2} m")
+        };
+        v.push(info(format!("soil {} ({range})", k + 1), &s.material));
+        top = s.bottom_m;
+    }
+    v
+}
+
 /// Contents of `summary.json` (all SI).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Summary {
@@ -152,6 +221,9 @@ pub struct Summary {
     /// Where the results came from: tool version, time, input files and their SHA-256 digests.
     #[serde(default)]
     pub provenance: Option<Provenance>,
+    /// The materials with the properties the model used (derived from the case).
+    #[serde(default)]
+    pub materials: Vec<MaterialInfo>,
     /// The caution.
     pub caution: String,
     /// Coordinate convention.
@@ -299,6 +371,7 @@ impl Summary {
         let series = !r.winters.is_empty();
         Summary {
             provenance: Some(Provenance::of(case)),
+            materials: materials_of(case),
             case_name: case.name.clone(),
             caution: CAUTION.into(),
             coordinates: COORDINATES.into(),

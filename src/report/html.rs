@@ -132,6 +132,7 @@ pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
     h.push_str(&figures(out, FIGURES, ("figures", heading))?);
     h.push_str(&monthly(dir)?);
     h.push_str(&numerics(&s));
+    h.push_str(&properties(&s.materials));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
     h.push_str(&format!(
         "<p>B′ = {:.3} m, A = {:.1} m², P = {:.1} m.</p>\n<pre>{}</pre>\n",
@@ -347,6 +348,44 @@ pub(super) fn figures(
         }
     }
     Ok(h)
+}
+
+/// The table of the properties the model used, material by material.
+fn properties(m: &[files::summary::MaterialInfo]) -> String {
+    if m.is_empty() {
+        return String::new();
+    }
+    let mut h = String::from(
+        "<h2 id=\"properties\">Properties used</h2>\n<p>As derived from the case (library soils, \
+         index properties, explicit values, defaults); C is the volumetric heat capacity, L the \
+         latent heat of the pore water per volume of ground.</p>\n<table>\n<tr><th>where</th>\
+         <th>material</th><th>k unfrozen<br>W/(m·K)</th><th>k frozen<br>W/(m·K)</th>\
+         <th>C unfrozen<br>MJ/(m³·K)</th><th>C frozen<br>MJ/(m³·K)</th><th>L<br>MJ/m³</th>\
+         <th>freezing interval<br>°C</th></tr>\n",
+    );
+    for x in m {
+        let interval = match x.freezing_interval_c {
+            Some([a, b]) if x.tabulated_freezing_curve => {
+                format!("{a:.2} to {b:.2} (tabulated curve)")
+            }
+            Some([a, b]) => format!("{a:.2} to {b:.2}"),
+            None => "does not freeze".into(),
+        };
+        h.push_str(&format!(
+            "<tr><td>{}</td><td>{}</td><td class=\"n\">{}</td><td class=\"n\">{}</td>\
+             <td class=\"n\">{}</td><td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td></tr>\n",
+            escape(&x.role),
+            escape(&x.name),
+            f(x.k_unfrozen_w_per_mk, 3),
+            f(x.k_frozen_w_per_mk, 3),
+            f(x.c_unfrozen_j_per_m3k / 1e6, 3),
+            f(x.c_frozen_j_per_m3k / 1e6, 3),
+            f(x.latent_heat_j_per_m3 / 1e6, 1),
+            escape(&interval)
+        ));
+    }
+    h.push_str("</table>\n");
+    h
 }
 
 /// The monthly results as a table (from monthly.csv): the chart's numbers.
