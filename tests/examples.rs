@@ -143,6 +143,15 @@ fn kettle_hollow_house() {
     let kwh = num(&s, "annual_heat_loss_kwh");
     assert!((kwh - num(&s, "mean_heat_loss_w") * 8.76).abs() < 1e-6 * kwh);
     assert!((1..=365).contains(&(num(&s, "design_day_of_year") as i64)));
+    // The design day as an ISO 8601 date without a year, the same in daily.csv's date column.
+    let date = s["design_date"].as_str().unwrap();
+    assert!(date.len() == 7 && date.starts_with("--"), "{date}");
+    let daily_text = std::fs::read_to_string(out.join("daily.csv")).unwrap();
+    let design_row = format!("{},{date},", num(&s, "design_day_of_year"));
+    assert!(
+        daily_text.lines().any(|l| l.starts_with(&design_row)),
+        "{design_row}"
+    );
     // The monthly file sums to the annual loss.
     let monthly = std::fs::read_to_string(out.join("monthly.csv")).unwrap();
     let sum: f64 = monthly

@@ -83,7 +83,14 @@ pub fn check_plots(out: &Path, summary: &Value) {
         .filter(|l| !l.starts_with('#'))
         .find(|l| l.split(',').next() == Some(&doy.to_string()))
         .unwrap();
-    let open: f64 = row.split(',').nth(4).unwrap().parse().unwrap();
+    let col = daily
+        .lines()
+        .next()
+        .unwrap()
+        .split(',')
+        .position(|h| h == "frost_depth_open_ground_m")
+        .unwrap();
+    let open: f64 = row.split(',').nth(col).unwrap().parse().unwrap();
     if open > 0.0 {
         let x_far = pts.iter().map(|p| p.0).fold(f64::MIN, f64::max);
         let z_far = pts

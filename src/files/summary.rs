@@ -294,6 +294,9 @@ pub struct Summary {
     pub frost_margin_definition: String,
     /// Day of year of the least frost margin, the day of the saved field.
     pub design_day_of_year: usize,
+    /// The same day as an ISO 8601 date without a year (`--MM-DD`).
+    #[serde(default)]
+    pub design_date: String,
     /// Frost-line temperature, °C.
     pub frost_line_temperature_c: f64,
     /// Relative energy-balance error of the reported period.
@@ -410,6 +413,7 @@ impl Summary {
             frost_margin_m: h.frost_margin_m,
             frost_margin_definition: MARGIN_DEFINITION.into(),
             design_day_of_year: h.design_day_of_year,
+            design_date: crate::physics::climate::calendar::month_day(h.design_day_of_year),
             frost_line_temperature_c: run::frost_line_c(case),
             energy_balance_error: y.energy_balance_error,
             spin_up_years: r.spin_up_years(),

@@ -4,7 +4,7 @@
 use super::{bad_file, read_text};
 use crate::case::Case;
 use crate::error::{Error, Result};
-use crate::physics::climate::month_of;
+use crate::physics::climate::{calendar::month_day, month_of};
 use crate::run::{Day, Records, RunResult, WinterResult};
 use serde::{Deserialize, Deserializer};
 use std::path::Path;
@@ -157,9 +157,9 @@ pub fn csv_bytes(
 pub fn daily(head: &str, r: &Records) -> Result<Csv> {
     csv_bytes(
         &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
-        &["day_of_year", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
+        &["day_of_year", "date", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
         r.days.iter().map(|d| {
-            vec![d.day_of_year.to_string(), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4)]
+            vec![d.day_of_year.to_string(), month_day(d.day_of_year), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4)]
         }),
     )
 }

@@ -93,6 +93,15 @@ pub fn day_month(doy: usize) -> String {
     format!("{} {}", d - STARTS[m] + 1, NAMES[m])
 }
 
+/// Day `doy` (1–365) of a 365-day year as an ISO 8601 date without a year, `--MM-DD` (the
+/// recurring-date form of ISO 8601:2000 §5.2.1.3 d, as XML Schema's gMonthDay): the reported year
+/// of a sinusoidal climate has no calendar year.
+pub fn month_day(doy: usize) -> String {
+    let d = (doy.max(1) - 1) % 365;
+    let (_, m, day) = civil_from_days(days_from_civil(2001, 1, 1) + d as i64);
+    format!("--{m:02}-{day:02}")
+}
+
 /// Month (0–11) of calendar day `d` (days since 1 January, 365-day year).
 pub fn month_of(d: f64) -> usize {
     const ENDS: [f64; 12] = [
@@ -139,6 +148,16 @@ fn year_spans(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// ISO 8601 dates without a year, `--MM-DD`, in a common (365-day) Gregorian year.
+    #[test]
+    fn month_day_dates() {
+        assert_eq!(month_day(1), "--01-01");
+        assert_eq!(month_day(59), "--02-28");
+        assert_eq!(month_day(60), "--03-01");
+        assert_eq!(month_day(203), "--07-22");
+        assert_eq!(month_day(365), "--12-31");
+    }
 
     /// Day-of-year labels in a 365-day year (month lengths of the Gregorian calendar, common year).
     #[test]
