@@ -152,6 +152,20 @@ fn kettle_hollow_house() {
         daily_text.lines().any(|l| l.starts_with(&design_row)),
         "{design_row}"
     );
+    // Spring thaw starts at the surface (common practice): on some day the open ground's frozen
+    // layer has thawed from the top (0 < top < bottom), as the frost-depth chart's band shows.
+    let head: Vec<&str> = daily_text.lines().next().unwrap().split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    let (top_c, bottom_c) = (
+        col("frost_top_open_ground_m"),
+        col("frost_depth_open_ground_m"),
+    );
+    assert!(daily_text.lines().skip(1).any(|l| {
+        let v: Vec<&str> = l.split(',').collect();
+        let top: f64 = v[top_c].parse().unwrap_or(f64::NAN);
+        let bottom: f64 = v[bottom_c].parse().unwrap();
+        top > 0.05 && bottom > top + 0.1
+    }));
     // The monthly file sums to the annual loss.
     let monthly = std::fs::read_to_string(out.join("monthly.csv")).unwrap();
     let sum: f64 = monthly

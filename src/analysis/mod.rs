@@ -164,6 +164,35 @@ pub fn frost_scalar_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
     f
 }
 
+/// Shallowest frozen point of column `i` at or below `z_from` (m), the top of the frozen layer
+/// (below a layer thawed from the surface in spring); `None` if nothing there is frozen. The
+/// mirror of [`frost_depth_column`]: above the shallowest cell j with s_j ≤ t_line the line lies
+/// at z = z_{j−1} + (s_{j−1} − t_line)/(s_{j−1} − s_j) (z_j − z_{j−1}); the face above j (or
+/// `z_from`) when there is no solid unfrozen cell j − 1 (frozen up to the surface).
+pub fn frost_top_column(
+    mesh: &Mesh,
+    net: &Network,
+    t: &[f64],
+    i: usize,
+    z_from: f64,
+    t_line: f64,
+) -> Option<f64> {
+    let g = &mesh.grid;
+    let s = |j: usize| {
+        let p = net.unk_of[g.id(i, j)];
+        (p != usize::MAX).then(|| frost_scalar(&net.materials[net.mat[p]], t[p]))
+    };
+    let j = (0..g.nz()).find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
+    let b = s(j)?;
+    let z = match (j > 0).then(|| s(j - 1)).flatten() {
+        Some(a) if a > b && g.zc(j - 1) >= z_from => {
+            g.zc(j - 1) + (a - t_line) / (a - b) * (g.zc(j) - g.zc(j - 1))
+        }
+        _ => g.ze[j],
+    };
+    Some(z.max(z_from))
+}
+
 /// Deepest frozen point of column `i` at or below `z_from` (m); `None` if nothing there is frozen.
 ///
 /// The frost line is where the frost scalar s ([`frost_scalar`]) equals `t_line`. Below the

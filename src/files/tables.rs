@@ -10,6 +10,10 @@ use serde::{Deserialize, Deserializer};
 use std::path::Path;
 
 /// A number that may be written as an empty cell (not finite).
+fn nan() -> f64 {
+    f64::NAN
+}
+
 fn f64_or_nan<'de, D: Deserializer<'de>>(d: D) -> std::result::Result<f64, D::Error> {
     let s = String::deserialize(d)?;
     Ok(if s.trim().is_empty() {
@@ -52,6 +56,12 @@ pub struct DailyRow {
     /// Signed distance between the frozen ground and the protected zone, m.
     #[serde(deserialize_with = "f64_or_nan")]
     pub frost_margin_m: f64,
+    /// Top of the frozen layer in open ground, m (empty: no frost; absent in older runs).
+    #[serde(default = "nan", deserialize_with = "f64_or_nan")]
+    pub frost_top_open_ground_m: f64,
+    /// Top of the frozen layer just outside the footing's outer face, m.
+    #[serde(default = "nan", deserialize_with = "f64_or_nan")]
+    pub frost_top_at_footing_face_m: f64,
 }
 
 impl From<&DailyRow> for Day {
@@ -62,6 +72,8 @@ impl From<&DailyRow> for Day {
             indoor_c: r.indoor_temperature_c,
             heat_loss_w: r.ground_heat_loss_w,
             frost_open_m: r.frost_depth_open_ground_m,
+            frost_top_open_m: r.frost_top_open_ground_m,
+            frost_top_face_m: r.frost_top_at_footing_face_m,
             frost_face_m: r.frost_depth_at_footing_face_m,
             frost_footing_m: r.frost_depth_under_footing_m,
             frost_beside_wall_m: r.frost_depth_beside_wall_m,
@@ -157,9 +169,9 @@ pub fn csv_bytes(
 pub fn daily(head: &str, r: &Records) -> Result<Csv> {
     csv_bytes(
         &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
-        &["day_of_year", "date", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m"],
+        &["day_of_year", "date", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m", "frost_top_open_ground_m", "frost_top_at_footing_face_m"],
         r.days.iter().map(|d| {
-            vec![d.day_of_year.to_string(), month_day(d.day_of_year), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4)]
+            vec![d.day_of_year.to_string(), month_day(d.day_of_year), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4), fmt(d.frost_top_open_m, 4), fmt(d.frost_top_face_m, 4)]
         }),
     )
 }

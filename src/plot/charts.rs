@@ -10,6 +10,7 @@ use std::path::{Path, PathBuf};
 pub const SIZE: (u32, u32) = (1000, 560);
 const OPEN: RGBColor = RGBColor(33, 74, 160);
 const FOOT: RGBColor = RGBColor(196, 78, 52);
+const FACE: RGBColor = RGBColor(120, 60, 150);
 
 /// The legend box every chart uses.
 fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTranslate>(
@@ -87,31 +88,84 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .light_line_style(RGBColor(235, 235, 235))
         .draw()
         .map_err(out_err)?;
-    chart
-        .draw_series(LineSeries::new(
-            d.days
-                .iter()
-                .enumerate()
-                .map(|(k, x)| (k as f64, x.frost_open_m)),
-            OPEN.stroke_width(2),
-        ))
-        .map_err(out_err)?
-        .label("open ground (far edge)")
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], OPEN.stroke_width(2)));
-    chart
-        .draw_series(LineSeries::new(
-            d.days
-                .iter()
-                .enumerate()
-                .map(|(k, x)| (k as f64, x.frost_footing_m)),
-            FOOT.stroke_width(3),
-        ))
-        .map_err(out_err)?
-        .label("under the footing")
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
+    // The frozen layer as a band from its top (thawed from the surface in spring) to its
+    // bottom, over the days it exists: nothing is drawn on the axis while there is no frost.
+    type Layer = fn(&crate::run::Day) -> (f64, f64);
+    let bands: [(&str, RGBColor, Layer); 2] = [
+        ("frozen layer, open ground (far edge)", OPEN, |x| {
+            (x.frost_top_open_m, x.frost_open_m)
+        }),
+        ("frozen layer at the footing's outer face", FACE, |x| {
+            (x.frost_top_face_m, x.frost_face_m)
+        }),
+    ];
+    for (label, colour, layer) in bands {
+        let runs = frozen_runs(d, layer);
+        for (r, run) in runs.iter().enumerate() {
+            // Without the layer's top (a 3D run's section, or an older run) only its bottom.
+            if run.iter().all(|p| p.1.is_finite()) {
+                let mut poly: Vec<(f64, f64)> = run.iter().map(|&(k, top, _)| (k, top)).collect();
+                poly.extend(run.iter().rev().map(|&(k, _, bottom)| (k, bottom)));
+                chart
+                    .draw_series(std::iter::once(Polygon::new(
+                        poly,
+                        colour.mix(0.3).filled(),
+                    )))
+                    .map_err(out_err)?;
+            }
+            let s = chart
+                .draw_series(LineSeries::new(
+                    run.iter().map(|&(k, _, bottom)| (k, bottom)),
+                    colour.stroke_width(2),
+                ))
+                .map_err(out_err)?;
+            if r == 0 {
+                s.label(label).legend(move |(x, y)| {
+                    Rectangle::new([(x, y - 5), (x + 20, y + 5)], colour.mix(0.5).filled())
+                });
+            }
+        }
+    }
+    // Frost below the footing base, where there is any.
+    let under = frozen_runs(d, |x| (d.footing_base_depth_m, x.frost_footing_m));
+    for (r, run) in under.iter().enumerate() {
+        let s = chart
+            .draw_series(LineSeries::new(
+                run.iter().map(|&(k, _, bottom)| (k, bottom)),
+                FOOT.stroke_width(3),
+            ))
+            .map_err(out_err)?;
+        if r == 0 {
+            s.label("under the footing (below its base)")
+                .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
+        }
+    }
     footing_base_line(&mut chart, 0.0, n, d.footing_base_depth_m)?;
     legend(&mut chart, SeriesLabelPosition::LowerLeft)?;
     root.present().map_err(out_err)
+}
+
+/// The runs of consecutive days on which `layer` (top, bottom of the frozen layer, m) has frost
+/// (bottom > top, or bottom > 0 with an unknown top, kept as NaN): for each day its index, top
+/// and bottom.
+fn frozen_runs(
+    d: &PlotData,
+    layer: impl Fn(&crate::run::Day) -> (f64, f64),
+) -> Vec<Vec<(f64, f64, f64)>> {
+    let mut runs: Vec<Vec<(f64, f64, f64)>> = Vec::new();
+    let mut cur = Vec::new();
+    for (k, x) in d.days.iter().enumerate() {
+        let (top, bottom) = layer(x);
+        if bottom.is_finite() && bottom > if top.is_finite() { top + 1e-6 } else { 0.0 } {
+            cur.push((k as f64, top, bottom));
+        } else if !cur.is_empty() {
+            runs.push(std::mem::take(&mut cur));
+        }
+    }
+    if !cur.is_empty() {
+        runs.push(cur);
+    }
+    runs
 }
 
 fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -> Result<()> {

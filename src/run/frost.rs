@@ -79,6 +79,10 @@ impl ProtectedZone {
 pub struct FrostMeasures {
     /// Frost depth in open ground (the far edge of the domain).
     pub open_m: f64,
+    /// Top of the frozen layer in open ground (NaN: no frost, or not computed).
+    pub open_top_m: f64,
+    /// Top of the frozen layer just outside the footing's outer face (NaN: none).
+    pub at_face_top_m: f64,
     /// Frost depth on the vertical line just outside the footing's outer face.
     pub at_face_m: f64,
     /// Deepest frozen point below the footing base within the footing's width (0: none).
@@ -132,6 +136,9 @@ impl FrostLines {
     /// The frost measures of the state `t` (°C of the unknowns).
     pub fn measure(&self, mesh: &Mesh, net: &Network, t: &[f64]) -> FrostMeasures {
         let depth = |i: usize, from: f64| frost_depth_column(mesh, net, t, i, from, self.t_line);
+        let top = |i: usize| {
+            crate::analysis::frost_top_column(mesh, net, t, i, 0.0, self.t_line).unwrap_or(f64::NAN)
+        };
         let deepest = |cols: &[usize], from: f64| {
             cols.iter()
                 .filter_map(|&i| depth(i, from))
@@ -140,7 +147,9 @@ impl FrostLines {
         let (margin, corner) = self.margin(mesh, net, t);
         FrostMeasures {
             open_m: depth(self.open, 0.0).unwrap_or(0.0),
+            open_top_m: top(self.open),
             at_face_m: depth(self.face, 0.0).unwrap_or(0.0),
+            at_face_top_m: top(self.face),
             under_footing_m: deepest(&self.footing, self.zone.base_z),
             beside_wall_m: deepest(&self.beside_wall, 0.0),
             corner_distance_m: corner,

@@ -400,7 +400,9 @@ impl Observer for Quarter3<'_> {
             .chain(std::iter::once(&today.corner));
         let mut fm = FrostMeasures {
             open_m: open,
+            open_top_m: f64::NAN,
             at_face_m: 0.0,
+            at_face_top_m: f64::NAN,
             under_footing_m: 0.0,
             beside_wall_m: 0.0,
             corner_distance_m: corner_dist,

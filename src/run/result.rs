@@ -5,6 +5,10 @@ use crate::mesh::Mesh;
 use crate::solver::SolverStats;
 use ndarray::{Array2, Array3};
 
+fn nan() -> f64 {
+    f64::NAN
+}
+
 /// One day of the reported year.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Day {
@@ -18,6 +22,12 @@ pub struct Day {
     pub heat_loss_w: f64,
     /// Frost depth in open ground at the far edge, end of day, m.
     pub frost_open_m: f64,
+    /// Top of the frozen layer there, m (NaN: no frost, or not computed).
+    #[serde(default = "nan")]
+    pub frost_top_open_m: f64,
+    /// Top of the frozen layer just outside the footing's outer face, m (NaN: none).
+    #[serde(default = "nan")]
+    pub frost_top_face_m: f64,
     /// Frost depth just outside the footing's outer face, end of day, m.
     pub frost_face_m: f64,
     /// Deepest frozen point below the footing base within the footing's width, end of day, m
