@@ -164,6 +164,19 @@ pub fn frost_scalar_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
     f
 }
 
+/// The frost scalar of cell j of column `i` (None for air).
+fn column_scalar<'a>(
+    mesh: &'a Mesh,
+    net: &'a Network,
+    t: &'a [f64],
+    i: usize,
+) -> impl Fn(usize) -> Option<f64> + 'a {
+    move |j| {
+        let p = net.unk_of[mesh.grid.id(i, j)];
+        (p != usize::MAX).then(|| frost_scalar(&net.materials[net.mat[p]], t[p]))
+    }
+}
+
 /// Shallowest frozen point of column `i` at or below `z_from` (m), the top of the frozen layer
 /// (below a layer thawed from the surface in spring); `None` if nothing there is frozen. The
 /// mirror of [`frost_depth_column`]: above the shallowest cell j with s_j ≤ t_line the line lies
@@ -178,10 +191,7 @@ pub fn frost_top_column(
     t_line: f64,
 ) -> Option<f64> {
     let g = &mesh.grid;
-    let s = |j: usize| {
-        let p = net.unk_of[g.id(i, j)];
-        (p != usize::MAX).then(|| frost_scalar(&net.materials[net.mat[p]], t[p]))
-    };
+    let s = column_scalar(mesh, net, t, i);
     let j = (0..g.nz()).find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
     let b = s(j)?;
     let z = match (j > 0).then(|| s(j - 1)).flatten() {
@@ -210,10 +220,7 @@ pub fn frost_depth_column(
     t_line: f64,
 ) -> Option<f64> {
     let g = &mesh.grid;
-    let s = |j: usize| {
-        let p = net.unk_of[g.id(i, j)];
-        (p != usize::MAX).then(|| frost_scalar(&net.materials[net.mat[p]], t[p]))
-    };
+    let s = column_scalar(mesh, net, t, i);
     let j = (0..g.nz())
         .rev()
         .find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
