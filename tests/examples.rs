@@ -214,6 +214,14 @@ fn kettle_hollow_house() {
     assert!(soil["freezing_interval_c"].is_array());
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("Properties used") && report.contains("insulation[2] (wing)"));
+    // The dimensioned sketch is drawn (check_plots validated every listed image) and embedded.
+    let index = read_json(&out.join("plots.json"));
+    assert!(index["plots"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|p| p["file"] == "foundation_sketch.svg"));
+    assert!(report.contains("fig-foundation_sketch"));
     // Re-render from the saved results for another day and window, with the animation.
     let out_s = out.as_os_str();
     run_ok(&[

@@ -134,6 +134,7 @@ pub fn check_report(out: &Path, summary: &Value) {
     for fig in [
         "soil_temperature",
         "soil_temperature_zoom",
+        "foundation_sketch",
         "frost_depth",
         "heat_loss",
         "probes",
@@ -143,7 +144,7 @@ pub fn check_report(out: &Path, summary: &Value) {
             "figure {fig}"
         );
     }
-    assert_eq!(html.matches("src=\"data:image/png;base64,").count(), 5);
+    assert_eq!(html.matches("src=\"data:image/png;base64,").count(), 6);
     assert!(html.contains("Results are engineering estimates"));
     assert!(html.contains("ISO 13370") && html.contains("modified Berggren"));
     let kwh = format!("{:.0}", summary["annual_heat_loss_kwh"].as_f64().unwrap());

@@ -158,6 +158,41 @@ pub(crate) fn field_size(v: View) -> (u32, u32) {
     )
 }
 
+/// An axis label in metres: two decimals at most, no trailing zeros beyond the first, no "−0".
+fn metres(v: f64) -> String {
+    let v = if v.abs() < 5e-4 { 0.0 } else { v };
+    let s = format!("{v:.2}");
+    s.strip_suffix('0').map_or(s.clone(), str::to_string)
+}
+
+/// A section chart on `area` for view `v` (equal scales are the caller's sizing): caption, axes
+/// in metres with depth increasing downwards, no grid.
+pub(crate) fn section_chart<'a, DB: DrawingBackend>(
+    area: &'a DrawingArea<DB, Shift>,
+    title: &str,
+    v: View,
+    x_desc: &str,
+) -> Result<Section2d<'a, DB>> {
+    let mut chart = ChartBuilder::on(area)
+        .caption(title, ("sans-serif", 18))
+        .margin(15)
+        .x_label_area_size(45)
+        .y_label_area_size(60)
+        .build_cartesian_2d(v.x0..v.x1, v.z1..v.z0)
+        .map_err(out_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc(x_desc)
+        .y_desc("depth z (m) below ground")
+        .x_label_formatter(&|v: &f64| metres(*v))
+        .y_label_formatter(&|v: &f64| metres(*v))
+        .label_style(("sans-serif", 13))
+        .draw()
+        .map_err(out_err)?;
+    Ok(chart)
+}
+
 /// A chart of the section in metres.
 pub(crate) type Section2d<'a, DB> =
     ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
@@ -355,21 +390,7 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
     root.fill(&WHITE).map_err(out_err)?;
     let (w, _) = root.dim_in_pixel();
     let (left, right) = root.split_horizontally(w.saturating_sub(110));
-    let mut chart = ChartBuilder::on(&left)
-        .caption(title, ("sans-serif", 18))
-        .margin(15)
-        .x_label_area_size(45)
-        .y_label_area_size(60)
-        .build_cartesian_2d(v.x0..v.x1, v.z1..v.z0)
-        .map_err(out_err)?;
-    chart
-        .configure_mesh()
-        .disable_mesh()
-        .x_desc(f.x_desc)
-        .y_desc("depth z (m) below ground")
-        .label_style(("sans-serif", 13))
-        .draw()
-        .map_err(out_err)?;
+    let mut chart = section_chart(&left, title, v, f.x_desc)?;
     let field = &f.t[..];
     // The field shaded smoothly, one pixel at a time (see `shade`).
     let size = chart.plotting_area().dim_in_pixel();
@@ -455,4 +476,18 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
     draw_colour_bar(&right, (tmin, tmax), f.frost_line_c)?;
     root.present().map_err(out_err)?;
     Ok(frost)
+}
+
+#[cfg(test)]
+mod tests {
+    /// Axis labels: 0.25 stays 0.25, 0.5 and 1 read 0.5 and 1.0, −0 reads 0.0.
+    #[test]
+    fn metre_labels() {
+        let l = super::metres;
+        assert_eq!(l(0.25), "0.25");
+        assert_eq!(l(0.5), "0.5");
+        assert_eq!(l(1.0), "1.0");
+        assert_eq!(l(-1e-12), "0.0");
+        assert_eq!(l(-1.75), "-1.75");
+    }
 }

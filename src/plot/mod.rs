@@ -306,6 +306,8 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         &format!("frost_line_{doy:03}.csv"),
         &crate::files::section::frost_line_csv(&frost),
     )?);
+    let sketch_size = sketch::render(out, &d, &mut files)?;
+    sizes.push(("foundation_sketch", sketch_size));
     charts::frost_depth(out, &d, &mut files)?;
     charts::heat_loss(out, &d, &mut files)?;
     if !d.probe_names.is_empty() {
@@ -344,5 +346,6 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
 }
 
 pub mod charts;
+mod sketch;
 pub mod three;
 mod tradeoff;
