@@ -8,6 +8,7 @@ mod examples;
 mod iso13370;
 mod plots;
 mod regression;
+mod schema;
 mod sizing;
 mod three_d;
 mod trust;
