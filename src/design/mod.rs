@@ -97,11 +97,33 @@ pub fn toml_key(d: Dimension) -> &'static str {
     }
 }
 
-/// The name of a varied dimension in messages and headers: `insulation[k].width_m` or
-/// `footing.base_depth_m`.
-pub fn dimension_label(v: &Vary) -> String {
+/// The name of a varied dimension in messages and headers, by the piece's kind as the case file
+/// names it: `wing.width_m`, or `wing (insulation[2]).width_m` when the case has more than one
+/// piece of that kind; `footing.base_depth_m`.
+pub fn dimension_label(case: &Case, v: &Vary) -> String {
+    let kind = |k: &InsulationKind| match k {
+        InsulationKind::UnderSlab { .. } => "under_slab",
+        InsulationKind::VerticalOutside { .. } => "vertical_outside",
+        InsulationKind::VerticalInside { .. } => "vertical_inside",
+        InsulationKind::Wing { .. } => "wing",
+    };
     match v.insulation {
-        Some(i) => format!("insulation[{i}].{}", toml_key(v.dimension)),
+        Some(i) => {
+            let name = case
+                .insulation
+                .get(i)
+                .map_or("insulation", |p| kind(&p.kind));
+            let same = case
+                .insulation
+                .iter()
+                .filter(|p| kind(&p.kind) == name)
+                .count();
+            if same == 1 {
+                format!("{name}.{}", toml_key(v.dimension))
+            } else {
+                format!("{name} (insulation[{i}]).{}", toml_key(v.dimension))
+            }
+        }
         None => "footing.base_depth_m".into(),
     }
 }
@@ -530,9 +552,7 @@ mod tests {
             "{}",
             cost_per_m(&c, &s)
         );
-        assert_eq!(
-            dimension_label(&s.vary[0]),
-            format!("insulation[{}].width_m", s.vary[0].insulation.unwrap())
-        );
+        // Named by the piece's kind (the case has one wing).
+        assert_eq!(dimension_label(&case, &s.vary[0]), "wing.width_m");
     }
 }

@@ -79,7 +79,7 @@ impl SizingFile {
             caution: SIZING_CAUTION.into(),
             margin_m: r.margin_m,
             margin_meaning: r.margin_meaning.clone(),
-            dimensions: r.vary.iter().map(dimension_label).collect(),
+            dimensions: r.vary.iter().map(|v| dimension_label(case, v)).collect(),
             vary: r.vary.clone(),
             no_insulation_needed: r.no_insulation_needed.clone(),
             baseline_without_varied_insulation: r.baseline.clone(),
