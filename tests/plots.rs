@@ -43,6 +43,12 @@ pub fn check_plots(out: &Path, summary: &Value) {
             assert_eq!(svg_size(&text), Some(size), "{file}");
             assert!(text.trim_end().ends_with("</svg>"), "{file} not closed");
             assert_eq!(text.matches("<svg").count(), 1);
+            // Embedded rasters (the field's shading) as RFC 2397 data URLs of type image/png.
+            assert_eq!(
+                text.matches("<image").count(),
+                text.matches("href=\"data:image/png;base64,").count(),
+                "{file}"
+            );
         } else if file.ends_with(".gif") {
             assert!(
                 bytes.starts_with(b"GIF89a") || bytes.starts_with(b"GIF87a"),

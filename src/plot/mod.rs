@@ -109,6 +109,9 @@ macro_rules! render_both {
             let root = SVGBackend::with_string(&mut svg, size).into_drawing_area();
             $draw(&root, $($arg),*)?;
         }
+        // plotters-svg writes embedded images as `data:png;…`; the media type is image/png
+        // (RFC 2397 data URLs, IANA media types), which strict SVG viewers require.
+        let svg = svg.replace("href=\"data:png;base64,", "href=\"data:image/png;base64,");
         let png = crate::plot::png_bytes(&rgb, size)?;
         $files.push(crate::files::write_atomic($dir, &format!("{}.png", $stem), &png)?);
         $files.push(crate::files::write_atomic($dir, &format!("{}.svg", $stem), svg.as_bytes())?);
