@@ -252,7 +252,7 @@ pub enum MethodArg {
 pub struct PlotArgs {
     /// Directory of a finished run (its --out).
     pub dir: PathBuf,
-    /// Day of year of the field plots (default: the day of deepest frost).
+    /// Day of year of the field plots (default: the design day, the least frost margin).
     #[arg(long)]
     pub day: Option<usize>,
     /// Window of the zoomed field plot: x0,x1,z0,z1 in m (e.g. -1.5,2.5,-0.3,2.2).

@@ -48,7 +48,7 @@ pub struct SectionFile {
     pub footing_x_m: (f64, f64),
     /// Frost-line temperature, °C.
     pub frost_line_c: f64,
-    /// Day of year of the deepest frost (the default field day).
+    /// Day of year of the least frost margin (the design day, the default field day).
     pub field_day_of_year: usize,
     /// Days stored in `fields.i16` (in `daily.csv` order).
     pub days: usize,

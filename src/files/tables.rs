@@ -241,7 +241,7 @@ pub fn field(head: &str, r: &RunResult) -> Result<Csv> {
     let g = &r.mesh.grid;
     let t = &r.field.t;
     csv_bytes(
-        &format!("{head}\nCell-centre temperatures on day {} of the year (deepest frost), solid cells only.", r.field.day_of_year),
+        &format!("{head}\nCell-centre temperatures on day {} of the year (the design day: least frost margin), solid cells only.", r.field.day_of_year),
         &["x_m", "z_m", "temperature_c"],
         (0..g.nz()).flat_map(|j| (0..g.nx()).map(move |i| (i, j))).filter_map(|(i, j)| {
             let v = t[[j, i]];

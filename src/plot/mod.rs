@@ -17,7 +17,7 @@ use std::path::{Path, PathBuf};
 /// What to render.
 #[derive(Debug, Clone, Default)]
 pub struct PlotOptions {
-    /// Day of year of the field plots (default: the run's day of deepest frost).
+    /// Day of year of the field plots (default: the run's design day, the least frost margin).
     pub day_of_year: Option<usize>,
     /// Zoom window x0, x1, z0, z1 (m) for the zoomed field plot.
     pub zoom: Option<[f64; 4]>,

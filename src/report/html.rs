@@ -32,7 +32,7 @@ fn row(out: &mut String, name: &str, unit: &str, model: String, check: String, m
 
 /// The figures the report embeds, in order: (file stem, caption).
 pub const FIGURES: &[(&str, &str)] = &[
-    ("soil_temperature", "Soil temperature on the day of deepest frost, over the part of the half-section where it varies; bold black line: frost line, also the boundary of the blue (frozen) shading."),
+    ("soil_temperature", "Soil temperature on the design day (the least frost margin), over the part of the half-section where it varies; bold black line: frost line, also the boundary of the blue (frozen) shading."),
     ("soil_temperature_zoom", "The same field around the footing."),
     ("foundation_sketch", "The foundation as modelled: every part numbered, with its size and position in the key; the footing base's depth; soil-layer boundaries dashed."),
     ("frost_depth", "Frost depth in open ground and under the footing over the reported year, with the footing base."),
