@@ -158,6 +158,43 @@ pub(crate) fn field_size(v: View) -> (u32, u32) {
     )
 }
 
+/// The colour bar's ticks over [lo, hi] (°C): multiples of a round step (1, 2 or 5 × 10^k, about
+/// six intervals) and both ends, an inner tick closer than 0.4 step to an end left out; labels
+/// without spurious decimals.
+fn bar_ticks(lo: f64, hi: f64) -> Vec<(f64, String)> {
+    let raw = ((hi - lo) / 6.0).max(1e-9);
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
+    let digits = |v: f64| {
+        if (v - v.round()).abs() < 1e-9 {
+            0
+        } else if (v * 10.0 - (v * 10.0).round()).abs() < 1e-6 {
+            1
+        } else {
+            2
+        }
+    };
+    let label = |v: f64| {
+        let v = if v.abs() < 1e-9 { 0.0 } else { v };
+        let d = digits(v);
+        format!("{v:.d$}")
+    };
+    let mut t = vec![(lo, label(lo))];
+    let mut k = (lo / step).floor() + 1.0;
+    while k * step <= hi - 0.4 * step + 1e-9 {
+        if k * step >= lo + 0.4 * step - 1e-9 {
+            t.push((k * step, label(k * step)));
+        }
+        k += 1.0;
+    }
+    t.push((hi, label(hi)));
+    t
+}
+
 /// An axis label in metres: two decimals at most, no trailing zeros beyond the first, no "−0".
 fn metres(v: f64) -> String {
     let v = if v.abs() < 5e-4 { 0.0 } else { v };
@@ -307,15 +344,25 @@ pub(crate) fn draw_colour_bar<DB: DrawingBackend>(
         .caption("°C", ("sans-serif", 15))
         .build_cartesian_2d(0.0..1.0, tmin..tmax)
         .map_err(out_err)?;
-    // Whole degrees when the range is wide enough, so ticks carry no spurious decimals.
-    let digits = if tmax - tmin >= 5.0 { 0 } else { 1 };
     bar.configure_mesh()
         .disable_mesh()
         .disable_x_axis()
-        .y_label_formatter(&|v: &f64| format!("{v:.digits$}"))
-        .label_style(("sans-serif", 12))
+        .y_labels(0)
         .draw()
         .map_err(out_err)?;
+    // Ticks of our own: round values 1, 2 or 5 × 10^k apart, and both ends labelled.
+    let base = area.get_base_pixel();
+    use plotters::style::text_anchor::{HPos, Pos, VPos};
+    let style =
+        TextStyle::from(("sans-serif", 12).into_font()).pos(Pos::new(HPos::Right, VPos::Center));
+    for (v, text) in bar_ticks(tmin, tmax) {
+        let (px, py) = bar.backend_coord(&(0.0, v));
+        let (x, y) = (px - base.0, py - base.1);
+        area.draw(&PathElement::new(vec![(x - 5, y), (x, y)], BLACK))
+            .map_err(out_err)?;
+        area.draw(&Text::new(text, (x - 8, y), style.clone()))
+            .map_err(out_err)?;
+    }
     let n = 200;
     bar.draw_series((0..n).map(|k| {
         let a = tmin + (tmax - tmin) * k as f64 / n as f64;
@@ -489,5 +536,20 @@ mod tests {
         assert_eq!(l(1.0), "1.0");
         assert_eq!(l(-1e-12), "0.0");
         assert_eq!(l(-1.75), "-1.75");
+    }
+
+    /// Colour-bar ticks: both ends labelled, round steps between, nothing crowding an end.
+    #[test]
+    fn colour_bar_ticks() {
+        let t: Vec<String> = super::bar_ticks(-10.0, 20.0)
+            .into_iter()
+            .map(|p| p.1)
+            .collect();
+        assert_eq!(t, ["-10", "-5", "0", "5", "10", "15", "20"]);
+        let t: Vec<String> = super::bar_ticks(-3.4, 17.0)
+            .into_iter()
+            .map(|p| p.1)
+            .collect();
+        assert_eq!(t, ["-3.4", "0", "5", "10", "15", "17"]);
     }
 }
