@@ -13,7 +13,7 @@ const FOOT: RGBColor = RGBColor(196, 78, 52);
 const FACE: RGBColor = RGBColor(120, 60, 150);
 
 /// The legend box every chart uses.
-fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTranslate>(
+pub(super) fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTranslate>(
     chart: &mut ChartContext<'a, DB, CT>,
     position: SeriesLabelPosition,
 ) -> Result<()> {

@@ -19,6 +19,11 @@ pub(crate) struct View {
 
 /// The pieces of a polyline that lie inside the view (split where it leaves, so no chord is drawn
 /// across the part outside).
+/// Cell centres of the cells between consecutive `edges`.
+pub(crate) fn centres(edges: &[f64]) -> Vec<f64> {
+    edges.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect()
+}
+
 /// Each run ends on the view's border where the line crosses it (found by bisection of the
 /// segment), so lines reach the edge of the picture.
 pub(crate) fn runs_inside(
@@ -64,9 +69,9 @@ pub(crate) fn runs_inside(
 fn padded(f: &FieldView) -> (Vec<f64>, Vec<f64>, Vec<f64>, Vec<f64>) {
     let (nx, nz) = (f.xe.len() - 1, f.ze.len() - 1);
     let mut xs = vec![f.xe[0]];
-    xs.extend(f.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])));
+    xs.extend(centres(f.xe));
     xs.push(f.xe[nx]);
-    let mut zs: Vec<f64> = f.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let mut zs = centres(f.ze);
     zs.push(f.ze[nz]);
     let pad = |v: &[f64]| {
         let mut out = Vec::with_capacity((nx + 2) * (nz + 1));
@@ -94,8 +99,7 @@ const VIEW_HORIZONTAL_K_PER_M: f64 = 0.1;
 /// building stays visible.
 pub(crate) fn physics_view(f: &FieldView, full: View, keep: View) -> View {
     let (nx, nz) = (f.xe.len() - 1, f.ze.len() - 1);
-    let xc: Vec<f64> = f.xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
-    let zc: Vec<f64> = f.ze.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let (xc, zc) = (centres(f.xe), centres(f.ze));
     let mut b = keep;
     let t = |i: usize, j: usize| f.t[j * nx + i];
     // |T(i2, j2) − T(i, j)| over distance d exceeds `g` (K/m), both cells solid.
@@ -288,6 +292,15 @@ pub(crate) fn draw_isotherms<DB: DrawingBackend>(
     Ok(())
 }
 
+/// The outline colour of a construction part's kind (concrete, fill, insulation).
+pub(crate) fn outline_colour(kind: &str) -> RGBColor {
+    match kind {
+        "concrete" => RGBColor(40, 40, 40),
+        "insulation" => RGBColor(220, 0, 140),
+        _ => RGBColor(130, 90, 40),
+    }
+}
+
 /// Outlines of the construction parts by kind (concrete dark grey, fill brown, insulation
 /// magenta), with a legend entry for each kind in view.
 pub(crate) fn draw_outlines<DB: DrawingBackend>(
@@ -296,11 +309,12 @@ pub(crate) fn draw_outlines<DB: DrawingBackend>(
     v: View,
 ) -> Result<()> {
     let kinds = [
-        ("concrete", RGBColor(40, 40, 40), "concrete"),
-        ("fill", RGBColor(130, 90, 40), "fill and backfill"),
-        ("insulation", RGBColor(220, 0, 140), "insulation"),
+        ("concrete", "concrete"),
+        ("fill", "fill and backfill"),
+        ("insulation", "insulation"),
     ];
-    for (kind, colour, label) in kinds {
+    for (kind, label) in kinds {
+        let colour = outline_colour(kind);
         let rects: Vec<[(f64, f64); 2]> = parts
             .iter()
             .filter(|p| p.kind == kind)

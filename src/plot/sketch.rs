@@ -2,7 +2,7 @@
 //! section (`section.json`): every construction part filled by kind and numbered, the ground
 //! line, the soil-layer boundaries, the footing base's depth dimensioned, and a key listing each
 //! part's thickness, width and position in metres.
-use super::field::{field_size, strata_boundaries, View};
+use super::field::{field_size, outline_colour, strata_boundaries, View};
 use super::{data::PlotData, out_err};
 use crate::error::Result;
 use plotters::coord::Shift;
@@ -113,11 +113,6 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
         "insulation" => RGBColor(250, 190, 225),
         _ => RGBColor(205, 175, 130),
     };
-    let edge_of = |kind: &str| match kind {
-        "concrete" => RGBColor(40, 40, 40),
-        "insulation" => RGBColor(220, 0, 140),
-        _ => RGBColor(130, 90, 40),
-    };
     // Fill first, so the thinner parts drawn later stay visible.
     let mut order: Vec<usize> = (0..d.parts.len()).collect();
     order.sort_by_key(|&k| (d.parts[k].kind != "fill", d.parts[k].kind == "insulation"));
@@ -130,7 +125,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
         chart
             .draw_series([
                 Rectangle::new(r, fill_of(&p.kind).filled()),
-                Rectangle::new(r, edge_of(&p.kind).stroke_width(2)),
+                Rectangle::new(r, outline_colour(&p.kind).stroke_width(2)),
             ])
             .map_err(out_err)?;
     }

@@ -163,8 +163,7 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
         });
     chart.draw_series(cells).map_err(out_err)?;
     // Contours of frost depth, labelled in metres; the footing base depth bold and dashed.
-    let xs: Vec<f64> = xe.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
-    let ys: Vec<f64> = ye.windows(2).map(|w| 0.5 * (w[0] + w[1])).collect();
+    let (xs, ys) = (super::field::centres(&xe), super::field::centres(&ye));
     let inside = |&(x, y): &(f64, f64)| x >= v.x0 && x <= v.x1 && y >= v.z0 && y <= v.z1;
     let step = contour_step(max);
     let mut level = step;

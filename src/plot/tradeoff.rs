@@ -3,7 +3,7 @@
 //! with one, the frost margin of every evaluated value against the required margin. Bottom: the
 //! annual ground heat loss of the same designs against the foundation without the varied
 //! insulation. The chosen (least-cost) design is marked in both.
-use super::charts::SIZE;
+use super::charts::{legend, SIZE};
 use super::out_err;
 use crate::design::Design;
 use crate::error::Result;
@@ -114,18 +114,15 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
         .label("chosen (least cost)")
         .legend(|(x, y)| Circle::new((x + 9, y), 5, CHOSEN.stroke_width(2)));
     }
-    c.configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        // Away from the curve: the least second dimension falls with the first, the margin rises.
-        .position(if two {
+    // Away from the curve: the least second dimension falls with the first, the margin rises.
+    legend(
+        &mut c,
+        if two {
             SeriesLabelPosition::UpperRight
         } else {
             SeriesLabelPosition::UpperLeft
-        })
-        .draw()
-        .map_err(out_err)?;
+        },
+    )?;
     // Bottom panel: annual heat loss.
     let base = f.baseline_without_varied_insulation.annual_heat_loss_kwh;
     let (h0, h1) = padded(
@@ -173,13 +170,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
         )))
         .map_err(out_err)?;
     }
-    c.configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 13))
-        .position(SeriesLabelPosition::UpperRight)
-        .draw()
-        .map_err(out_err)?;
+    legend(&mut c, SeriesLabelPosition::UpperRight)?;
     root.present().map_err(out_err)
 }
 

@@ -389,11 +389,7 @@ impl AmgSolver {
                 for _ in 1..self.params.passes {
                     // Aggregate the aggregates (their coarse matrix's strong couplings).
                     let (mut ac, t) = coarse_pattern(&last.a, &agg, nc);
-                    for (&s, &v) in t.iter().zip(&last.a.val) {
-                        if s != u32::MAX {
-                            ac.val[s as usize] += v;
-                        }
-                    }
+                    sum_into(&t, &last.a.val, &mut ac.val);
                     let (mut agg2, mut nc2) = aggregate(&ac, &self.params);
                     for g in agg2.iter_mut().filter(|g| **g == u32::MAX) {
                         *g = nc2 as u32;
@@ -433,11 +429,7 @@ impl AmgSolver {
         let (lo, hi) = self.levels.split_at_mut(l + 1);
         let (f, c) = (&lo[l], &mut hi[0].a);
         c.val.iter_mut().for_each(|v| *v = 0.0);
-        for (&t, &v) in f.to_coarse.iter().zip(&f.a.val) {
-            if t != u32::MAX {
-                c.val[t as usize] += v;
-            }
-        }
+        sum_into(&f.to_coarse, &f.a.val, &mut c.val);
     }
 
     /// Solve A x = rhs in place (x starts from 0); `vals` is A's lower triangle in the pattern's
@@ -493,6 +485,15 @@ impl AmgSolver {
             Err(Error::Method(format!(
                 "multigrid conjugate gradients: no convergence in {it} iterations"
             )))
+        }
+    }
+}
+
+/// Add each fine entry into its coarse slot (`to_coarse`, u32::MAX: none): (A_c)_IJ += a_ij.
+fn sum_into(to_coarse: &[u32], fine: &[f64], coarse: &mut [f64]) {
+    for (&t, &v) in to_coarse.iter().zip(fine) {
+        if t != u32::MAX {
+            coarse[t as usize] += v;
         }
     }
 }
