@@ -160,6 +160,11 @@ pub struct RunArgs {
     /// Also write soil_temperature.gif, the field through the year.
     #[arg(long)]
     pub animate: bool,
+    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
+    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
+    /// graphics at any size; the animation stays at 96.
+    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
+    pub dpi: Option<u32>,
     /// Standard output: the result table, or summary.json for pipes.
     #[arg(long, value_enum, default_value_t = FormatArg::Table)]
     pub format: FormatArg,
@@ -214,6 +219,11 @@ pub struct SizeArgs {
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
+    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
+    /// graphics at any size; the animation stays at 96.
+    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
+    pub dpi: Option<u32>,
 }
 
 /// Arguments of `soil`.
@@ -265,6 +275,11 @@ pub struct PlotArgs {
     /// the run directory (created if missing), so the run's own figures stay as they are.
     #[arg(long, short)]
     pub out: Option<PathBuf>,
+    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
+    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
+    /// graphics at any size; the animation stays at 96.
+    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
+    pub dpi: Option<u32>,
 }
 
 impl From<FitArg> for FitMethod {
@@ -335,12 +350,16 @@ pub fn main_exit_code() -> i32 {
         Err(e) => {
             let code = if e.is_input() { 2 } else { 1 };
             if format == ErrorFormat::Json {
+                // `error` is the first (or only) error; `errors` lists every independent one.
+                let all: Vec<_> = e.each().iter().map(|e| e.to_json()).collect();
                 eprintln!(
                     "{}",
-                    serde_json::json!({"error": e.to_json(), "exit_code": code})
+                    serde_json::json!({"error": e.to_json(), "errors": all, "exit_code": code})
                 );
             } else {
-                eprintln!("error: {e}");
+                for e in e.each() {
+                    eprintln!("error: {e}");
+                }
             }
             code
         }
@@ -516,7 +535,7 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         files::write_run(&case, &result, &cc, &a.out)?
     };
     if !a.no_plots {
-        written.extend(render(&a.out, a.animate)?);
+        written.extend(render(&a.out, a.animate, a.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
     let summary = files::read_summary(&a.out)?;
@@ -530,9 +549,10 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
 }
 
 /// Plots and report.html of the run in `dir`.
-fn render(dir: &Path, animate: bool) -> Result<Vec<PathBuf>, Error> {
+fn render(dir: &Path, animate: bool, dpi: Option<u32>) -> Result<Vec<PathBuf>, Error> {
     let opts = PlotOptions {
         animate,
+        dpi,
         ..Default::default()
     };
     let mut written = frostline::plot::render_dir(dir, &opts)?;
@@ -580,7 +600,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &estimate::cross_check(chosen),
             &a.out,
         )?);
-        written.extend(render(&a.out, false)?);
+        written.extend(render(&a.out, false, a.dpi)?);
     } else if let Some((chosen, r)) = &result.chosen_run {
         written.extend(files::write_run(
             chosen,
@@ -588,7 +608,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &estimate::cross_check(chosen),
             &a.out,
         )?);
-        written.extend(render(&a.out, false)?);
+        written.extend(render(&a.out, false, a.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
     print!(
@@ -701,6 +721,7 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
         zoom,
         animate: a.animate,
         out: a.out.clone(),
+        dpi: a.dpi,
     };
     let out = a.out.as_deref().unwrap_or(&a.dir);
     let _lock = files::check_writable(out)?;

@@ -138,6 +138,61 @@ pub enum Error {
     /// Output could not be encoded.
     #[error("output: {0}")]
     Output(String),
+    /// Several independent input errors of one file, in file order (each an [`Error::Input`]).
+    #[error("{}", .0.iter().map(|e| e.to_string()).collect::<Vec<_>>().join("\n"))]
+    Inputs(Vec<Error>),
+}
+
+/// Independent input errors gathered so that they are reported together, in file order, instead
+/// of one per attempt.
+#[derive(Default)]
+pub struct Gather(Vec<Error>);
+
+impl Gather {
+    /// The value of `r`, or None with its error kept.
+    pub fn take<T>(&mut self, r: Result<T>) -> Option<T> {
+        match r {
+            Ok(v) => Some(v),
+            Err(Error::Inputs(v)) => {
+                self.0.extend(v);
+                None
+            }
+            Err(e) => {
+                self.0.push(e);
+                None
+            }
+        }
+    }
+
+    /// Ok when nothing was gathered; else the one error, or all of them ordered by file, line
+    /// and column (errors without a position last).
+    pub fn finish(mut self) -> Result<()> {
+        match self.0.len() {
+            0 => Ok(()),
+            1 => Err(self.0.remove(0)),
+            _ => {
+                // Files in the order they first appear, then positions within each file.
+                let mut files: Vec<String> = Vec::new();
+                let key = |e: &Error, files: &mut Vec<String>| match e {
+                    Error::Input { location: l, .. } => {
+                        let f = files.iter().position(|f| *f == l.file).unwrap_or_else(|| {
+                            files.push(l.file.clone());
+                            files.len() - 1
+                        });
+                        (f, l.line == 0, l.line, l.column)
+                    }
+                    _ => (usize::MAX, true, 0, 0),
+                };
+                let mut keyed: Vec<_> = self
+                    .0
+                    .into_iter()
+                    .map(|e| (key(&e, &mut files), e))
+                    .collect();
+                keyed.sort_by_key(|(k, _)| *k);
+                Err(Error::Inputs(keyed.into_iter().map(|(_, e)| e).collect()))
+            }
+        }
+    }
 }
 
 impl Error {
@@ -168,7 +223,15 @@ impl Error {
 
     /// True for errors caused by the user's input (exit code 2).
     pub fn is_input(&self) -> bool {
-        matches!(self, Error::Input { .. })
+        matches!(self, Error::Input { .. } | Error::Inputs(_))
+    }
+
+    /// Each error on its own: the list of [`Error::Inputs`], else this one.
+    pub fn each(&self) -> Vec<&Error> {
+        match self {
+            Error::Inputs(v) => v.iter().collect(),
+            e => vec![e],
+        }
     }
 
     /// The error as a JSON object for tools (`--error-format json`): `class` (input, io,
@@ -201,6 +264,7 @@ impl Error {
                 "path": path.display().to_string(),
                 "message": source.to_string(),
             }),
+            Error::Inputs(v) => v.first().map_or(json!({"class": "input"}), Error::to_json),
             Error::Method(m) => json!({"class": "method", "message": m}),
             Error::Output(m) => json!({"class": "output", "message": m}),
             other => json!({"class": "numerical", "message": other.to_string()}),
@@ -211,6 +275,7 @@ impl Error {
     pub fn input_kind(&self) -> Option<InputKind> {
         match self {
             Error::Input { kind, .. } => Some(*kind),
+            Error::Inputs(v) => v.first().and_then(Error::input_kind),
             _ => None,
         }
     }

@@ -255,6 +255,83 @@ fn errors_as_json_for_tools() {
     assert_eq!(v["error"]["class"], "usage");
 }
 
+/// Independent input errors are reported together, in file order, one `error:` line each (and
+/// as the `errors` list of `--error-format json`); a table that depends on a wrong one is checked
+/// once that one is right (common practice for compilers and linters: report every error that
+/// does not follow from another).
+#[test]
+fn independent_errors_reported_together() {
+    let dir = scratch("errors-together");
+    let path = dir.join("case.toml");
+    let three = examples_text("kettle-hollow-house.toml")
+        .replace("amplitude_k = 14.0 ", "amplitude_k = -14.0")
+        .replace("library = \"silty-sand\"", "library = \"silty-sandy\"")
+        .replace(
+            "thickness_m = 0.10\nmaterial = \"concrete\"",
+            "thickness_m = 5.0\nmaterial = \"concrete\"",
+        );
+    std::fs::write(&path, &three).unwrap();
+    let o = bin()
+        .args(["check".as_ref(), path.as_os_str()])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(lines.len(), 3, "{err}");
+    for (l, key) in lines
+        .iter()
+        .zip(["slab.thickness_m", "soil[0].library", "climate.amplitude_k"])
+    {
+        assert!(l.starts_with("error: ") && l.contains(key), "{l}");
+    }
+    let o = bin()
+        .args(["check".as_ref(), path.as_os_str()])
+        .args(["--error-format", "json"])
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&o.stderr).expect("stderr is JSON");
+    let lines: Vec<u64> = v["errors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e["line"].as_u64().unwrap())
+        .collect();
+    assert_eq!(lines.len(), 3);
+    assert!(lines.windows(2).all(|w| w[0] < w[1]), "{lines:?}");
+    assert_eq!(v["error"]["key"], "slab.thickness_m");
+    // With those right, two insulation pieces and a probe are wrong: all three again.
+    let later = examples_text("kettle-hollow-house.toml")
+        .replace(
+            "material = \"xps\"\ntop_depth_m",
+            "material = \"xpz\"\ntop_depth_m",
+        )
+        .replace("depth_m = 0.30 ", "depth_m = -0.3")
+        .replace("x_m = 1.00\nz_m = 0.50", "x_m = 1.00\nz_m = -0.50");
+    std::fs::write(&path, &later).unwrap();
+    let o = bin()
+        .args(["check".as_ref(), path.as_os_str()])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    let keys = [
+        "insulation[1].material",
+        "insulation[2].depth_m",
+        "probe[1].z_m",
+    ];
+    assert_eq!(err.lines().count(), 3, "{err}");
+    for (l, key) in err.lines().zip(keys) {
+        assert!(l.contains(key), "{l}");
+    }
+}
+
+fn examples_text(name: &str) -> String {
+    let p = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("examples")
+        .join(name);
+    std::fs::read_to_string(p).unwrap()
+}
+
 #[test]
 fn permafrost_climate_rejected() {
     let src = VALID.replace("mean_c = 3.0", "mean_c = -4.0");
@@ -469,6 +546,72 @@ fn rerun_removes_its_own_stale_files_only() {
     }
 }
 
+/// `plot --dpi 192` draws the same figures with twice the pixels in each direction (the layout is
+/// made for 96 px per inch; PNG pHYs §11.3.5.3 carries the density), the SVG unchanged, and the
+/// report shows each image at its layout width. A density outside 48–600 is refused (exit 2).
+fn print_resolution(run: &std::path::Path, at96: &std::path::Path) {
+    let sub = run.join("dpi192");
+    let o = bin()
+        .args([
+            "plot".as_ref(),
+            run.as_os_str(),
+            "--day".as_ref(),
+            "60".as_ref(),
+        ])
+        .args([
+            "--dpi".as_ref(),
+            "192".as_ref(),
+            "--out".as_ref(),
+            sub.as_os_str(),
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let size = |p: &std::path::Path| {
+        let b = std::fs::read(p).unwrap();
+        let be = |i: usize| u32::from_be_bytes(b[i..i + 4].try_into().unwrap());
+        (be(16), be(20))
+    };
+    let report = std::fs::read_to_string(sub.join("report.html")).unwrap();
+    for stem in [
+        "soil_temperature",
+        "soil_temperature_zoom",
+        "frost_depth",
+        "foundation_sketch",
+    ] {
+        let (w, h) = size(&at96.join(format!("{stem}.png")));
+        assert_eq!(
+            size(&sub.join(format!("{stem}.png"))),
+            (2 * w, 2 * h),
+            "{stem}"
+        );
+        assert_eq!(
+            std::fs::read(sub.join(format!("{stem}.svg"))).unwrap(),
+            std::fs::read(at96.join(format!("{stem}.svg"))).unwrap(),
+            "{stem}"
+        );
+        assert!(
+            report.contains(&format!("id=\"fig-{stem}\"><img width=\"{w}\"")),
+            "{stem}"
+        );
+    }
+    let o = bin()
+        .args([
+            "plot".as_ref(),
+            run.as_os_str(),
+            "--dpi".as_ref(),
+            "1000".as_ref(),
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+}
+
 /// `plot --day N --out SUB` draws another day into its own directory: the run's figures stay as
 /// they are, and the drawn day's field is written as CSV (one value per solid cell).
 #[test]
@@ -524,6 +667,7 @@ fn plot_another_day_into_its_own_directory() {
         field.lines().count() as u64 - 1,
         summary["cells"].as_u64().unwrap()
     );
+    print_resolution(&out, &sub);
     damaged_run_directories_are_refused(&out);
     full_disk_names_the_file(&out);
     killed_plots_leave_no_damage(&out);

@@ -342,6 +342,26 @@ fn kettle_hollow_series_coarse() {
     );
     assert!(num(&s, "energy_balance_error").abs() < 1e-3);
     assert!(out.join("winters.csv").exists() && out.join("winters.png").exists());
+    // Measured days carry their calendar dates (ISO 8601 YYYY-MM-DD) in daily.csv, one day apart,
+    // and the design date is the design day's date with its year.
+    let daily = std::fs::read_to_string(out.join("daily.csv")).unwrap();
+    let dates: Vec<i64> = daily
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let d = l.split(',').nth(1).unwrap();
+            assert_eq!(d.len(), 10, "{d}");
+            frostline::physics::climate::calendar::parse_date(d).unwrap()
+        })
+        .collect();
+    assert!(dates.windows(2).all(|w| w[1] == w[0] + 1));
+    let design = s["design_date"].as_str().unwrap();
+    let dn = frostline::physics::climate::calendar::parse_date(design).unwrap();
+    assert!(dates.contains(&dn), "{design}");
+    assert_eq!(
+        frostline::physics::climate::day_of_year(dn) as f64,
+        num(&s, "design_day_of_year")
+    );
     crate::plots::check_plots(&out, &s);
 }
 

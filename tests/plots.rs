@@ -146,7 +146,7 @@ pub fn check_report(out: &Path, summary: &Value) {
         "probes",
     ] {
         assert!(
-            html.contains(&format!("id=\"fig-{fig}\"><img alt=")),
+            html.contains(&format!("id=\"fig-{fig}\"><img width=")),
             "figure {fig}"
         );
     }

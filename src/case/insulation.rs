@@ -37,19 +37,26 @@ pub fn insulation(c: &Ctx, raw: &[S<RawInsulation>], parts: &Parts) -> Result<Ve
         .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
         .map(|i| *i.get_ref().thickness_m.get_ref())
         .fold(0.0, f64::max);
+    // Each piece on its own: the errors of every piece are reported together.
     let mut out = Vec::new();
+    let mut g = crate::error::Gather::default();
     for (k, ins) in raw.iter().enumerate() {
         let key = format!("insulation[{k}]");
         let r = ins.get_ref();
-        let thickness_m = c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
-        let material = material(c, ins, &key)?;
-        let kind = kind(c, ins, &key, parts, (thickness_m, vert_out_t))?;
-        out.push(Insulation {
-            kind,
-            thickness_m,
-            material,
-        });
+        let piece = (|| {
+            let thickness_m =
+                c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
+            let material = material(c, ins, &key)?;
+            let kind = kind(c, ins, &key, parts, (thickness_m, vert_out_t))?;
+            Ok(Insulation {
+                kind,
+                thickness_m,
+                material,
+            })
+        })();
+        out.extend(g.take(piece));
     }
+    g.finish()?;
     between_pieces(c, raw, &out, parts)?;
     Ok(out)
 }

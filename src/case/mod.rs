@@ -20,7 +20,7 @@ mod soil;
 pub use layout::{Part, Rect};
 pub use model::*;
 
-use crate::error::{Error, InputKind, Location, Result};
+use crate::error::{Error, Gather, InputKind, Location, Result};
 use ctx::Ctx;
 use raw::RawCase;
 
@@ -126,39 +126,90 @@ fn case_dir(file: &str) -> std::path::PathBuf {
         .unwrap_or_default()
 }
 
-/// Validate every table in dependency order.
+/// Validate every table in dependency order. The errors of tables that do not depend on each
+/// other are reported together, in file order: first the construction, building, climate, soil,
+/// fill and simulation tables; when those hold, the basement, insulation pieces, corner boards,
+/// probes and sizing.
 fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
-    let cons = building::construction(c, &raw)?;
-    let (building, plan) =
-        building::building(c, &raw.building, raw.plan.as_ref(), cons.wall.thickness_m)?;
-    let climate = climate::climate(c, &raw.climate)?;
-    let simulation = simulation::simulation(
+    let mut g = Gather::default();
+    let cons = g.take(building::construction(c, &raw));
+    let climate = g.take(climate::climate(c, &raw.climate));
+    let strata = g.take(soil::strata(c, &raw.soil));
+    let fill = g.take(insulation::fill(c, raw.fill.as_ref()));
+    let bp = cons.as_ref().and_then(|cons| {
+        g.take(building::building(
+            c,
+            &raw.building,
+            raw.plan.as_ref(),
+            cons.wall.thickness_m,
+        ))
+    });
+    let simulation = match (&cons, &bp) {
+        (Some(cons), Some((building, _))) => g.take(simulation::simulation(
+            c,
+            &raw.simulation,
+            building.b_prime_m,
+            cons.basement_depth_m,
+        )),
+        _ => None,
+    };
+    g.finish()?;
+    let (
+        Some(cons),
+        Some(climate),
+        Some(strata),
+        Some(fill),
+        Some((building, plan)),
+        Some(simulation),
+    ) = (cons, climate, strata, fill, bp, simulation)
+    else {
+        unreachable!("every table above validated (Gather::finish returned Ok)");
+    };
+    let mut g = Gather::default();
+    g.take(climate::no_permafrost(c, &climate, &strata));
+    let basement = g.take(building::basement(
         c,
-        &raw.simulation,
-        building.b_prime_m,
-        cons.basement_depth_m,
-    )?;
-    let strata = soil::strata(c, &raw.soil)?;
-    climate::no_permafrost(c, &climate, &strata)?;
-    let basement = building::basement(c, raw.basement.as_ref(), &cons, &simulation)?;
-    let fill = insulation::fill(c, raw.fill.as_ref())?;
+        raw.basement.as_ref(),
+        &cons,
+        &simulation,
+    ));
     let parts = insulation::Parts {
         building: &building,
         cons: &cons,
         simulation: &simulation,
     };
-    let insulation = insulation::insulation(c, &raw.insulation, &parts)?;
-    let corners = insulation::corner_pieces(c, &raw.corner, &parts, &raw.insulation)?;
-    building::footing_in_domain(c, &raw.footing, &cons.footing, &simulation)?;
-    let probes = simulation::probes(c, &raw.probe, &building, &cons.wall, &simulation)?;
-    let sizing = match &raw.sizing {
-        None => None,
-        Some(s) => Some(sizing::sizing(
-            c,
-            s,
-            &insulation,
-            (&corners, plan.as_ref()),
-        )?),
+    let insulation = g.take(insulation::insulation(c, &raw.insulation, &parts));
+    let corners = g.take(insulation::corner_pieces(
+        c,
+        &raw.corner,
+        &parts,
+        &raw.insulation,
+    ));
+    g.take(building::footing_in_domain(
+        c,
+        &raw.footing,
+        &cons.footing,
+        &simulation,
+    ));
+    let probes = g.take(simulation::probes(
+        c,
+        &raw.probe,
+        &building,
+        &cons.wall,
+        &simulation,
+    ));
+    let sizing = match (&raw.sizing, &insulation, &corners) {
+        (Some(s), Some(insulation), Some(corners)) => g
+            .take(sizing::sizing(c, s, insulation, (corners, plan.as_ref())))
+            .map(Some),
+        (None, ..) => Some(None),
+        _ => None,
+    };
+    g.finish()?;
+    let (Some(basement), Some(insulation), Some(corners), Some(probes), Some(sizing)) =
+        (basement, insulation, corners, probes, sizing)
+    else {
+        unreachable!("every table above validated (Gather::finish returned Ok)");
     };
     let case = Case {
         sizing,

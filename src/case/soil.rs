@@ -23,28 +23,57 @@ pub fn strata(c: &Ctx, raw: &S<Vec<S<RawStratum>>>) -> Result<Vec<Stratum>> {
             "no strata; allowed: one or more [[soil]] tables, top to bottom",
         ));
     }
+    // Each stratum on its own: the errors of every stratum are reported together (a bottom
+    // depth is checked against the last valid one above it).
     let mut strata = Vec::new();
     let mut last_bottom = 0.0;
+    let mut g = crate::error::Gather::default();
     for (k, st) in list.iter().enumerate() {
-        let key = format!("soil[{k}]");
-        let material = stratum(c, st, &key)?;
-        let last = k + 1 == list.len();
-        let bottom_m = match (&st.get_ref().bottom_depth_m, last) {
-            (Some(v), false) => {
-                last_bottom = c.range(v, &format!("{key}.bottom_depth_m"), last_bottom, 500.0, "m")?;
-                last_bottom
-            }
-            (Some(v), true) => {
-                return Err(c.err(v.span(), &format!("{key}.bottom_depth_m"), InputKind::Conflict, "the last stratum reaches the bottom of the domain; allowed: omit bottom_depth_m here"))
-            }
-            (None, false) => {
-                return Err(c.err(st.span(), &format!("{key}.bottom_depth_m"), InputKind::Missing, "missing; allowed: the depth (m) of this stratum's bottom, deeper than the one above"))
-            }
-            (None, true) => f64::INFINITY,
-        };
-        strata.push(Stratum { bottom_m, material });
+        if let Some(s) = g.take(one_stratum(c, st, k, list.len(), &mut last_bottom)) {
+            strata.push(s);
+        }
     }
+    g.finish()?;
     Ok(strata)
+}
+
+/// Stratum `k` of `n`, its bottom deeper than `last_bottom` (updated).
+fn one_stratum(
+    c: &Ctx,
+    st: &S<RawStratum>,
+    k: usize,
+    n: usize,
+    last_bottom: &mut f64,
+) -> Result<Stratum> {
+    let key = format!("soil[{k}]");
+    let material = stratum(c, st, &key)?;
+    let last = k + 1 == n;
+    let bottom_m = match (&st.get_ref().bottom_depth_m, last) {
+        (Some(v), false) => {
+            *last_bottom = c.range(
+                v,
+                &format!("{key}.bottom_depth_m"),
+                *last_bottom,
+                500.0,
+                "m",
+            )?;
+            *last_bottom
+        }
+        (Some(v), true) => return Err(c.err(
+            v.span(),
+            &format!("{key}.bottom_depth_m"),
+            InputKind::Conflict,
+            "the last stratum reaches the bottom of the domain; allowed: omit bottom_depth_m here",
+        )),
+        (None, false) => return Err(c.err(
+            st.span(),
+            &format!("{key}.bottom_depth_m"),
+            InputKind::Missing,
+            "missing; allowed: the depth (m) of this stratum's bottom, deeper than the one above",
+        )),
+        (None, true) => f64::INFINITY,
+    };
+    Ok(Stratum { bottom_m, material })
 }
 
 /// One soil description as a freezing material.

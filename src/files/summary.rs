@@ -294,7 +294,8 @@ pub struct Summary {
     pub frost_margin_definition: String,
     /// Day of year of the least frost margin, the day of the saved field.
     pub design_day_of_year: usize,
-    /// The same day as an ISO 8601 date without a year (`--MM-DD`).
+    /// The same day as an ISO 8601 date: `YYYY-MM-DD` for a measured series, `--MM-DD` (no
+    /// year) for a sinusoidal year.
     #[serde(default)]
     pub design_date: String,
     /// Frost-line temperature, °C.
@@ -368,6 +369,15 @@ pub struct Summary {
 impl Summary {
     /// The summary of a run of `case` with its cross-checks `cc`.
     pub fn new(case: &Case, r: &RunResult, cc: &CrossCheck) -> Self {
+        /// The design day's ISO 8601 date: with its year for a measured series, `--MM-DD` for a
+        /// sinusoidal year.
+        fn design_date(r: &RunResult, doy: usize) -> String {
+            let dated = r.days.iter().find(|d| d.day_of_year == doy);
+            match dated.and_then(|d| d.date) {
+                Some(dn) => crate::physics::climate::iso_date(dn),
+                None => crate::physics::climate::calendar::month_day(doy),
+            }
+        }
         let h = run::headline(case, r);
         let y = r.final_year();
         let st = r.stats;
@@ -413,7 +423,7 @@ impl Summary {
             frost_margin_m: h.frost_margin_m,
             frost_margin_definition: MARGIN_DEFINITION.into(),
             design_day_of_year: h.design_day_of_year,
-            design_date: crate::physics::climate::calendar::month_day(h.design_day_of_year),
+            design_date: design_date(r, h.design_day_of_year),
             frost_line_temperature_c: run::frost_line_c(case),
             energy_balance_error: y.energy_balance_error,
             spin_up_years: r.spin_up_years(),

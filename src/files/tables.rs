@@ -4,7 +4,7 @@
 use super::{bad_file, read_text};
 use crate::case::Case;
 use crate::error::{Error, Result};
-use crate::physics::climate::{calendar::month_day, month_of};
+use crate::physics::climate::{calendar::month_day, iso_date, month_of};
 use crate::run::{Day, Records, RunResult, WinterResult};
 use serde::{Deserialize, Deserializer};
 use std::path::Path;
@@ -28,6 +28,9 @@ fn f64_or_nan<'de, D: Deserializer<'de>>(d: D) -> std::result::Result<f64, D::Er
 pub struct DailyRow {
     /// Day of year.
     pub day_of_year: usize,
+    /// ISO 8601 date of a measured series' day, or `--MM-DD` in a sinusoidal year (no year).
+    #[serde(default)]
+    pub date: String,
     /// Daily mean outdoor air, °C.
     #[serde(deserialize_with = "f64_or_nan")]
     pub outdoor_temperature_c: f64,
@@ -68,6 +71,7 @@ impl From<&DailyRow> for Day {
     fn from(r: &DailyRow) -> Day {
         Day {
             day_of_year: r.day_of_year,
+            date: crate::physics::climate::calendar::parse_date(&r.date),
             outdoor_c: r.outdoor_temperature_c,
             indoor_c: r.indoor_temperature_c,
             heat_loss_w: r.ground_heat_loss_w,
@@ -171,7 +175,7 @@ pub fn daily(head: &str, r: &Records) -> Result<Csv> {
         &format!("{head}\nReported period, in simulation order from the warmest day. Heat loss is the whole building's daily mean."),
         &["day_of_year", "date", "outdoor_temperature_c", "indoor_temperature_c", "ground_heat_loss_w", "frost_depth_open_ground_m", "frost_depth_at_footing_face_m", "frost_depth_under_footing_m", "frost_depth_beside_wall_m", "frost_distance_to_base_corner_m", "frost_margin_m", "frost_top_open_ground_m", "frost_top_at_footing_face_m"],
         r.days.iter().map(|d| {
-            vec![d.day_of_year.to_string(), month_day(d.day_of_year), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4), fmt(d.frost_top_open_m, 4), fmt(d.frost_top_face_m, 4)]
+            vec![d.day_of_year.to_string(), d.date.map_or_else(|| month_day(d.day_of_year), iso_date), fmt(d.outdoor_c, 3), fmt(d.indoor_c, 2), fmt(d.heat_loss_w, 2), fmt(d.frost_open_m, 4), fmt(d.frost_face_m, 4), fmt(d.frost_footing_m, 4), fmt(d.frost_beside_wall_m, 4), fmt(d.frost_corner_distance_m, 4), fmt(d.frost_margin_m, 4), fmt(d.frost_top_open_m, 4), fmt(d.frost_top_face_m, 4)]
         }),
     )
 }

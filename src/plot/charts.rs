@@ -1,6 +1,6 @@
 //! Line and bar charts of the reported year: frost depth, monthly heat loss, probe temperatures.
 use super::data::PlotData;
-use super::out_err;
+use super::{out_err, Target};
 use crate::error::Result;
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -55,7 +55,12 @@ fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {
     move |x: &f64| {
         let k = (x.round().max(0.0) as usize).min(d.days.len().saturating_sub(1));
         d.days.get(k).map_or(String::new(), |day| {
-            crate::physics::climate::calendar::day_month(day.day_of_year)
+            let dm = crate::physics::climate::calendar::day_month(day.day_of_year);
+            // A measured day carries its year; a sinusoidal year has none.
+            match day.date {
+                Some(dn) => format!("{dm} {}", crate::physics::climate::civil_from_days(dn).0),
+                None => dm,
+            }
         })
     }
 }
@@ -81,7 +86,11 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .map_err(out_err)?;
     chart
         .configure_mesh()
-        .x_desc("date (the reported year runs from the warmest day)")
+        .x_desc(if d.days.first().is_some_and(|x| x.date.is_some()) {
+            "date (the reported winter: a measured season, 1 July – 30 June)"
+        } else {
+            "date (the reported year runs from the warmest day)"
+        })
         .y_desc("frost depth below ground (m)")
         .x_label_formatter(&doy_label(d))
         .label_style(("sans-serif", 13))
@@ -313,19 +322,19 @@ fn draw_probes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) 
 }
 
 /// `frost_depth.png/svg`.
-pub fn frost_depth(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+pub fn frost_depth(dir: &Target, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
     render_both!(dir, "frost_depth", SIZE, files, draw_frost(d));
     Ok(())
 }
 
 /// `heat_loss.png/svg`.
-pub fn heat_loss(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+pub fn heat_loss(dir: &Target, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
     render_both!(dir, "heat_loss", SIZE, files, draw_heat(d));
     Ok(())
 }
 
 /// `probes.png/svg`.
-pub fn probes(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
+pub fn probes(dir: &Target, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<()> {
     render_both!(dir, "probes", SIZE, files, draw_probes(d));
     Ok(())
 }
@@ -404,7 +413,7 @@ fn draw_winters<DB: DrawingBackend>(
 
 /// `winters.png/svg` for a run on a measured series.
 pub fn winters(
-    dir: &Path,
+    dir: &Target,
     d: &PlotData,
     w: &[(i64, f64, f64)],
     files: &mut Vec<PathBuf>,

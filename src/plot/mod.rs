@@ -5,6 +5,7 @@
 //! (DejaVu Sans), so no system font package is needed.
 pub mod data;
 mod field;
+pub mod scaled;
 mod shade;
 
 use crate::error::{Error, InputKind, Result};
@@ -25,9 +26,20 @@ pub struct PlotOptions {
     pub animate: bool,
     /// Write the plots here instead of the run directory (created if missing).
     pub out: Option<PathBuf>,
+    /// Resolution of the PNG images in dots per inch (None: 96, the layout's own density). The
+    /// figures keep their layout; more dots draw the same figure with more pixels.
+    pub dpi: Option<u32>,
 }
 
-fn register_fonts() {
+/// Where images go and at what resolution.
+pub struct Target<'a> {
+    /// Output directory.
+    pub dir: &'a Path,
+    /// Physical pixels per layout pixel of the PNG images.
+    pub scale: f64,
+}
+
+pub(crate) fn register_fonts() {
     static ONCE: std::sync::Once = std::sync::Once::new();
     ONCE.call_once(|| {
         // The bytes are DejaVu Sans, embedded by the `dejavu` crate; registration cannot fail for
@@ -46,7 +58,7 @@ fn out_err<E: std::fmt::Display>(e: E) -> Error {
 }
 
 /// An RGB image buffer encoded as PNG.
-pub(crate) fn png_bytes(rgb: &[u8], (w, h): (u32, u32)) -> Result<Vec<u8>> {
+pub(crate) fn png_bytes(rgb: &[u8], (w, h): (u32, u32), scale: f64) -> Result<Vec<u8>> {
     let mut out = Vec::new();
     {
         let mut enc = png::Encoder::new(&mut out, w, h);
@@ -54,6 +66,13 @@ pub(crate) fn png_bytes(rgb: &[u8], (w, h): (u32, u32)) -> Result<Vec<u8>> {
         enc.set_depth(png::BitDepth::Eight);
         enc.set_compression(png::Compression::Best);
         enc.set_adaptive_filter(png::AdaptiveFilterType::Adaptive);
+        // The print density (pHYs, PNG specification §11.3.5.3: pixels per metre).
+        let ppm = (scaled::LAYOUT_DPI * scale / 0.0254).round() as u32;
+        enc.set_pixel_dims(Some(png::PixelDimensions {
+            xppu: ppm,
+            yppu: ppm,
+            unit: png::Unit::Meter,
+        }));
         let mut wr = enc.write_header().map_err(out_err)?;
         wr.write_image_data(rgb).map_err(out_err)?;
     }
@@ -94,14 +113,22 @@ pub fn temperature_colour(t: f64) -> RGBColor {
 /// Render with a generic drawing function into `<stem>.png` and `<stem>.svg`; evaluates to the
 /// PNG call's result.
 macro_rules! render_both {
-    ($dir:expr, $stem:expr, $size:expr, $files:expr, $draw:ident ( $($arg:expr),* )) => {{
+    ($target:expr, $stem:expr, $size:expr, $files:expr, $draw:ident ( $($arg:expr),* )) => {{
         // Drawn in memory and written like every other output file (an exclusive temporary
         // and a rename), so no half-written image ever has its final name and a write error
         // names the file.
         let size: (u32, u32) = $size;
-        let mut rgb = vec![0u8; size.0 as usize * size.1 as usize * 3];
+        let target: &crate::plot::Target = $target;
+        let dir = target.dir;
+        let phys = (
+            crate::plot::scaled::physical(size.0, target.scale),
+            crate::plot::scaled::physical(size.1, target.scale),
+        );
+        let mut rgb = vec![0u8; phys.0 as usize * phys.1 as usize * 3];
         let out = {
-            let root = BitMapBackend::with_buffer(&mut rgb, size).into_drawing_area();
+            let inner = BitMapBackend::with_buffer(&mut rgb, phys);
+            let root =
+                crate::plot::scaled::Scaled::new(inner, size, target.scale).into_drawing_area();
             $draw(&root, $($arg),*)?
         };
         let mut svg = String::new();
@@ -112,9 +139,9 @@ macro_rules! render_both {
         // plotters-svg writes embedded images as `data:png;…`; the media type is image/png
         // (RFC 2397 data URLs, IANA media types), which strict SVG viewers require.
         let svg = svg.replace("href=\"data:png;base64,", "href=\"data:image/png;base64,");
-        let png = crate::plot::png_bytes(&rgb, size)?;
-        $files.push(crate::files::write_atomic($dir, &format!("{}.png", $stem), &png)?);
-        $files.push(crate::files::write_atomic($dir, &format!("{}.svg", $stem), svg.as_bytes())?);
+        let png = crate::plot::png_bytes(&rgb, phys, target.scale)?;
+        $files.push(crate::files::write_atomic(dir, &format!("{}.png", $stem), &png)?);
+        $files.push(crate::files::write_atomic(dir, &format!("{}.svg", $stem), svg.as_bytes())?);
         out
     }};
 }
@@ -238,6 +265,10 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     let d = PlotData::load(dir)?;
     let out = opts.out.as_deref().unwrap_or(dir);
     crate::files::create_dir(out)?;
+    let target = Target {
+        dir: out,
+        scale: opts.dpi.map_or(1.0, |d| d as f64 / scaled::LAYOUT_DPI),
+    };
     let mut files = Vec::new();
     let day = match opts.day_of_year {
         Some(doy) => d.day_index(doy).ok_or_else(|| {
@@ -273,7 +304,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         ("probes", charts::SIZE),
     ];
     render_both!(
-        out,
+        &target,
         "soil_temperature",
         field_size(section),
         files,
@@ -297,7 +328,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     );
     sizes.push(("soil_temperature_zoom", field_size(zoom)));
     let frost = render_both!(
-        out,
+        &target,
         "soil_temperature_zoom",
         field_size(zoom),
         files,
@@ -309,23 +340,23 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         &format!("frost_line_{doy:03}.csv"),
         &crate::files::section::frost_line_csv(&frost),
     )?);
-    let sketch_size = sketch::render(out, &d, &mut files)?;
+    let sketch_size = sketch::render(&target, &d, &mut files)?;
     sizes.push(("foundation_sketch", sketch_size));
-    charts::frost_depth(out, &d, &mut files)?;
-    charts::heat_loss(out, &d, &mut files)?;
+    charts::frost_depth(&target, &d, &mut files)?;
+    charts::heat_loss(&target, &d, &mut files)?;
     if !d.probe_names.is_empty() {
-        charts::probes(out, &d, &mut files)?;
+        charts::probes(&target, &d, &mut files)?;
     }
     if let Some(f) = crate::files::read_three_d(dir)? {
-        sizes.extend(three::render(out, &f, &mut files)?);
+        sizes.extend(three::render(&target, &f, &mut files)?);
     }
     if let Some(z) = crate::files::read_sizing(dir)? {
-        if tradeoff::render(out, &z, &mut files)? {
+        if tradeoff::render(&target, &z, &mut files)? {
             sizes.push(("sizing_tradeoff", charts::SIZE));
         }
     }
     if let Some(w) = charts::read_winters(dir)? {
-        charts::winters(out, &d, &w, &mut files)?;
+        charts::winters(&target, &d, &w, &mut files)?;
         sizes.push(("winters", charts::SIZE));
     }
     let mut index = plot_index(&files, &sizes);

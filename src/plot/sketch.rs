@@ -3,11 +3,11 @@
 //! line, the soil-layer boundaries, the footing base's depth dimensioned, and a key listing each
 //! part's thickness, width and position in metres.
 use super::field::{field_size, outline_colour, strata_boundaries, View};
-use super::{data::PlotData, out_err};
+use super::{data::PlotData, out_err, Target};
 use crate::error::Result;
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// Width of the key beside the drawing, pixels.
 const KEY_W: u32 = 420;
@@ -226,7 +226,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
 }
 
 /// Draw `foundation_sketch.png/svg` into `dir`; returns its size in pixels.
-pub fn render(dir: &Path, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<(u32, u32)> {
+pub fn render(dir: &Target, d: &PlotData, files: &mut Vec<PathBuf>) -> Result<(u32, u32)> {
     let v = view(d);
     let (w, h) = field_size(v);
     let size = (w - 110 + KEY_W, h.max(300));

@@ -2,13 +2,13 @@
 //! (the computed quarter mirrored), vertical sections at mid-wall and along the corner's diagonal
 //! with the frost line, and frost depth and margin along the perimeter.
 use super::charts::SIZE;
-use super::{draw_field, field_size, out_err, runs_inside, FieldView, View};
+use super::{draw_field, field_size, out_err, runs_inside, FieldView, Target, View};
 use crate::analysis::isolines::isolines;
 use crate::error::Result;
 use crate::files::three::{PlanBand, Slice, ThreeDFile};
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// Frost depth colour (m → colour): white for no frost, through pale ice blue to deep navy at
 /// `max` m.
@@ -363,7 +363,7 @@ fn section_view(f: &ThreeDFile) -> View {
 
 /// Render the 3D plots into `dir`; returns (file stem, size) of each for the plot index.
 pub fn render(
-    dir: &Path,
+    dir: &Target,
     f: &ThreeDFile,
     files: &mut Vec<PathBuf>,
 ) -> Result<Vec<(&'static str, (u32, u32))>> {

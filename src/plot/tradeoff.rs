@@ -4,13 +4,13 @@
 //! annual ground heat loss of the same designs against the foundation without the varied
 //! insulation. The chosen (least-cost) design is marked in both.
 use super::charts::{legend, SIZE};
-use super::out_err;
+use super::{out_err, Target};
 use crate::design::Design;
 use crate::error::Result;
 use crate::files::SizingFile;
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 const LINE: RGBColor = RGBColor(33, 74, 160);
 const CHOSEN: RGBColor = RGBColor(196, 40, 40);
@@ -176,7 +176,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
 
 /// Draw `sizing_tradeoff.png/svg` into `dir` when the sizing evaluated designs (not when no
 /// insulation was needed).
-pub fn render(dir: &Path, f: &SizingFile, files: &mut Vec<PathBuf>) -> Result<bool> {
+pub fn render(dir: &Target, f: &SizingFile, files: &mut Vec<PathBuf>) -> Result<bool> {
     if f.no_insulation_needed.is_some() || f.dimensions.is_empty() || shown(f).is_empty() {
         return Ok(false);
     }

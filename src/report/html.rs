@@ -309,6 +309,19 @@ fn whole_png(bytes: &[u8]) -> bool {
     bytes.starts_with(&SIGNATURE) && bytes.ends_with(&IEND)
 }
 
+/// The width in CSS pixels (96 per inch, CSS Values and Units Level 3 §5.2) of a PNG: its pixel
+/// width (IHDR) at the density of its pHYs chunk (pixels per metre), or None without one. PNG
+/// specification (ISO/IEC 15948) §11.2.2 and §11.3.5.3.
+fn css_width(bytes: &[u8]) -> Option<u32> {
+    let be = |i: usize| -> Option<u32> {
+        Some(u32::from_be_bytes(bytes.get(i..i + 4)?.try_into().ok()?))
+    };
+    let width = be(16)?;
+    let at = bytes.windows(4).position(|w| w == b"pHYs")?;
+    let (ppu, unit) = (be(at + 4)?, *bytes.get(at + 12)?);
+    (unit == 1 && ppu > 0).then(|| (width as f64 * 96.0 / (ppu as f64 * 0.0254)).round() as u32)
+}
+
 /// The embedded figures that exist in `dir`; a damaged one is an error naming it.
 pub(super) fn figures(
     dir: &Path,
@@ -322,8 +335,10 @@ pub(super) fn figures(
             if !whole_png(&bytes) {
                 return Err(files::bad_file(dir, &name, "a damaged or truncated PNG"));
             }
+            // Shown at the figure's layout size whatever its print resolution.
+            let width = css_width(&bytes).map_or(String::new(), |w| format!(" width=\"{w}\""));
             h.push_str(&format!(
-                "<figure id=\"fig-{stem}\"><img alt=\"{}\" src=\"data:image/png;base64,{}\"><figcaption>{}</figcaption></figure>\n",
+                "<figure id=\"fig-{stem}\"><img{width} alt=\"{}\" src=\"data:image/png;base64,{}\"><figcaption>{}</figcaption></figure>\n",
                 escape(caption),
                 base64(&bytes),
                 escape(caption)
@@ -480,6 +495,33 @@ mod tests {
         assert!(!whole_png(&png[..png.len() - 1]));
         assert!(!whole_png(&png[1..]));
         assert!(!whole_png(b""));
+    }
+
+    /// A 300 dpi image of 3125 px shows at 1000 CSS px (96 px per inch, CSS Values 3 §5.2),
+    /// one without pHYs at its own size (None: no width attribute).
+    #[test]
+    fn css_width_from_phys() {
+        let make = |w: u32, ppm: Option<u32>| {
+            let mut png = Vec::new();
+            {
+                let mut enc = png::Encoder::new(&mut png, w, 1);
+                enc.set_color(png::ColorType::Rgb);
+                enc.set_pixel_dims(ppm.map(|p| png::PixelDimensions {
+                    xppu: p,
+                    yppu: p,
+                    unit: png::Unit::Meter,
+                }));
+                enc.write_header()
+                    .unwrap()
+                    .write_image_data(&vec![0; 3 * w as usize])
+                    .unwrap();
+            }
+            png
+        };
+        // 300 dpi = 300 / 0.0254 m = 11,811 px/m.
+        assert_eq!(css_width(&make(3125, Some(11_811))), Some(1000));
+        assert_eq!(css_width(&make(900, Some(3780))), Some(900));
+        assert_eq!(css_width(&make(900, None)), None);
     }
 
     #[test]

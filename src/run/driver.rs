@@ -282,6 +282,7 @@ impl<O: Observer> Driver<'_, O> {
         }
         Day {
             day_of_year: day.doy,
+            date: day.date,
             outdoor_c: out_mean,
             indoor_c: indoor,
             heat_loss_w: day_in / 86400.0 * self.scale,

@@ -17,6 +17,8 @@ pub struct DayIn {
     pub cal: f64,
     /// Day of year for records.
     pub doy: usize,
+    /// Calendar date of a measured day (days since 1970-01-01); None in a sinusoidal year.
+    pub date: Option<i64>,
     /// Month 0–11.
     pub month: usize,
     /// Measured daily mean air temperature, if the climate is a series.
@@ -114,6 +116,7 @@ pub fn sinusoid_year_days(cl: &Climate, a_cold: f64) -> Vec<DayIn> {
             DayIn {
                 cal,
                 doy: (cal as usize % 365) + 1,
+                date: None,
                 month: month_of(cal + 0.5),
                 measured_c: None,
                 cold_amplitude_k: a_cold,
@@ -131,6 +134,7 @@ pub fn series_seasons(s: &DailySeries) -> Vec<(i64, Vec<DayIn>)> {
         DayIn {
             cal: 0.0,
             doy: day_of_year(dn) as usize,
+            date: Some(dn),
             month: m as usize - 1,
             measured_c: Some(s.values[k]),
             cold_amplitude_k: 0.0,

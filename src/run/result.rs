@@ -14,6 +14,10 @@ fn nan() -> f64 {
 pub struct Day {
     /// Day of year, 1–365.
     pub day_of_year: usize,
+    /// Calendar date of a measured series' day, days since 1970-01-01 (None: a sinusoidal
+    /// year, which has no calendar year).
+    #[serde(default)]
+    pub date: Option<i64>,
     /// Daily mean outdoor air temperature, °C.
     pub outdoor_c: f64,
     /// Indoor air temperature, °C.
