@@ -93,6 +93,7 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
         let mut r = csv::Reader::from_reader(text.as_bytes());
         let n = r.headers().unwrap().len();
         assert!(r.records().all(|rec| rec.unwrap().len() == n), "{f}");
+        python_reads(&out.join(f));
     }
     let day = s["design_day_of_year"].as_u64().unwrap();
     let field = std::fs::read_to_string(out.join(format!("field_{day:03}.csv"))).unwrap();
@@ -108,6 +109,38 @@ fn run_example(name: &str, extra: &[&str]) -> (Value, std::path::PathBuf, String
         .contains(".tmp")));
     assert!(stdout.contains("Caution"), "result table lacks the caution");
     (s, out, stdout)
+}
+
+/// Where Python is present, its standard `csv` reader with default options (as pandas'
+/// `read_csv` and a spreadsheet open a file: comma, one header row, no comment character) reads
+/// the file: every row as long as the header, the header unique, and every value but dates and
+/// names a number or empty. Without Python the check is skipped with a note.
+fn python_reads(path: &std::path::Path) {
+    const SCRIPT: &str = r#"
+import csv, sys
+rows = list(csv.reader(open(sys.argv[1], newline="")))
+head, body = rows[0], rows[1:]
+assert len(set(head)) == len(head), head
+assert body and all(len(r) == len(head) for r in body)
+for r in body:
+    for h, v in zip(head, r):
+        if h not in ("date", "name") and v != "":
+            float(v)
+print(len(body))
+"#;
+    match std::process::Command::new("python3")
+        .args(["-c", SCRIPT])
+        .arg(path)
+        .output()
+    {
+        Ok(o) => assert!(
+            o.status.success(),
+            "{}: {}",
+            path.display(),
+            String::from_utf8_lossy(&o.stderr)
+        ),
+        Err(_) => eprintln!("note: no python3; {} not read by Python", path.display()),
+    }
 }
 
 fn num(s: &Value, k: &str) -> f64 {

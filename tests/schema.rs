@@ -159,3 +159,36 @@ fn schema_names_every_key_the_parser_accepts() {
     keys.sort();
     assert_eq!(fields, keys);
 }
+
+/// The README's library example is the crate documentation's doc test (which `cargo test` runs),
+/// without its hidden `# ` lines: the copy a reader sees is the code that is tested.
+#[test]
+fn readme_library_example_is_the_tested_one() {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let readme = std::fs::read_to_string(root.join("README.md")).unwrap();
+    let lib = std::fs::read_to_string(root.join("src/lib.rs")).unwrap();
+    let block = |text: &str, open: &str, close: &str| -> Vec<String> {
+        text.lines()
+            .skip_while(|l| l.trim() != open)
+            .skip(1)
+            .take_while(|l| l.trim() != close)
+            .map(|l| l.to_string())
+            .collect()
+    };
+    let doc: Vec<String> = lib
+        .lines()
+        .filter_map(|l| l.strip_prefix("//!"))
+        .map(|l| l.strip_prefix(' ').unwrap_or(l).to_string())
+        .collect::<Vec<_>>()
+        .join("\n")
+        .lines()
+        .skip_while(|l| l.trim() != "```")
+        .skip(1)
+        .take_while(|l| l.trim() != "```")
+        .filter(|l| !l.starts_with("# "))
+        .map(|l| l.to_string())
+        .collect();
+    let shown = block(&readme, "```rust", "```");
+    assert!(!doc.is_empty());
+    assert_eq!(shown, doc);
+}
