@@ -12,5 +12,6 @@ mod schema;
 mod sizing;
 mod three_d;
 mod trust;
+mod units;
 mod verification;
 mod verification3d;

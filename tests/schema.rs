@@ -2,7 +2,9 @@
 //! validates against it, a misspelt key or a wrong type does not, and it names every key the
 //! parser accepts (the fields of `src/case/raw.rs`, which denies unknown keys). The validator is
 //! the subset of JSON Schema 2020-12 the schema uses (type, properties, additionalProperties,
-//! required, items, enum, oneOf, $ref into $defs, minItems, maxItems).
+//! required, items, enum, oneOf, allOf, $ref into $defs, minItems, maxItems). Every quantity key
+//! comes with its US-unit variants (`thickness_in`, `thickness_ft` beside `thickness_m`), a
+//! required one as "exactly one of them".
 use serde_json::Value;
 
 fn schema() -> Value {
@@ -15,6 +17,14 @@ fn check(root: &Value, s: &Value, v: &Value, path: &str, errs: &mut Vec<String>)
     if let Some(r) = s.get("$ref").and_then(Value::as_str) {
         let name = r.strip_prefix("#/$defs/").expect("local reference");
         return check(root, &root["$defs"][name], v, path, errs);
+    }
+    for a in s
+        .get("allOf")
+        .and_then(Value::as_array)
+        .into_iter()
+        .flatten()
+    {
+        check(root, a, v, path, errs);
     }
     if let Some(alts) = s.get("oneOf").and_then(Value::as_array) {
         let ok = alts
@@ -132,7 +142,8 @@ fn every_example_validates_and_mistakes_do_not() {
         .any(|e| e.contains("$.footing.protected_zone_angle_deg: not number")));
 }
 
-/// The schema names exactly the keys of the parser's raw structs.
+/// The schema names exactly the keys of the parser's raw structs and, for each quantity key, its
+/// US-unit variants (each maps back to its SI key by the parser's own units table).
 #[test]
 fn schema_names_every_key_the_parser_accepts() {
     let raw = std::fs::read_to_string(
@@ -146,7 +157,7 @@ fn schema_names_every_key_the_parser_accepts() {
         .filter_map(|l| l.split_once(':').map(|(k, _)| k.to_string()))
         .collect();
     let root = schema();
-    let mut keys: Vec<String> = std::iter::once(&root)
+    let keys: Vec<String> = std::iter::once(&root)
         .chain(root["$defs"].as_object().unwrap().values())
         .flat_map(|d| {
             d.get("properties")
@@ -155,9 +166,17 @@ fn schema_names_every_key_the_parser_accepts() {
                 .flat_map(|p| p.keys().cloned())
         })
         .collect();
+    let (us, mut si): (Vec<String>, Vec<String>) = keys
+        .into_iter()
+        .partition(|k| frostline::case::units::us_key(k).is_some_and(|(_, s)| fields.contains(&s)));
+    for k in &us {
+        let (_, s) = frostline::case::units::us_key(k).unwrap();
+        assert!(si.contains(&s), "{k}: no {s}");
+    }
+    assert!(us.len() > 80, "{} US keys", us.len());
     fields.sort();
-    keys.sort();
-    assert_eq!(fields, keys);
+    si.sort();
+    assert_eq!(fields, si);
 }
 
 /// The README's library example is the crate documentation's doc test (which `cargo test` runs),

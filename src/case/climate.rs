@@ -72,7 +72,13 @@ pub fn climate(c: &Ctx, cl: &RawClimate) -> Result<Climate> {
 
 /// Exactly one of: sinusoid, series, design year from a series.
 fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
-    let sinus_given = cl.mean_c.is_some() || cl.amplitude_k.is_some() || cl.coldest_day.is_some();
+    let sinus_given = cl.mean_c.is_some()
+        || cl.amplitude_k.is_some()
+        || cl.coldest_day.is_some()
+        || cl.thawing_index_c_days.is_some()
+        || (cl.design_freezing_index_c_days.is_some()
+            && cl.series.is_none()
+            && cl.design_from_series.is_none());
     let kinds = usize::from(sinus_given)
         + usize::from(cl.series.is_some())
         + usize::from(cl.design_from_series.is_some());
@@ -80,7 +86,7 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
         return Err(c.err_file(
             "climate",
             InputKind::Conflict,
-            "give exactly one of: mean_c + amplitude_k + coldest_day (a sinusoid), series = \"file.csv\" (a measured series), or design_from_series = \"file.csv\" (a design year)",
+            "give exactly one of: a sinusoid (mean_c + amplitude_k [+ coldest_day], or design_freezing_index_c_days with mean_c or thawing_index_c_days), series = \"file.csv\" (a measured series), or design_from_series = \"file.csv\" (a design year)",
         ));
     }
     if sinus_given {
@@ -137,39 +143,66 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
     })
 }
 
-/// mean_c, amplitude_k, coldest_day, all three required.
+/// The sinusoidal year: `mean_c`, `amplitude_k` and `coldest_day`, with an optional design air
+/// freezing index. Given the design freezing index, the amplitude may be left out (the repeated
+/// year is then the design year itself: ground as cold as after design winter after design
+/// winter, the conservative reading of a design index with a mean temperature), the mean may come
+/// from a thawing index instead (over a year ∫θ dt = I_T − I_F, so θ_m = (I_T − I_F)/365 d), and
+/// the coldest day defaults to 15 January (common practice: January is the coldest month of
+/// northern mid-latitude climates; only the dates of the results depend on it).
 fn sinusoid(c: &Ctx, cl: &RawClimate) -> Result<Source> {
-    let need = |v: &Option<S<f64>>, k: &str| {
-        v.clone().ok_or_else(|| {
-            c.err_file(
-                &format!("climate.{k}"),
-                InputKind::Missing,
-                "missing; a sinusoid needs mean_c, amplitude_k and coldest_day",
-            )
-        })
-    };
-    let (m, a, d) = (
-        need(&cl.mean_c, "mean_c")?,
-        need(&cl.amplitude_k, "amplitude_k")?,
-        need(&cl.coldest_day, "coldest_day")?,
-    );
-    let mean_c = c.range_incl(&m, "climate.mean_c", 0.1, 30.0, "°C").map_err(|_| {
-        c.err(m.span(), "climate.mean_c", InputKind::OutOfScope, format!(
-            "{} °C is out of range; allowed: 0.1 to 30 °C (the model assumes ground that thaws every year: no permafrost)", m.get_ref()))
-    })?;
-    let amplitude_k = c.range_incl(&a, "climate.amplitude_k", 0.0, 30.0, "K")?;
     let key = "climate.design_freezing_index_c_days";
-    let design_winter = match &cl.design_freezing_index_c_days {
+    let fi = match &cl.design_freezing_index_c_days {
         None => None,
-        Some(f) => {
-            let fi = c.range(f, key, 0.0, 10_000.0, "°C·d")?;
-            Some(design_winter(c, f, key, (mean_c, amplitude_k), fi, None)?)
+        Some(f) => Some((f, c.range(f, key, 0.0, 10_000.0, "°C·d")?)),
+    };
+    let missing = |k: &str, why: &str| c.err_file(&format!("climate.{k}"), InputKind::Missing, why);
+    let mean_c = match (&cl.mean_c, &cl.thawing_index_c_days, fi) {
+        (Some(m), None, _) => c.range_incl(m, "climate.mean_c", 0.1, 30.0, "°C").map_err(|e| {
+            let Error::Input { location, key, message, .. } = e else { return e };
+            Error::input(location, &key, InputKind::OutOfScope, format!(
+                "{message} (the model assumes ground that thaws every year: no permafrost)"))
+        })?,
+        (None, Some(t), Some((_, fi))) => {
+            let ti = c.range(t, "climate.thawing_index_c_days", 0.0, 20_000.0, "°C·d")?;
+            let m = (ti - fi) / 365.0;
+            if !(0.1..=30.0).contains(&m) {
+                return Err(c.err(t.span(), "climate.thawing_index_c_days", InputKind::OutOfScope, format!(
+                    "with the design freezing index it gives a mean of {m:.2} °C; allowed: a mean of 0.1 to 30 °C (no permafrost)")));
+            }
+            m
         }
+        (Some(_), Some(t), _) => {
+            return Err(c.err(t.span(), "climate.thawing_index_c_days", InputKind::Conflict,
+                "given with mean_c; allowed: one of mean_c and thawing_index_c_days"))
+        }
+        (None, Some(t), None) => {
+            return Err(c.err(t.span(), "climate.thawing_index_c_days", InputKind::Missing,
+                "a thawing index sets the mean only with design_freezing_index_c_days; allowed: mean_c, or both indices"))
+        }
+        (None, None, _) => return Err(missing("mean_c", "missing; a sinusoid needs mean_c (or a thawing index with a design freezing index)")),
+    };
+    let amplitude_k = match (&cl.amplitude_k, fi) {
+        (Some(a), _) => c.range_incl(a, "climate.amplitude_k", 0.0, 30.0, "K")?,
+        (None, Some((_, fi))) => pc::amplitude_for_freezing_index(mean_c, fi),
+        (None, None) => {
+            return Err(missing(
+                "amplitude_k",
+                "missing; a sinusoid needs amplitude_k (or a design freezing index)",
+            ))
+        }
+    };
+    let design_winter = match fi {
+        None => None,
+        Some((f, fi)) => Some(design_winter(c, f, key, (mean_c, amplitude_k), fi, None)?),
     };
     Ok(Source {
         mean_c,
         amplitude_k,
-        coldest_day: c.range_incl(&d, "climate.coldest_day", 1.0, 365.0, "day of year")?,
+        coldest_day: match &cl.coldest_day {
+            Some(d) => c.range_incl(d, "climate.coldest_day", 1.0, 365.0, "day of year")?,
+            None => 15.0,
+        },
         source: ClimateSource::Sinusoid,
         design_winter,
     })
@@ -239,7 +272,8 @@ fn design_winter<T>(
     from_series: Option<DesignYear>,
 ) -> Result<DesignWinter> {
     let normal_fi = crate::methods::sinusoid_freezing_index(mean_c, amplitude_k).0;
-    if fi < normal_fi {
+    // (An amplitude solved from `fi` reproduces it to rounding.)
+    if fi < normal_fi * (1.0 - 1e-9) {
         return Err(c.err(at.span(), key, InputKind::OutOfRange, format!(
             "a design freezing index of {fi:.0} °C·d is below the normal climate's {normal_fi:.0} °C·d (mean {mean_c:.2} °C, amplitude {amplitude_k:.2} K); allowed: at least the normal winter's index")));
     }

@@ -2,6 +2,7 @@
 //! names the file, line and column of the offending value, the key, the value and what is
 //! allowed.
 use super::raw::{RawMaterial, S};
+use super::units::{from_si, Rewritten};
 use crate::error::{Error, InputKind, Location, Result};
 use crate::physics::library::{named_material, MATERIAL_NAMES};
 use crate::physics::material::Material;
@@ -11,12 +12,15 @@ use std::ops::Range;
 pub struct Ctx<'a> {
     /// File name as given by the user.
     pub file: &'a str,
-    /// The file's text.
-    pub src: &'a str,
+    /// The file's text as the user wrote it.
+    pub user: &'a str,
+    /// The same text in SI units, the one parsed (spans refer to it), and the map back.
+    pub units: &'a Rewritten,
 }
 
 impl Ctx<'_> {
-    /// An error at byte range `span`.
+    /// An error at byte range `span` of the SI text, located in the user's text; a key given
+    /// in a US unit is named as the user wrote it.
     pub fn err(
         &self,
         span: Range<usize>,
@@ -24,12 +28,45 @@ impl Ctx<'_> {
         kind: InputKind,
         msg: impl Into<String>,
     ) -> Error {
+        let key = match self.units.given_at(span.start) {
+            Some(g) => key
+                .strip_suffix(g.unit.si)
+                .map_or(key.to_string(), |stem| format!("{stem}{}", g.unit.us)),
+            None => key.to_string(),
+        };
         Error::input(
-            Location::from_offset(self.file, self.src, span.start),
-            key,
+            Location::from_offset(self.file, self.user, self.units.user_offset(span.start)),
+            &key,
             kind,
             msg,
         )
+    }
+
+    /// "V U is out of range; allowed: …" in the user's unit when `v` was given in a US unit;
+    /// `bounds` formats the allowed range from two bound texts.
+    fn out_of_range(
+        &self,
+        v: &S<f64>,
+        (lo, hi): (f64, f64),
+        unit: &str,
+        bounds: impl Fn(&str, &str, &str) -> String,
+    ) -> String {
+        match self.units.given_at(v.span().start) {
+            Some(g) => {
+                let (a, b) = (from_si(g.unit, lo), from_si(g.unit, hi));
+                format!(
+                    "{} {} is out of range; allowed: {}",
+                    g.text,
+                    g.unit.label,
+                    bounds(&a, &b, g.unit.label)
+                )
+            }
+            None => format!(
+                "{} {unit} is out of range; allowed: {}",
+                v.get_ref(),
+                bounds(&lo.to_string(), &hi.to_string(), unit)
+            ),
+        }
     }
 
     /// An error naming only the file (a key that is absent has no position).
@@ -49,12 +86,10 @@ impl Ctx<'_> {
     pub fn range(&self, v: &S<f64>, key: &str, lo: f64, hi: f64, unit: &str) -> Result<f64> {
         let x = *v.get_ref();
         if !x.is_finite() || x <= lo || x > hi {
-            return Err(self.err(
-                v.span(),
-                key,
-                InputKind::OutOfRange,
-                format!("{x} {unit} is out of range; allowed: greater than {lo} and at most {hi} {unit}"),
-            ));
+            let msg = self.out_of_range(v, (lo, hi), unit, |a, b, u| {
+                format!("greater than {a} and at most {b} {u}")
+            });
+            return Err(self.err(v.span(), key, InputKind::OutOfRange, msg));
         }
         Ok(x)
     }
@@ -63,12 +98,8 @@ impl Ctx<'_> {
     pub fn range_incl(&self, v: &S<f64>, key: &str, lo: f64, hi: f64, unit: &str) -> Result<f64> {
         let x = *v.get_ref();
         if !x.is_finite() || x < lo || x > hi {
-            return Err(self.err(
-                v.span(),
-                key,
-                InputKind::OutOfRange,
-                format!("{x} {unit} is out of range; allowed: {lo} to {hi} {unit}"),
-            ));
+            let msg = self.out_of_range(v, (lo, hi), unit, |a, b, u| format!("{a} to {b} {u}"));
+            return Err(self.err(v.span(), key, InputKind::OutOfRange, msg));
         }
         Ok(x)
     }

@@ -16,6 +16,7 @@ pub mod raw;
 mod simulation;
 mod sizing;
 mod soil;
+pub mod units;
 
 pub use layout::{Part, Rect};
 pub use model::*;
@@ -27,8 +28,16 @@ use raw::RawCase;
 /// Parse and validate the case text `src`, read from `file` (used in messages and to resolve
 /// relative paths of climate and soil files).
 pub fn parse_case(file: &str, src: &str) -> Result<Case> {
-    let raw: RawCase = toml::from_str(src).map_err(|e| toml_error(file, src, &e))?;
-    validate(&Ctx { file, src }, raw)
+    let si = units::rewrite(file, src)?;
+    let raw: RawCase = toml::from_str(&si.si).map_err(|e| toml_error(file, src, &si, &e))?;
+    validate(
+        &Ctx {
+            file,
+            user: src,
+            units: &si,
+        },
+        raw,
+    )
 }
 
 /// Read, parse and validate a case file.
@@ -62,13 +71,13 @@ pub fn load_case(path: &std::path::Path) -> Result<Case> {
 
 /// A TOML syntax or type error, located, with the key it concerns: the first `quoted` name in the
 /// message, else the key on the error's line, under the table the error sits in.
-fn toml_error(file: &str, src: &str, e: &toml::de::Error) -> Error {
+fn toml_error(file: &str, src: &str, si: &units::Rewritten, e: &toml::de::Error) -> Error {
     let msg = e.message().to_string();
-    let (location, table, line_key) = match e.span() {
-        Some(sp) => (
-            Location::from_offset(file, src, sp.start),
-            table_at(src, sp.start),
-            key_on_line(src, sp.start),
+    let (location, table, line_key) = match e.span().map(|sp| si.user_offset(sp.start)) {
+        Some(at) => (
+            Location::from_offset(file, src, at),
+            table_at(src, at),
+            key_on_line(src, at),
         ),
         None => (Location::file_only(file), String::new(), None),
     };
@@ -216,7 +225,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         plan,
         corners,
         file: c.file.to_string(),
-        source: c.src.to_string(),
+        source: c.user.to_string(),
         name: raw.name,
         building,
         slab: cons.slab,

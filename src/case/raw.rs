@@ -253,6 +253,7 @@ pub struct RawClimate {
     pub amplitude_k: Option<S<f64>>,
     pub coldest_day: Option<S<f64>>,
     pub design_freezing_index_c_days: Option<S<f64>>,
+    pub thawing_index_c_days: Option<S<f64>>,
     pub series: Option<S<String>>,
     pub design_from_series: Option<S<String>>,
     pub return_period_years: Option<S<f64>>,

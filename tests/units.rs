@@ -1,0 +1,141 @@
+//! US customary units in the case file: the same building in SI and US units gives the same
+//! results, errors name the user's key, value and allowed range in the user's unit, and a design
+//! freezing index with a mean temperature (or a thawing index) is a climate.
+use frostline::case::parse_case;
+use serde_json::Value;
+use std::path::Path;
+
+fn example(name: &str) -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("examples")
+            .join(name),
+    )
+    .unwrap()
+}
+
+/// Every number of `a` equals `b`'s to 1e-9 relative plus 1e-9 absolute (round-off: energy
+/// balances of 1e-16, solver residuals), recursively; strings, the provenance and the wall-clock
+/// time may differ.
+fn same_numbers(a: &Value, b: &Value, path: &str, diffs: &mut Vec<String>) {
+    match (a, b) {
+        (Value::Number(x), Value::Number(y)) => {
+            let (x, y) = (x.as_f64().unwrap(), y.as_f64().unwrap());
+            if (x - y).abs() > 1e-9 * x.abs().max(y.abs()) + 1e-9 {
+                diffs.push(format!("{path}: {x} vs {y}"));
+            }
+        }
+        (Value::Object(x), Value::Object(y)) => {
+            for (k, v) in x {
+                if k != "provenance" && k != "wall_time_s" {
+                    same_numbers(v, &y[k], &format!("{path}.{k}"), diffs);
+                }
+            }
+        }
+        (Value::Array(x), Value::Array(y)) if x.len() == y.len() => {
+            for (k, (v, w)) in x.iter().zip(y).enumerate() {
+                same_numbers(v, w, &format!("{path}[{k}]"), diffs);
+            }
+        }
+        (Value::Array(_), Value::Array(_)) => diffs.push(format!("{path}: lengths differ")),
+        _ => {}
+    }
+}
+
+/// examples/tamarack-flats-house-us.toml and its SI twin (values converted by the exact
+/// definitions of the inch, foot and degree Fahrenheit and NIST SP 811's R-value factor) give
+/// the same summary.json numbers and the same daily.csv, to rounding.
+#[test]
+fn us_and_si_examples_give_the_same_results() {
+    let mut summaries = Vec::new();
+    let mut dailies = Vec::new();
+    for f in ["us", "si"] {
+        let out = crate::cli::scratch(&format!("units-{f}"));
+        let case = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join(format!("examples/tamarack-flats-house-{f}.toml"));
+        crate::common::run_ok(&[
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+            "--mesh".as_ref(),
+            "coarse".as_ref(),
+            "--quiet".as_ref(),
+            "--no-plots".as_ref(),
+        ]);
+        summaries.push(crate::common::read_json(&out.join("summary.json")));
+        dailies.push(std::fs::read_to_string(out.join("daily.csv")).unwrap());
+    }
+    let mut diffs = Vec::new();
+    same_numbers(&summaries[0], &summaries[1], "summary", &mut diffs);
+    assert!(diffs.is_empty(), "{diffs:#?}");
+    assert_eq!(dailies[0], dailies[1]);
+    // The climate: 2,500 °F·d is 2500 × 5/9 = 1,388.9 °C·d (NIST SP 811: 1 °F = 5/9 K), and the
+    // amplitude solved for it reproduces it through the sinusoid's closed-form index.
+    for s in &summaries {
+        let fi = s["design_winter"]["freezing_index_c_days"]
+            .as_f64()
+            .unwrap();
+        assert!((fi - 2500.0 * 5.0 / 9.0).abs() < 1e-9, "{fi}");
+        let fi = s["cross_check"]["freezing_index_c_days"].as_f64().unwrap();
+        assert!((fi - 2500.0 * 5.0 / 9.0).abs() < 1e-6, "{fi}");
+    }
+}
+
+/// A value in a US unit out of range is named as the user wrote it: key, value, allowed range
+/// in that unit (1 m = 39.37 in; 0.1 °C = 32.18 °F, 30 °C = 86 °F by t/°F = 1.8 t/°C + 32), at
+/// the user's line and column.
+#[test]
+fn us_errors_name_the_users_unit() {
+    let src = example("tamarack-flats-house-us.toml");
+    let bad = src.replace("[slab]\nthickness_in = 4.0", "[slab]\nthickness_in = 100");
+    let line = bad.lines().position(|l| l == "thickness_in = 100").unwrap() + 1;
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert_eq!(
+        e,
+        format!("us.toml:{line}:16: slab.thickness_in: 100 in is out of range; allowed: greater than 0 and at most 39.37 in")
+    );
+    let bad = src.replace("mean_f = 40.0 ", "mean_f = 20.0 ");
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(
+        e.contains("climate.mean_f: 20.0 °F is out of range; allowed: 32.18 to 86 °F"),
+        "{e}"
+    );
+    // One unit per key.
+    let bad = src.replace("[wall]\n", "[wall]\nthickness_m = 0.2\n");
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(e.contains("given in two units"), "{e}");
+    // A syntax error after a converted value is still located in the user's text.
+    let bad = src.replace("material = \"gravel\"", "material = gravel");
+    let line = bad.lines().position(|l| l == "material = gravel").unwrap() + 1;
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(e.starts_with(&format!("us.toml:{line}:")), "{e}");
+}
+
+/// A design freezing index with a mean temperature is a climate: the amplitude is the one whose
+/// sinusoid has that index (closed form, methods::sinusoid_freezing_index); with a thawing index
+/// instead of the mean, θ_m = (I_T − I_F)/365 d (∫θ dt over a year = I_T − I_F).
+#[test]
+fn design_freezing_index_climates() {
+    let src = example("tamarack-flats-house-si.toml");
+    let c = parse_case("si.toml", &src).unwrap();
+    let (fi, _) =
+        frostline::methods::sinusoid_freezing_index(c.climate.mean_c, c.climate.amplitude_k);
+    assert!((fi - 2500.0 / 1.8).abs() < 1e-6, "{fi}");
+    assert_eq!(c.climate.coldest_day, 15.0);
+    let ti = 1388.888888888889 + 365.0 * 4.444444444444445;
+    let by_ti = src.replace(
+        "mean_c = 4.444444444444445 ",
+        &format!("thawing_index_c_days = {ti} "),
+    );
+    let c2 = parse_case("si.toml", &by_ti).unwrap();
+    assert!((c2.climate.mean_c - 4.444444444444445).abs() < 1e-9);
+    assert!((c2.climate.amplitude_k - c.climate.amplitude_k).abs() < 1e-9);
+    // Both the mean and a thawing index: refused.
+    let both = src.replace(
+        "mean_c = 4.444444444444445 ",
+        &format!("thawing_index_c_days = {ti}\nmean_c = 4.444444444444445 "),
+    );
+    let e = parse_case("si.toml", &both).unwrap_err().to_string();
+    assert!(e.contains("one of mean_c and thawing_index_c_days"), "{e}");
+}
