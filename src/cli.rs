@@ -114,6 +114,25 @@ pub enum ModelArg {
     ThreeD,
 }
 
+/// Units of the results shown.
+#[derive(ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum UnitsArg {
+    /// SI (m, W, kWh, °C).
+    #[default]
+    Si,
+    /// US customary (ft, Btu/h, kBtu, °F), beside the SI files.
+    Us,
+}
+
+impl From<UnitsArg> for files::us::Units {
+    fn from(u: UnitsArg) -> Self {
+        match u {
+            UnitsArg::Si => files::us::Units::Si,
+            UnitsArg::Us => files::us::Units::Us,
+        }
+    }
+}
+
 /// What `run` prints on standard output.
 #[derive(ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum FormatArg {
@@ -168,6 +187,10 @@ pub struct RunArgs {
     /// Standard output: the result table, or summary.json for pipes.
     #[arg(long, value_enum, default_value_t = FormatArg::Table)]
     pub format: FormatArg,
+    /// Units of the result table, the report and the extra `summary_us.json` and `*_us.csv`
+    /// files (summary.json and the CSV files stay in SI).
+    #[arg(long, value_enum, default_value_t = UnitsArg::Si)]
+    pub units: UnitsArg,
 }
 
 /// Gumbel fitting method on the command line.
@@ -224,6 +247,10 @@ pub struct SizeArgs {
     /// graphics at any size; the animation stays at 96.
     #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
     pub dpi: Option<u32>,
+    /// Units of the result table, the report and the extra `summary_us.json` and `*_us.csv`
+    /// files (summary.json and the CSV files stay in SI).
+    #[arg(long, value_enum, default_value_t = UnitsArg::Si)]
+    pub units: UnitsArg,
 }
 
 /// Arguments of `soil`.
@@ -366,6 +393,24 @@ pub fn main_exit_code() -> i32 {
     }
 }
 
+/// `print!` through [`write_stdout`]: a closed pipe (`frostline run … | head`) ends the output
+/// quietly instead of a panic.
+macro_rules! say {
+    ($($t:tt)*) => {
+        let _ = write_stdout(format!($($t)*).as_bytes());
+    };
+}
+
+/// `println!` through [`write_stdout`].
+macro_rules! sayln {
+    () => {
+        say!("\n")
+    };
+    ($($t:tt)*) => {
+        say!("{}\n", format!($($t)*))
+    };
+}
+
 /// Write `bytes` to standard output; a closed pipe (`| head`) is not an error.
 fn write_stdout(bytes: &[u8]) -> Result<(), Error> {
     use std::io::Write;
@@ -381,12 +426,12 @@ fn write_stdout(bytes: &[u8]) -> Result<(), Error> {
 fn execute(cli: Cli) -> Result<Vec<String>, Error> {
     match cli.command {
         Command::Check { case } => {
-            print!("{}", text::check_text(&load_case(&case)?)?);
+            say!("{}", text::check_text(&load_case(&case)?)?);
             Ok(Vec::new())
         }
         Command::Size(a) => size(a),
         Command::Soil(a) => {
-            print!("{}", soil(&a)?);
+            say!("{}", soil(&a)?);
             Ok(Vec::new())
         }
         Command::Climate(a) => climate(a).map(|_| Vec::new()),
@@ -526,13 +571,13 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         bar.finish_and_clear();
         let r3 = r3?;
         files::remove_previous(&a.out)?;
-        files::write_run3(&case, &r3, &cc, &a.out)?
+        files::write_run3(&case, &r3, &cc, &a.out, a.units.into())?
     } else {
         let result = run::run(&case, &mut cb);
         bar.finish_and_clear();
         let result = result?;
         files::remove_previous(&a.out)?;
-        files::write_run(&case, &result, &cc, &a.out)?
+        files::write_run(&case, &result, &cc, &a.out, a.units.into())?
     };
     if !a.no_plots {
         written.extend(render(&a.out, a.animate, a.dpi)?);
@@ -540,9 +585,9 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
     written.push(files::write_manifest(&a.out, &written, false)?);
     let summary = files::read_summary(&a.out)?;
     if a.format == FormatArg::Json {
-        print!("{}", files::read_text(&a.out, "summary.json")?);
+        say!("{}", files::read_text(&a.out, "summary.json")?);
     } else {
-        print!("{}", text::result_table(&summary));
+        say!("{}", text::result_table(&summary));
         print_files(&a.out, &written);
     }
     Ok(unmet(&summary))
@@ -599,6 +644,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             r3,
             &estimate::cross_check(chosen),
             &a.out,
+            a.units.into(),
         )?);
         written.extend(render(&a.out, false, a.dpi)?);
     } else if let Some((chosen, r)) = &result.chosen_run {
@@ -607,11 +653,12 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             r,
             &estimate::cross_check(chosen),
             &a.out,
+            a.units.into(),
         )?);
         written.extend(render(&a.out, false, a.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
-    print!(
+    say!(
         "{}",
         report::sizing::text(&files::SizingFile::new(&case, &result))
     );
@@ -692,11 +739,11 @@ fn climate(a: ClimateArgs) -> Result<(), Error> {
     };
     let series = read_series(&a.series, &opts)?;
     let s = summarize(&series, a.return_period, a.fit.into())?;
-    print!("{}", text::climate_text(&s));
+    say!("{}", text::climate_text(&s));
     if let Some(dir) = a.out {
         files::create_dir(&dir)?;
         let p = files::write_json(&dir, "climate_summary.json", &s)?;
-        println!("\n  wrote {}", p.display());
+        sayln!("\n  wrote {}", p.display());
     }
     Ok(())
 }
@@ -731,16 +778,16 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
     written.push(report::html::write_report_to(&a.dir, out)?);
     written.push(files::write_manifest(out, &written, true)?);
     for f in written {
-        println!("{}", f.display());
+        sayln!("{}", f.display());
     }
     Ok(())
 }
 
 /// List the files written in `dir`, by name.
 fn print_files(dir: &Path, written: &[PathBuf]) {
-    println!("\n  Files in {}:", dir.display());
+    sayln!("\n  Files in {}:", dir.display());
     for f in written {
-        println!(
+        sayln!(
             "    {}",
             f.file_name()
                 .map(|s| s.to_string_lossy())

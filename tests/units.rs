@@ -139,3 +139,66 @@ fn design_freezing_index_climates() {
     let e = parse_case("si.toml", &both).unwrap_err().to_string();
     assert!(e.contains("one of mean_c and thawing_index_c_days"), "{e}");
 }
+
+/// `--units us`: summary.json and the CSV files stay in SI; summary_us.json and NAME_us.csv
+/// beside them carry US keys and values (1 ft = 0.3048 m, 1 kWh = 3.412 142 kBtu, t/°F =
+/// 1.8 t/°C + 32: NIST SP 811 B.9), and the terminal table and the report show US units with the
+/// same figures.
+#[test]
+fn results_in_us_units() {
+    let out = crate::cli::scratch("units-out");
+    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/tamarack-flats-house-us.toml");
+    let stdout = crate::common::run_ok(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+        "--quiet".as_ref(),
+        "--units".as_ref(),
+        "us".as_ref(),
+    ]);
+    let si = crate::common::read_json(&out.join("summary.json"));
+    let us = crate::common::read_json(&out.join("summary_us.json"));
+    let n = |v: &Value, k: &str| v[k].as_f64().unwrap_or_else(|| panic!("{k}"));
+    let close = |a: f64, b: f64| (a - b).abs() <= 1e-9 * a.abs().max(1.0);
+    assert!(close(
+        n(&us, "frost_margin_ft"),
+        n(&si, "frost_margin_m") / 0.3048
+    ));
+    // 1 kWh = 3.6 MJ / 1.055 055 852 62 kJ per Btu_IT = 3.412 142 kBtu (to 7 digits).
+    let kbtu = n(&si, "annual_heat_loss_kwh") * 3.6e6 / 1_055_055.852_62;
+    assert!((n(&us, "annual_heat_loss_kbtu") - kbtu).abs() < 1e-6 * kbtu);
+    assert!(close(
+        n(&us, "mean_outdoor_temperature_f"),
+        n(&si, "mean_outdoor_temperature_c") * 1.8 + 32.0
+    ));
+    assert!(si.get("frost_margin_ft").is_none() && us.get("frost_margin_m").is_none());
+    let daily = std::fs::read_to_string(out.join("daily_us.csv")).unwrap();
+    let head = daily.lines().next().unwrap();
+    assert!(head.contains("frost_depth_open_ground_ft") && head.contains("outdoor_temperature_f"));
+    assert!(std::fs::read_to_string(out.join("daily.csv"))
+        .unwrap()
+        .starts_with("day_of_year,date,outdoor_temperature_c"));
+    // The table: the footing base 16 in = 1.33 ft, the margin in ft as in summary_us.json.
+    let base = stdout
+        .lines()
+        .find(|l| l.trim_start().starts_with("footing base"))
+        .unwrap();
+    assert!(
+        base.contains(" ft ") && base.trim_end().ends_with("1.33"),
+        "{base}"
+    );
+    let margin = format!("{:.2}", n(&us, "frost_margin_ft"));
+    assert!(stdout
+        .lines()
+        .any(|l| l.contains("margin") && l.trim_end().ends_with(&margin)));
+    assert!(stdout.contains("kBtu") && stdout.contains("Btu/(h·ft²·°F)"));
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        html.contains(&format!("<td class=n>{margin}</td>")),
+        "report margin {margin}"
+    );
+    assert!(html.contains("<td>Btu/(h·ft²·°F)</td>"));
+}

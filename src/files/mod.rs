@@ -7,6 +7,7 @@ pub mod sizing;
 pub mod summary;
 pub mod tables;
 pub mod three;
+pub mod us;
 
 pub use section::{read_fields, read_section, PlotEntry, PlotIndex, SectionFile, NO_VALUE};
 pub use sizing::{SizingFile, SIZING_CAUTION};
@@ -340,10 +341,45 @@ pub fn read_sizing(dir: &Path) -> Result<Option<SizingFile>> {
 
 /// Write every result file of a run of `case` (with its cross-checks `cc`) into `dir` (created
 /// if missing); returns the paths.
-pub fn write_run(case: &Case, r: &RunResult, cc: &CrossCheck, dir: &Path) -> Result<Vec<PathBuf>> {
-    let (mut files, notes) = write_run_summary(case, r, dir, Summary::new(case, r, cc))?;
+pub fn write_run(
+    case: &Case,
+    r: &RunResult,
+    cc: &CrossCheck,
+    dir: &Path,
+    units: us::Units,
+) -> Result<Vec<PathBuf>> {
+    let mut s = Summary::new(case, r, cc);
+    s.units = units;
+    let (mut files, notes) = write_run_summary(case, r, dir, s)?;
     files.push(write_json(dir, "csv_notes.json", &notes)?);
+    files.extend(write_us(dir, &files, units)?);
     Ok(files)
+}
+
+/// With US units: `summary_us.json` and a `NAME_us.csv` beside each CSV file of `files` (keys
+/// and columns renamed to US units, values converted; [`us`]).
+fn write_us(dir: &Path, files: &[PathBuf], units: us::Units) -> Result<Vec<PathBuf>> {
+    if units == us::Units::Si {
+        return Ok(Vec::new());
+    }
+    let mut out = Vec::new();
+    let summary: serde_json::Value = serde_json::from_str(&read_text(dir, "summary.json")?)
+        .map_err(|e| bad_file(dir, "summary.json", e))?;
+    out.push(write_json(dir, "summary_us.json", &us::json(&summary))?);
+    for f in files {
+        let Some(name) = f.file_name().and_then(|n| n.to_str()) else {
+            continue;
+        };
+        if let Some(stem) = name.strip_suffix(".csv") {
+            let text = read_text(dir, name)?;
+            out.push(write_atomic(
+                dir,
+                &format!("{stem}_us.csv"),
+                us::csv(&text)?.as_bytes(),
+            )?);
+        }
+    }
+    Ok(out)
 }
 
 /// Write every result file of a 3D run: the 2D section's files (the equivalent strip, its
@@ -353,14 +389,17 @@ pub fn write_run3(
     r: &crate::run::three::Run3Result,
     cc: &CrossCheck,
     dir: &Path,
+    units: us::Units,
 ) -> Result<Vec<PathBuf>> {
     let mut s = Summary::new(case, &r.two, cc);
+    s.units = units;
     s.three_d = Some(three::Summary3::new(case, r));
     let (mut files, mut notes) = write_run_summary(case, &r.two, dir, s)?;
     notes.coordinates += " 3D files: plan X along the length and Y along the width from the building's centre; section x outward from the wall's exterior face.";
     let head = format!("{}\n{CAUTION}\n3D model: whole-building heat loss; frost columns are the worst along the perimeter.", case.name);
     files.extend(three::write_3d(case, r, dir, (&head, &mut notes))?);
     files.push(write_json(dir, "csv_notes.json", &notes)?);
+    files.extend(write_us(dir, &files, units)?);
     Ok(files)
 }
 

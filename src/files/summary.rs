@@ -218,6 +218,10 @@ pub fn materials_of(case: &Case) -> Vec<MaterialInfo> {
 pub struct Summary {
     /// Case name.
     pub case_name: String,
+    /// The units of the terminal table, the report and the `_us` files (`--units`); this file
+    /// is in SI whatever they are.
+    #[serde(default)]
+    pub units: super::us::Units,
     /// Where the results came from: tool version, time, input files and their SHA-256 digests.
     #[serde(default)]
     pub provenance: Option<Provenance>,
@@ -383,6 +387,7 @@ impl Summary {
         let st = r.stats;
         let series = !r.winters.is_empty();
         Summary {
+            units: super::us::Units::Si,
             provenance: Some(Provenance::of(case)),
             materials: materials_of(case),
             case_name: case.name.clone(),

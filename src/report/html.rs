@@ -20,6 +20,9 @@ pub fn escape(s: &str) -> String {
 }
 
 fn row(out: &mut String, name: &str, unit: &str, model: String, check: String, method: &str) {
+    let (model, shown_unit) = super::shown_cell(unit, &model);
+    let (check, _) = super::shown_cell(unit, &check);
+    let unit = shown_unit.as_str();
     out.push_str(&format!(
         "<tr><td>{}</td><td>{}</td><td class=n>{}</td><td class=n>{}</td><td>{}</td></tr>\n",
         escape(name),
@@ -43,6 +46,16 @@ pub const FIGURES: &[(&str, &str)] = &[
 ];
 
 /// `v` with `d` decimals, "–" if not finite.
+/// A results-table figure kept exact until the row shows it in the units being rendered
+/// ([`super::shown_cell`]): the value and its SI decimals.
+fn raw(v: f64, d: usize) -> String {
+    if v.is_finite() {
+        format!("{v:e}#{d}")
+    } else {
+        "–".into()
+    }
+}
+
 pub(super) fn f(v: f64, d: usize) -> String {
     if v.is_finite() {
         format!("{v:.d$}")
@@ -59,6 +72,10 @@ pub fn write_report(dir: &Path) -> Result<PathBuf> {
 /// Write `out/report.html` from the run's files in `dir`, embedding the plots in `out`.
 pub fn write_report_to(dir: &Path, out: &Path) -> Result<PathBuf> {
     let s = files::read_summary(dir)?;
+    super::in_units(s.units, || report(dir, out, s))
+}
+
+fn report(dir: &Path, out: &Path, s: files::Summary) -> Result<PathBuf> {
     let case_text = files::read_case_copy(dir, &s)?;
     let sizing = files::read_sizing(dir)?;
     let mut h = String::new();
@@ -165,33 +182,33 @@ type Row = (&'static str, &'static str, String, String, &'static str);
 
 fn heat_rows(s: &Summary) -> Vec<Row> {
     let cc = &s.cross_check;
-    let opt = |v: Option<f64>, d: usize| f(v.unwrap_or(f64::NAN), d);
+    let opt = |v: Option<f64>, d: usize| raw(v.unwrap_or(f64::NAN), d);
     let mut rows: Vec<Row> = vec![
         (
             "annual ground heat loss (floor and junction)",
             "kWh",
-            f(s.annual_heat_loss_kwh, 0),
+            raw(s.annual_heat_loss_kwh, 0),
             "–".into(),
             "",
         ),
         (
             "mean ground heat loss",
             "W",
-            f(s.mean_heat_loss_w, 1),
+            raw(s.mean_heat_loss_w, 1),
             "–".into(),
             "",
         ),
         (
             "peak ground heat loss (daily mean)",
             "W",
-            f(s.peak_heat_loss_w, 1),
+            raw(s.peak_heat_loss_w, 1),
             "–".into(),
             "the design winter's when there is one",
         ),
         (
             "ground heat loss per metre of exposed perimeter",
             "W/m",
-            f(s.heat_loss_per_perimeter_w_per_m, 2),
+            raw(s.heat_loss_per_perimeter_w_per_m, 2),
             "–".into(),
             "",
         ),
@@ -204,7 +221,7 @@ fn heat_rows(s: &Summary) -> Vec<Row> {
         ),
     ];
     if s.basement.is_none() {
-        rows.push(("floor U-value (no junction)", "W/(m²·K)", opt(s.floor_u_value_w_per_m2k, 3), f(cc.iso13370_u_value_w_per_m2k, 3), "ISO 13370 slab-on-ground with edge insulation; model: floor-only steady coupling / (B′/2)"));
+        rows.push(("floor U-value (no junction)", "W/(m²·K)", opt(s.floor_u_value_w_per_m2k, 3), raw(cc.iso13370_u_value_w_per_m2k, 3), "ISO 13370 slab-on-ground with edge insulation; model: floor-only steady coupling / (B′/2)"));
         rows.push(("wall/floor junction Ψ_g", "W/(m·K)", opt(s.junction_psi_w_per_mk, 3), opt(s.junction_psi_iso13370_basis_w_per_mk, 3), "L2D − wall 1D part − floor part (ISO 10211 / ISO 14683 definition); model: with the model's floor U, published-method column: with the ISO 13370 U (use each Ψ_g with its own U)"));
     }
     rows.push((
@@ -217,7 +234,7 @@ fn heat_rows(s: &Summary) -> Vec<Row> {
     rows.push((
         "foundation wall above the floor: annual loss",
         "kWh",
-        f(s.wall_above_ground_heat_loss_kwh, 1),
+        raw(s.wall_above_ground_heat_loss_kwh, 1),
         "–".into(),
         "",
     ));
@@ -230,20 +247,20 @@ fn frost_rows(s: &Summary) -> Vec<Row> {
         (
             "frost depth, open ground",
             "m",
-            f(s.frost_depth_open_ground_m, 2),
+            raw(s.frost_depth_open_ground_m, 2),
             format!(
                 "{} / {}",
-                f(cc.stefan_frost_depth_m, 2),
-                f(cc.modified_berggren_frost_depth_m, 2)
+                raw(cc.stefan_frost_depth_m, 2),
+                raw(cc.modified_berggren_frost_depth_m, 2)
             ),
             "Stefan / modified Berggren, n = 1",
         ),
-        ("frost depth at the footing's outer face", "m", f(s.frost_depth_at_footing_face_m, 2), "–".into(), ""),
-        ("frost depth below the footing base", "m", f(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
-        ("frost depth beside the wall (within 0.5 m)", "m", f(s.frost_depth_beside_wall_m, 2), "–".into(), "frozen backfill above a footing counts here, not under the footing"),
-        ("footing base depth", "m", f(s.footing_base_depth_m, 2), "–".into(), ""),
-        ("frost line's closest approach to the outer base corner", "m", f(s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN), 2), "–".into(), ""),
-        ("frost margin to the protected zone", "m", f(s.frost_margin_m, 2), "–".into(), "zone below the base spreading at protected_zone_angle_deg from each base corner; negative: frost in the zone"),
+        ("frost depth at the footing's outer face", "m", raw(s.frost_depth_at_footing_face_m, 2), "–".into(), ""),
+        ("frost depth below the footing base", "m", raw(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
+        ("frost depth beside the wall (within 0.5 m)", "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "frozen backfill above a footing counts here, not under the footing"),
+        ("footing base depth", "m", raw(s.footing_base_depth_m, 2), "–".into(), ""),
+        ("frost line's closest approach to the outer base corner", "m", raw(s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN), 2), "–".into(), ""),
+        ("frost margin to the protected zone", "m", raw(s.frost_margin_m, 2), "–".into(), "zone below the base spreading at protected_zone_angle_deg from each base corner; negative: frost in the zone"),
         (
             "day of the least frost margin (the field shown)",
             "day of year",
@@ -255,7 +272,7 @@ fn frost_rows(s: &Summary) -> Vec<Row> {
             "surface freezing index (n-factor × air index)",
             "°C·d",
             "–".into(),
-            f(cc.freezing_index_c_days, 0),
+            raw(cc.freezing_index_c_days, 0),
             "design year, or the coldest winter of a series",
         ),
     ]
@@ -269,22 +286,22 @@ fn basement_rows(s: &Summary) -> Vec<Row> {
         (
             "basement floor U-value",
             "W/(m²·K)",
-            f(b.basement_floor_u_value_w_per_m2k, 3),
-            f(bc.iso13370_basement_floor_u_value_w_per_m2k, 3),
+            raw(b.basement_floor_u_value_w_per_m2k, 3),
+            raw(bc.iso13370_basement_floor_u_value_w_per_m2k, 3),
             "ISO 13370 heated basement floor",
         ),
         (
             "basement wall U-value (below ground)",
             "W/(m²·K)",
-            f(b.wall_u_value_w_per_m2k, 3),
-            f(bc.iso13370_wall_u_value_w_per_m2k, 3),
+            raw(b.wall_u_value_w_per_m2k, 3),
+            raw(bc.iso13370_wall_u_value_w_per_m2k, 3),
             "ISO 13370 basement wall (height-weighted for partial insulation)",
         ),
         (
             "effective U-value",
             "W/(m²·K)",
-            f(b.effective_u_value_w_per_m2k, 3),
-            f(bc.iso13370_effective_u_value_w_per_m2k, 3),
+            raw(b.effective_u_value_w_per_m2k, 3),
+            raw(bc.iso13370_effective_u_value_w_per_m2k, 3),
             "ISO 13370 U′ over A + z·P",
         ),
         (
@@ -292,8 +309,8 @@ fn basement_rows(s: &Summary) -> Vec<Row> {
             "kWh",
             format!(
                 "{} / {}",
-                f(b.wall_heat_loss_kwh, 0),
-                f(b.floor_heat_loss_kwh, 0)
+                raw(b.wall_heat_loss_kwh, 0),
+                raw(b.floor_heat_loss_kwh, 0)
             ),
             "–".into(),
             "",

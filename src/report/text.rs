@@ -7,12 +7,36 @@ use crate::files::{Summary, CAUTION};
 use crate::physics::climate::ClimateSummary;
 use crate::physics::library::{soil_properties, KMethod, SoilFile};
 
-/// One row of a result table: label and unit in 35 characters, then each value in 10, with
-/// `prec` decimals ("–" for a value that is not finite).
+/// An SI figure with its unit, in the units being rendered ("5.23 m", "17.2 ft").
+fn value(v: f64, si: &str, prec: usize) -> String {
+    let (u, x, d) = super::shown(si, v, prec);
+    format!("{x:.d$} {u}")
+}
+
+/// Width of a row's label and unit: 35 characters, 45 for the longer US unit names.
+fn label_width() -> usize {
+    if super::shown("W", 1.0, 0).0 == "W" {
+        35
+    } else {
+        45
+    }
+}
+
+/// A block's heading, its column titles over the rows' values.
+fn head(title: &str, columns: &str) -> String {
+    let w = label_width() + 9;
+    format!("\n  {title:<w$}{columns}\n")
+}
+
+/// One row of a result table: label and unit in [`label_width`] characters, then each value in
+/// 10, with `prec` decimals ("–" for a value that is not finite), in the units being rendered.
 fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
-    let w = 35usize.saturating_sub(unit.chars().count());
+    let si = unit;
+    let unit = super::shown(si, 0.0, prec).0;
+    let w = label_width().saturating_sub(unit.chars().count());
     let mut s = format!("    {label:<w$}{unit}");
     for v in vals {
+        let (_, v, prec) = super::shown(si, *v, prec);
         if v.is_finite() {
             s += &format!("  {v:>10.prec$}");
         } else {
@@ -24,14 +48,20 @@ fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
 
 /// The short result table printed after a run.
 pub fn result_table(s: &Summary) -> String {
+    super::in_units(s.units, || table(s))
+}
+
+fn table(s: &Summary) -> String {
     let mut t = format!("{}\n", s.case_name);
     if let Some(three) = &s.three_d {
         t += &three_rows(three);
         t += "\n  2D section (ISO 13370 equivalent strip) of the same case:\n";
     }
     t += &format!(
-        "  B' = {:.2} m, A = {:.1} m², P = {:.1} m (whole-building = per-metre section × P)\n",
-        s.characteristic_dimension_m, s.floor_area_m2, s.exposed_perimeter_m
+        "  B' = {}, A = {}, P = {} (whole-building = per-metre section × P)\n",
+        value(s.characteristic_dimension_m, "m", 2),
+        value(s.floor_area_m2, "m²", 1),
+        value(s.exposed_perimeter_m, "m", 1)
     );
     t += &heat_rows(s);
     t += &frost_rows(s);
@@ -59,7 +89,10 @@ fn three_rows(s: &Summary3) -> String {
             String::new()
         }
     );
-    t += "\n  Heat loss to the ground (floor + junction)  3D model   2D strip\n";
+    t += &head(
+        "Heat loss to the ground (floor + junction)",
+        "3D model   2D strip",
+    );
     t += &row(
         "annual",
         "kWh",
@@ -163,8 +196,10 @@ fn three_rows(s: &Summary3) -> String {
 fn heat_rows(s: &Summary) -> String {
     let c = &s.cross_check;
     let nan = f64::NAN;
-    let mut t =
-        String::from("\n  Heat loss to the ground (floor + junction)  model      ISO 13370\n");
+    let mut t = head(
+        "Heat loss to the ground (floor + junction)",
+        "model      ISO 13370",
+    );
     t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
     t += &row("mean", "W", 1, &[s.mean_heat_loss_w]);
     let peak = if s.design_winter.is_some() {
@@ -227,8 +262,9 @@ fn heat_rows(s: &Summary) -> String {
 
 fn frost_rows(s: &Summary) -> String {
     let c = &s.cross_check;
-    let mut t = String::from(
-        "\n  Frost (depths below ground level)           model      Stefan  mod. Berggren\n",
+    let mut t = head(
+        "Frost (depths below ground level)",
+        "model      Stefan  mod. Berggren",
     );
     t += &row(
         "open ground",
@@ -294,8 +330,10 @@ fn basement_rows(s: &Summary) -> String {
     let (Some(b), Some(bc)) = (&s.basement, &s.cross_check.basement) else {
         return String::new();
     };
-    let mut t =
-        String::from("\n  Heated basement (ISO 13370 definitions)     model      ISO 13370\n");
+    let mut t = head(
+        "Heated basement (ISO 13370 definitions)",
+        "model      ISO 13370",
+    );
     t += &row(
         "basement floor U-value",
         "W/(m²K)",
