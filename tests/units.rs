@@ -202,3 +202,42 @@ fn results_in_us_units() {
     );
     assert!(html.contains("<td>Btu/(h·ft²·°F)</td>"));
 }
+
+/// An unheated building: no heat-loss figures and none of the heated-floor cross-checks (ISO
+/// 13370 covers heated floors: its U and Ψ_g are not shown), in the table or the report; the frost
+/// rows and their open-ground cross-checks (Stefan, modified Berggren) stay.
+#[test]
+fn unheated_buildings_show_no_heated_floor_checks() {
+    let out = crate::cli::scratch("unheated-table");
+    let case = out.join("unheated.toml");
+    std::fs::write(
+        &case,
+        example("kettle-hollow-house.toml").replace(
+            "indoor_temperature_c = 20.0",
+            "unheated = true\n# indoor_temperature_c = 20.0",
+        ),
+    )
+    .unwrap();
+    let o = crate::cli::bin()
+        .args([
+            "run".as_ref(),
+            case.as_os_str(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ])
+        .args(["--mesh", "coarse", "--quiet"])
+        .output()
+        .unwrap();
+    // Exit 0 or 3 (the unheated footing's frost criterion may fail); the table is printed either way.
+    assert!(matches!(o.status.code(), Some(0 | 3)), "{o:?}");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(stdout.contains("Unheated building"), "{stdout}");
+    assert!(
+        !stdout.contains("model      ISO 13370") && !stdout.contains("floor U-value"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("mod. Berggren") && stdout.contains("open ground"));
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(!html.contains("floor U-value") && !html.contains("id=\"monthly\""));
+    assert!(html.contains("Unheated building"));
+}

@@ -222,6 +222,10 @@ pub struct Summary {
     /// is in SI whatever they are.
     #[serde(default)]
     pub units: super::us::Units,
+    /// An unheated building: the floor follows the outdoor air; heat-loss figures and the
+    /// heated-floor cross-checks (ISO 13370) do not apply and are not shown.
+    #[serde(default)]
+    pub unheated: bool,
     /// Where the results came from: tool version, time, input files and their SHA-256 digests.
     #[serde(default)]
     pub provenance: Option<Provenance>,
@@ -388,6 +392,7 @@ impl Summary {
         let series = !r.winters.is_empty();
         Summary {
             units: super::us::Units::Si,
+            unheated: case.building.unheated,
             provenance: Some(Provenance::of(case)),
             materials: materials_of(case),
             case_name: case.name.clone(),

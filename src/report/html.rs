@@ -130,7 +130,9 @@ fn report(dir: &Path, out: &Path, s: files::Summary) -> Result<PathBuf> {
         "Figures"
     };
     h.push_str(&figures(out, FIGURES, ("figures", heading))?);
-    h.push_str(&monthly(dir)?);
+    if !s.unheated {
+        h.push_str(&monthly(dir)?);
+    }
     h.push_str(&numerics(&s));
     h.push_str(&properties(&s.materials));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
@@ -181,6 +183,15 @@ fn results(s: &Summary) -> String {
 type Row = (&'static str, &'static str, String, String, &'static str);
 
 fn heat_rows(s: &Summary) -> Vec<Row> {
+    if s.unheated {
+        return vec![(
+            "ground heat loss",
+            "",
+            "–".into(),
+            "–".into(),
+            super::text::UNHEATED,
+        )];
+    }
     let cc = &s.cross_check;
     let opt = |v: Option<f64>, d: usize| raw(v.unwrap_or(f64::NAN), d);
     let mut rows: Vec<Row> = vec![

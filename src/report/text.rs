@@ -193,7 +193,13 @@ fn three_rows(s: &Summary3) -> String {
     t
 }
 
+/// The note shown instead of the heat-loss block for an unheated building.
+pub const UNHEATED: &str = "Unheated building: the indoor air follows the outdoor air, so there is no ground heat loss to report; the heated-floor methods (ISO 13370 U-value and Ψ_g) do not apply and are not shown.";
+
 fn heat_rows(s: &Summary) -> String {
+    if s.unheated {
+        return format!("\n  {UNHEATED}\n");
+    }
     let c = &s.cross_check;
     let nan = f64::NAN;
     let mut t = head(
