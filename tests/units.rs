@@ -241,3 +241,34 @@ fn unheated_buildings_show_no_heated_floor_checks() {
     assert!(!html.contains("floor U-value") && !html.contains("id=\"monthly\""));
     assert!(html.contains("Unheated building"));
 }
+
+/// A board given by its R-value: thickness = R λ (ISO 6946 §6.7.1, R = d/λ). R-10
+/// (h·ft²·°F/Btu) of the library's XPS (λ 0.032 W/(m·K)) is 10 × 0.176 110 2 × 0.032 m; the
+/// same case with that thickness validates to the same piece. Thickness and R together are
+/// refused.
+#[test]
+fn boards_by_r_value() {
+    let src = example("tamarack-flats-house-us.toml");
+    let wing = "kind = \"wing\"\nthickness_in = 2.0";
+    assert!(src.contains(wing));
+    let by_r = src.replace(
+        wing,
+        "kind = \"wing\"\nthermal_resistance_h_ft2_f_per_btu = 10",
+    );
+    let c = parse_case("r.toml", &by_r).unwrap();
+    let d = 10.0 * 0.176_110_2 * 0.032;
+    assert!(
+        (c.insulation[2].thickness_m - d).abs() < 1e-12,
+        "{}",
+        c.insulation[2].thickness_m
+    );
+    let by_d = src.replace(wing, &format!("kind = \"wing\"\nthickness_m = {d}"));
+    let c2 = parse_case("d.toml", &by_d).unwrap();
+    assert_eq!(
+        format!("{:?}", c2.insulation),
+        format!("{:?}", c.insulation)
+    );
+    let both = src.replace(wing, &format!("{wing}\nthermal_resistance_m2k_per_w = 1.0"));
+    let e = parse_case("b.toml", &both).unwrap_err().to_string();
+    assert!(e.contains("given with thermal_resistance_m2k_per_w"), "{e}");
+}

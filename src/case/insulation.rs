@@ -32,21 +32,15 @@ pub fn fill(c: &Ctx, raw: Option<&RawFill>) -> Result<Option<Fill>> {
 /// Every `[[insulation]]` piece, then the checks between pieces.
 pub fn insulation(c: &Ctx, raw: &[S<RawInsulation>], parts: &Parts) -> Result<Vec<Insulation>> {
     // Wings start at the outer face of any outside vertical insulation.
-    let vert_out_t: f64 = raw
-        .iter()
-        .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
-        .map(|i| *i.get_ref().thickness_m.get_ref())
-        .fold(0.0, f64::max);
+    let vert_out_t = vertical_outside_thickness(c, raw);
     // Each piece on its own: the errors of every piece are reported together.
     let mut out = Vec::new();
     let mut g = crate::error::Gather::default();
     for (k, ins) in raw.iter().enumerate() {
         let key = format!("insulation[{k}]");
-        let r = ins.get_ref();
         let piece = (|| {
-            let thickness_m =
-                c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
             let material = material(c, ins, &key)?;
+            let thickness_m = thickness(c, ins, &key, &material)?;
             let kind = kind(c, ins, &key, parts, (thickness_m, vert_out_t))?;
             Ok(Insulation {
                 kind,
@@ -59,6 +53,45 @@ pub fn insulation(c: &Ctx, raw: &[S<RawInsulation>], parts: &Parts) -> Result<Ve
     g.finish()?;
     between_pieces(c, raw, &out, parts)?;
     Ok(out)
+}
+
+/// The thickest outside vertical insulation (0 without one; a piece with an error counts 0, the
+/// error is reported with the piece).
+fn vertical_outside_thickness(c: &Ctx, raw: &[S<RawInsulation>]) -> f64 {
+    raw.iter()
+        .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
+        .filter_map(|i| {
+            let m = material(c, i, "").ok()?;
+            thickness(c, i, "", &m).ok()
+        })
+        .fold(0.0, f64::max)
+}
+
+/// A board's thickness: `thickness_m`, or `thermal_resistance_m2k_per_w` × the material's
+/// conductivity (R = d / λ, ISO 6946 §6.7.1), 0 to 1 m either way.
+fn thickness(c: &Ctx, ins: &S<RawInsulation>, key: &str, m: &Material) -> Result<f64> {
+    let r = ins.get_ref();
+    match (&r.thickness_m, &r.thermal_resistance_m2k_per_w) {
+        (Some(t), None) => c.range(t, &format!("{key}.thickness_m"), 0.0, 1.0, "m"),
+        (None, Some(rv)) => {
+            let k = m.k_unfrozen;
+            let rk = format!("{key}.thermal_resistance_m2k_per_w");
+            let res = c.range(rv, &rk, 0.0, 1.0 / k, "m²·K/W")?;
+            Ok(res * k)
+        }
+        (Some(t), Some(_)) => Err(c.err(
+            t.span(),
+            &format!("{key}.thickness_m"),
+            InputKind::Conflict,
+            "given with thermal_resistance_m2k_per_w; allowed: one of them (the thickness follows from R and the material's conductivity)",
+        )),
+        (None, None) => Err(c.err(
+            ins.span(),
+            &format!("{key}.thickness_m"),
+            InputKind::Missing,
+            "missing; allowed: thickness_m, or thermal_resistance_m2k_per_w (R-value)",
+        )),
+    }
 }
 
 /// A named material or a conductivity, with an optional heat capacity.
@@ -107,11 +140,7 @@ pub fn corner_pieces(
     parts: &Parts,
     raw_ins: &[S<RawInsulation>],
 ) -> Result<Vec<CornerPiece>> {
-    let vert_out_t: f64 = raw_ins
-        .iter()
-        .filter(|i| i.get_ref().kind.get_ref() == "vertical_outside")
-        .map(|i| *i.get_ref().thickness_m.get_ref())
-        .fold(0.0, f64::max);
+    let vert_out_t = vertical_outside_thickness(c, raw_ins);
     let mut out = Vec::new();
     for (k, rc) in raw.iter().enumerate() {
         let key = format!("corner[{k}]");
@@ -121,7 +150,8 @@ pub fn corner_pieces(
             span.clone(),
             RawInsulation {
                 kind: S::new(span.clone(), "wing".to_string()),
-                thickness_m: r.thickness_m.clone(),
+                thickness_m: Some(r.thickness_m.clone()),
+                thermal_resistance_m2k_per_w: None,
                 material: r.material.clone(),
                 conductivity_w_per_mk: r.conductivity_w_per_mk.clone(),
                 heat_capacity_j_per_m3k: r.heat_capacity_j_per_m3k.clone(),

@@ -161,7 +161,9 @@ pub struct RawBasement {
 #[allow(missing_docs)]
 pub struct RawInsulation {
     pub kind: S<String>,
-    pub thickness_m: S<f64>,
+    /// The board's thickness, or its thermal resistance R (then thickness = R k).
+    pub thickness_m: Option<S<f64>>,
+    pub thermal_resistance_m2k_per_w: Option<S<f64>>,
     pub material: Option<S<String>>,
     pub conductivity_w_per_mk: Option<S<f64>>,
     pub heat_capacity_j_per_m3k: Option<S<f64>>,
