@@ -201,6 +201,12 @@ fn results_in_us_units() {
         "report margin {margin}"
     );
     assert!(html.contains("<td>Btu/(h·ft²·°F)</td>"));
+    // The charts' axes in US units.
+    let svg = |n: &str| std::fs::read_to_string(out.join(n)).unwrap();
+    assert!(svg("frost_depth.svg").contains("frost depth below ground (ft)"));
+    assert!(svg("frost_depth.svg").contains("footing base (1.33 ft)"));
+    assert!(svg("heat_loss.svg").contains("ground heat loss (kBtu per month)"));
+    assert!(svg("heat_loss.svg").contains("mean outdoor temperature (°F)"));
 }
 
 /// An unheated building: no heat-loss figures and none of the heated-floor cross-checks (ISO

@@ -36,7 +36,7 @@ pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
     >,
     x0: f64,
     x1: f64,
-    base: f64,
+    (base, unit): (f64, &str),
 ) -> Result<()> {
     chart
         .draw_series(DashedLineSeries::new(
@@ -46,7 +46,7 @@ pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
             BLACK.stroke_width(2),
         ))
         .map_err(out_err)?
-        .label(format!("footing base ({base:.2} m)"))
+        .label(format!("footing base ({base:.2} {unit})"))
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
     Ok(())
 }
@@ -73,7 +73,11 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .iter()
         .map(|x| x.frost_open_m.max(x.frost_footing_m))
         .fold(d.footing_base_depth_m, f64::max);
-    let zmax = (deepest * 1.15).max(0.5);
+    let zmax = (deepest * 1.15).max(if d.units == crate::files::us::Units::Si {
+        0.5
+    } else {
+        1.5
+    });
     let mut chart = ChartBuilder::on(root)
         .caption(
             format!("{} — frost depth over the reported year", d.case_name),
@@ -91,7 +95,7 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         } else {
             "date (the reported year runs from the warmest day)"
         })
-        .y_desc("frost depth below ground (m)")
+        .y_desc(format!("frost depth below ground ({})", d.unit("m")))
         .x_label_formatter(&doy_label(d))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -149,7 +153,7 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
                 .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
         }
     }
-    footing_base_line(&mut chart, 0.0, n, d.footing_base_depth_m)?;
+    footing_base_line(&mut chart, 0.0, n, (d.footing_base_depth_m, d.unit("m")))?;
     legend(&mut chart, SeriesLabelPosition::LowerLeft)?;
     root.present().map_err(out_err)
 }
@@ -218,14 +222,14 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
                 .get((x.round() as usize).wrapping_sub(1))
                 .map_or(String::new(), |s| s.to_string())
         })
-        .y_desc("ground heat loss (kWh per month)")
+        .y_desc(format!("ground heat loss ({} per month)", d.unit("kWh")))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
         .draw()
         .map_err(out_err)?;
     chart
         .configure_secondary_axes()
-        .y_desc("mean outdoor temperature (°C)")
+        .y_desc(format!("mean outdoor temperature ({})", d.unit("°C")))
         .label_style(("sans-serif", 13))
         .draw()
         .map_err(out_err)?;
@@ -238,7 +242,7 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
             )
         }))
         .map_err(out_err)?
-        .label("heat loss (kWh)")
+        .label(format!("heat loss ({})", d.unit("kWh")))
         .legend(|(x, y)| {
             Rectangle::new(
                 [(x, y - 5), (x + 15, y + 5)],
@@ -253,7 +257,7 @@ fn draw_heat<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) ->
             OPEN.stroke_width(3),
         ))
         .map_err(out_err)?
-        .label("mean outdoor temperature (°C)")
+        .label(format!("mean outdoor temperature ({})", d.unit("°C")))
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], OPEN.stroke_width(3)));
     legend(&mut chart, SeriesLabelPosition::UpperRight)?;
     root.present().map_err(out_err)
@@ -286,7 +290,7 @@ fn draw_probes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) 
     chart
         .configure_mesh()
         .x_desc("date")
-        .y_desc("temperature (°C)")
+        .y_desc(format!("temperature ({})", d.unit("°C")))
         .x_label_formatter(&doy_label(d))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -382,7 +386,7 @@ fn draw_winters<DB: DrawingBackend>(
     chart
         .configure_mesh()
         .x_desc("winter (named by the year it starts)")
-        .y_desc("frost depth below ground (m)")
+        .y_desc(format!("frost depth below ground ({})", d.unit("m")))
         .x_label_formatter(&|x: &f64| format!("{:.0}", x))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -406,7 +410,7 @@ fn draw_winters<DB: DrawingBackend>(
         .map_err(out_err)?
         .label("under the footing")
         .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], FOOT.filled()));
-    footing_base_line(&mut chart, y0, y1, d.footing_base_depth_m)?;
+    footing_base_line(&mut chart, y0, y1, (d.footing_base_depth_m, d.unit("m")))?;
     legend(&mut chart, SeriesLabelPosition::LowerRight)?;
     root.present().map_err(out_err)
 }
@@ -418,6 +422,10 @@ pub fn winters(
     w: &[(i64, f64, f64)],
     files: &mut Vec<PathBuf>,
 ) -> Result<()> {
+    // The winters' depths in the charts' units, as the footing base.
+    let to = |m: f64| crate::files::us::figure(d.units, "m", m, 0).1;
+    let w: Vec<(i64, f64, f64)> = w.iter().map(|&(y, a, b)| (y, to(a), to(b))).collect();
+    let w = &w[..];
     render_both!(dir, "winters", SIZE, files, draw_winters(d, w));
     Ok(())
 }

@@ -1,6 +1,7 @@
 //! The saved results of a run, read back for plotting through the run directory's typed files
 //! (`section.json`, `fields.i16`, `daily.csv`, `monthly.csv`, `probes.csv`).
 use crate::error::Result;
+use crate::files::us::{convert, figure, Units};
 use crate::files::{self, section::PartOutline, tables};
 use crate::run::Day;
 use ndarray::{Array3, ArrayView2, Axis};
@@ -11,6 +12,8 @@ use std::path::Path;
 pub struct PlotData {
     /// Case name.
     pub case_name: String,
+    /// Units of the charts' axes (the field plots and the sketch are in SI).
+    pub units: Units,
     /// Grid x edges, m.
     pub xe: Vec<f64>,
     /// Grid z edges, m.
@@ -100,6 +103,7 @@ impl PlotData {
             .position(|d| d.day_of_year == sec.field_day_of_year)
             .unwrap_or(0);
         Ok(PlotData {
+            units: Units::Si,
             section: sec.clone(),
             case_name: sec.case_name,
             xe: sec.xe,
@@ -115,6 +119,64 @@ impl PlotData {
             fields,
             field_day_index,
         })
+    }
+
+    /// Convert what the charts draw (the days' frost depths, temperatures and heat loss, the
+    /// months, the probes and the footing base) to `units` ([`crate::files::us`]); the fields and
+    /// the grid stay in SI for the field plots and the sketch, which are drawn before.
+    pub fn charts_in(&mut self, units: Units) {
+        if units == Units::Si || self.units == units {
+            return;
+        }
+        let cv = |key: &str, v: &mut f64| {
+            if let Some((_, u)) = convert(key, *v) {
+                *v = u;
+            }
+        };
+        for x in &mut self.days {
+            for (k, v) in [
+                ("frost_open_m", &mut x.frost_open_m),
+                ("frost_top_open_m", &mut x.frost_top_open_m),
+                ("frost_top_face_m", &mut x.frost_top_face_m),
+                ("frost_face_m", &mut x.frost_face_m),
+                ("frost_footing_m", &mut x.frost_footing_m),
+                ("frost_beside_wall_m", &mut x.frost_beside_wall_m),
+                ("frost_corner_distance_m", &mut x.frost_corner_distance_m),
+                ("frost_margin_m", &mut x.frost_margin_m),
+                ("outdoor_c", &mut x.outdoor_c),
+                ("indoor_c", &mut x.indoor_c),
+                ("heat_loss_w", &mut x.heat_loss_w),
+            ] {
+                cv(k, v);
+            }
+        }
+        for m in &mut self.monthly {
+            cv("ground_heat_loss_kwh", &mut m.ground_heat_loss_kwh);
+            cv(
+                "mean_outdoor_temperature_c",
+                &mut m.mean_outdoor_temperature_c,
+            );
+            cv(
+                "max_frost_depth_open_ground_m",
+                &mut m.max_frost_depth_open_ground_m,
+            );
+            cv(
+                "max_frost_depth_at_footing_face_m",
+                &mut m.max_frost_depth_at_footing_face_m,
+            );
+        }
+        for p in &mut self.probes {
+            for v in p.iter_mut() {
+                cv("temperature_c", v);
+            }
+        }
+        cv("footing_base_depth_m", &mut self.footing_base_depth_m);
+        self.units = units;
+    }
+
+    /// The unit label the charts show for SI label `si` ("m" → "ft" in US units).
+    pub fn unit<'a>(&self, si: &'a str) -> &'a str {
+        figure(self.units, si, 0.0, 0).0
     }
 
     /// The field of day index `k` (nz × nx), °C.

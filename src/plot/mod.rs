@@ -262,7 +262,8 @@ fn field_csv(out: &Path, d: &PlotData, day: usize) -> Result<PathBuf> {
 /// written.
 pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     register_fonts();
-    let d = PlotData::load(dir)?;
+    let mut d = PlotData::load(dir)?;
+    let units = crate::files::read_summary(dir)?.units;
     let out = opts.out.as_deref().unwrap_or(dir);
     crate::files::create_dir(out)?;
     let target = Target {
@@ -342,6 +343,8 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     )?);
     let sketch_size = sketch::render(&target, &d, &mut files)?;
     sizes.push(("foundation_sketch", sketch_size));
+    // The charts in the run's units (the field plots and the sketch above stay in SI).
+    d.charts_in(units);
     charts::frost_depth(&target, &d, &mut files)?;
     charts::heat_loss(&target, &d, &mut files)?;
     if !d.probe_names.is_empty() {

@@ -462,7 +462,7 @@ fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDF
     .map_err(out_err)?
     .label(format!("2D section ({:.2} m)", f.section_2d[0]))
     .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], grey.stroke_width(2)));
-    super::charts::footing_base_line(&mut c, 0.0, dmax, base)?;
+    super::charts::footing_base_line(&mut c, 0.0, dmax, (base, "m"))?;
     corner_line(&mut c, corner, (0.0, zmax))?;
     c.configure_series_labels()
         .background_style(WHITE.mix(0.9))
