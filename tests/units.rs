@@ -201,6 +201,7 @@ fn results_in_us_units() {
         "report margin {margin}"
     );
     assert!(html.contains("<td>Btu/(h·ft²·°F)</td>"));
+    assert!(html.contains("<th>ground heat loss (kBtu)</th>"));
     // The charts' axes in US units.
     let svg = |n: &str| std::fs::read_to_string(out.join(n)).unwrap();
     assert!(svg("frost_depth.svg").contains("frost depth below ground (ft)"));

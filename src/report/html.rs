@@ -431,21 +431,24 @@ fn monthly(dir: &Path) -> Result<String> {
         "November",
         "December",
     ];
-    let mut h = String::from("<h2 id=\"monthly\">Monthly results (2D section, whole building)</h2>\n<table>\n<tr><th>month</th><th>ground heat loss (kWh)</th><th>mean outdoor air (°C)</th><th>deepest frost, open ground (m)</th><th>deepest frost at the footing face (m)</th></tr>\n");
+    // Each figure in the units being rendered (an SI unit label and the SI value).
+    let cell = |si: &str, v: f64, d: usize| super::shown_cell(si, &raw(v, d)).0;
+    let unit = |si: &str| super::shown(si, 0.0, 0).0.to_string();
+    let mut h = format!("<h2 id=\"monthly\">Monthly results (2D section, whole building)</h2>\n<table>\n<tr><th>month</th><th>ground heat loss ({})</th><th>mean outdoor air ({})</th><th>deepest frost, open ground ({})</th><th>deepest frost at the footing face ({})</th></tr>\n", unit("kWh"), unit("°C"), unit("m"), unit("m"));
     for r in &rows {
         h += &format!(
             "<tr><td>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
             NAMES.get(r.month.wrapping_sub(1)).unwrap_or(&"?"),
-            f(r.ground_heat_loss_kwh, 1),
-            f(r.mean_outdoor_temperature_c, 1),
-            f(r.max_frost_depth_open_ground_m, 2),
-            f(r.max_frost_depth_at_footing_face_m, 2)
+            cell("kWh", r.ground_heat_loss_kwh, 1),
+            cell("°C", r.mean_outdoor_temperature_c, 1),
+            cell("m", r.max_frost_depth_open_ground_m, 2),
+            cell("m", r.max_frost_depth_at_footing_face_m, 2)
         );
     }
     let total: f64 = rows.iter().map(|r| r.ground_heat_loss_kwh).sum();
     h += &format!(
         "<tr><th>year</th><th class=n>{}</th><th></th><th></th><th></th></tr>\n</table>\n",
-        f(total, 0)
+        cell("kWh", total, 0)
     );
     Ok(h)
 }
