@@ -279,3 +279,22 @@ fn boards_by_r_value() {
     let e = parse_case("b.toml", &both).unwrap_err().to_string();
     assert!(e.contains("given with thermal_resistance_m2k_per_w"), "{e}");
 }
+
+/// A wing by the board's own width: `board_width_in = 38` behind 2 in of outside vertical
+/// insulation ends where `width_in = 40` does (outer end 40 in from the wall's face); both keys
+/// together are refused.
+#[test]
+fn wing_by_board_width() {
+    let src = example("tamarack-flats-house-us.toml");
+    let w = "width_in = 40.0 ";
+    assert!(src.contains(w));
+    let c = parse_case("a.toml", &src).unwrap();
+    let c2 = parse_case("b.toml", &src.replace(w, "board_width_in = 38.0 ")).unwrap();
+    assert_eq!(
+        format!("{:?}", c.insulation),
+        format!("{:?}", c2.insulation)
+    );
+    let both = src.replace(w, "board_width_in = 38.0\nwidth_in = 40.0 ");
+    let e = parse_case("c.toml", &both).unwrap_err().to_string();
+    assert!(e.contains("width_in: given with board_width_m"), "{e}");
+}

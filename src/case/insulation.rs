@@ -152,6 +152,7 @@ pub fn corner_pieces(
                 kind: S::new(span.clone(), "wing".to_string()),
                 thickness_m: Some(r.thickness_m.clone()),
                 thermal_resistance_m2k_per_w: None,
+                board_width_m: None,
                 material: r.material.clone(),
                 conductivity_w_per_mk: r.conductivity_w_per_mk.clone(),
                 heat_capacity_j_per_m3k: r.heat_capacity_j_per_m3k.clone(),
@@ -262,14 +263,14 @@ fn kind(
     let slab_bottom = -cons.slab.top_above_ground_m + cons.slab.thickness_m;
     match kind_name {
         "under_slab" => {
-            for (v, n) in [(&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m")] {
+            for (v, n) in [(&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m")] {
                 forbid(v, n)?;
             }
             let band = r.band_width_m.as_ref().map(|v| c.range(v, &format!("{key}.band_width_m"), 0.0, 0.5 * bp, "m")).transpose()?;
             Ok(InsulationKind::UnderSlab { band_width_m: band })
         }
         "vertical_outside" | "vertical_inside" => {
-            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m")] {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m")] {
                 forbid(v, n)?;
             }
             let outside = kind_name == "vertical_outside";
@@ -289,8 +290,18 @@ fn kind(
             }
             let d_v = need(&r.depth_m, "depth_m")?;
             let depth = c.range_incl(&d_v, &format!("{key}.depth_m"), 0.0, 3.0, "m")?;
-            let w_v = need(&r.width_m, "width_m")?;
-            let width = c.range(&w_v, &format!("{key}.width_m"), vert_out_t, parts.simulation.domain_width_m - 1.0, "m")?;
+            // The outer end's distance from the wall's exterior face (width_m), or the board's own
+            // width from its inner edge at the outer face of any outside vertical insulation.
+            let far = parts.simulation.domain_width_m - 1.0;
+            let width = match (&r.width_m, &r.board_width_m) {
+                (Some(w_v), None) => c.range(w_v, &format!("{key}.width_m"), vert_out_t, far, "m")?,
+                (None, Some(b_v)) => {
+                    vert_out_t + c.range(b_v, &format!("{key}.board_width_m"), 0.0, far - vert_out_t, "m")?
+                }
+                (Some(w_v), Some(_)) => return Err(c.err(w_v.span(), &format!("{key}.width_m"), InputKind::Conflict,
+                    "given with board_width_m; allowed: one of them (width_m: the outer end from the wall's exterior face; board_width_m: the board's own width)")),
+                (None, None) => need(&r.width_m, "width_m").map(|_| 0.0)?,
+            };
             let f = &cons.footing;
             let fx1 = f.outer_projection_m;
             if fx1 > 1e-9 && depth + t > f.base_depth_m - f.thickness_m + 1e-9 && depth < f.base_depth_m {

@@ -178,6 +178,9 @@ pub struct RawInsulation {
     pub depth_m: Option<S<f64>>,
     /// wing: outward extent, measured from the wall's exterior face x = 0.
     pub width_m: Option<S<f64>>,
+    /// wing: the board's own width, from its inner edge (the outer face of any outside vertical
+    /// insulation, else the wall's exterior face); instead of width_m.
+    pub board_width_m: Option<S<f64>>,
 }
 
 /// A rectangular plan, exterior faces of the foundation wall.
