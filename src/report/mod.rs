@@ -16,7 +16,7 @@ thread_local! {
 }
 
 /// Render with `f` in `units`: every table row converts its SI figure and unit label
-/// ([`shown`]); the previous units are restored afterwards.
+/// (`shown`); the previous units are restored afterwards.
 pub fn in_units<T>(units: Units, f: impl FnOnce() -> T) -> T {
     let before = UNITS.with(|u| u.replace(units));
     let out = f();
