@@ -101,6 +101,13 @@ fn us_errors_name_the_users_unit() {
         e.contains("climate.mean_f: 20.0 °F is out of range; allowed: 32.18 to 86 °F"),
         "{e}"
     );
+    // A missing quantity names its US keys too.
+    let bad = src.replace("[slab]\nthickness_in = 4.0\n", "[slab]\n");
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(
+        e.contains("missing field `thickness_m` (or in US units: thickness_ft, thickness_in)"),
+        "{e}"
+    );
     // One unit per key.
     let bad = src.replace("[wall]\n", "[wall]\nthickness_m = 0.2\n");
     let e = parse_case("us.toml", &bad).unwrap_err().to_string();

@@ -84,6 +84,13 @@ fn toml_error(file: &str, src: &str, si: &units::Rewritten, e: &toml::de::Error)
     // A `quoted` word names a key in "missing field `k`", "unknown field `k`" and "duplicate
     // key `k`"; in "invalid type: floating point `2.5`" it is the value, so the line's key wins.
     let quoted = msg.split('`').nth(1).map(str::to_string);
+    // A missing quantity key may also be given in a US unit: say so.
+    let msg = match (&quoted, msg.starts_with("missing field")) {
+        (Some(k), true) if !units::us_names(k).is_empty() => {
+            format!("{msg} (or in US units: {})", units::us_names(k).join(", "))
+        }
+        _ => msg,
+    };
     let names_key = ["missing field", "unknown field", "duplicate key"]
         .iter()
         .any(|p| msg.starts_with(p));

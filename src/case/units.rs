@@ -188,6 +188,25 @@ pub fn us_key(key: &str) -> Option<(&'static Unit, String)> {
     })
 }
 
+/// The US-unit names of SI key `si_key` (`thickness_m` → `thickness_ft`, `thickness_in`).
+pub fn us_names(si_key: &str) -> Vec<String> {
+    let mut v: Vec<String> = UNITS
+        .iter()
+        .filter_map(|u| {
+            let stem = si_key.strip_suffix(u.si)?;
+            (!stem.is_empty()).then(|| format!("{stem}{}", u.us))
+        })
+        .collect();
+    if let Some(stem) = si_key.strip_suffix("_k") {
+        if DIFFERENCES.contains(&stem) {
+            v.push(format!("{stem}_f"));
+        }
+    }
+    // Only names that map back to this key (`x_m` is not `x_c`).
+    v.retain(|n| us_key(n).is_some_and(|(_, s)| s == si_key));
+    v
+}
+
 /// Rewrite `src` (the case file `file`) to SI. A text that is not valid TOML is returned as it
 /// is, for the parser to report.
 pub fn rewrite(file: &str, src: &str) -> Result<Rewritten> {
@@ -385,5 +404,8 @@ mod tests {
         );
         assert_eq!(from_si(&UNITS[7], 0.3048), "1");
         assert_eq!(from_si(&UNITS[9], 0.0), "32");
+        assert_eq!(us_names("thickness_m"), ["thickness_ft", "thickness_in"]);
+        assert_eq!(us_names("amplitude_k"), ["amplitude_f"]);
+        assert!(us_names("name").is_empty());
     }
 }
