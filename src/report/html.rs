@@ -23,6 +23,7 @@ fn row(out: &mut String, name: &str, unit: &str, model: String, check: String, m
     let (model, shown_unit) = super::shown_cell(unit, &model);
     let (check, _) = super::shown_cell(unit, &check);
     let unit = shown_unit.as_str();
+    let name = &super::per_length(name);
     out.push_str(&format!(
         "<tr><td>{}</td><td>{}</td><td class=n>{}</td><td class=n>{}</td><td>{}</td></tr>\n",
         escape(name),

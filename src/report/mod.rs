@@ -24,6 +24,15 @@ pub fn in_units<T>(units: Units, f: impl FnOnce() -> T) -> T {
     out
 }
 
+/// A row name in the units being rendered: "per metre" becomes "per foot" in US units.
+pub(crate) fn per_length(name: &str) -> String {
+    if shown("m", 0.0, 0).0 == "m" {
+        name.to_string()
+    } else {
+        name.replace("per metre", "per foot")
+    }
+}
+
 /// An SI figure as shown: unit label, value and decimals in the units being rendered.
 pub(crate) fn shown(label: &str, v: f64, prec: usize) -> (&str, f64, usize) {
     figure(UNITS.with(Cell::get), label, v, prec)

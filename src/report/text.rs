@@ -33,6 +33,7 @@ fn head(title: &str, columns: &str) -> String {
 fn row(label: &str, unit: &str, prec: usize, vals: &[f64]) -> String {
     let si = unit;
     let unit = super::shown(si, 0.0, prec).0;
+    let label = &super::per_length(label);
     let w = label_width().saturating_sub(unit.chars().count());
     let mut s = format!("    {label:<w$}{unit}");
     for v in vals {
@@ -248,13 +249,13 @@ fn heat_rows(s: &Summary) -> String {
         t += "    (Ψ_g goes with the U above it: model U with model Ψ_g, ISO 13370 U with the ISO-basis Ψ_g)\n";
     }
     t += &format!(
-        "\n  Foundation wall above {} ({:.2} m, 1D, not in the ground loss)\n",
+        "\n  Foundation wall above {} ({}, 1D, not in the ground loss)\n",
         if s.basement.is_some() {
             "ground"
         } else {
             "the floor"
         },
-        s.wall_above_ground_height_m
+        value(s.wall_above_ground_height_m, "m", 2)
     );
     t += &row(
         "U-value",
