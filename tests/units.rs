@@ -108,6 +108,19 @@ fn us_errors_name_the_users_unit() {
         e.contains("missing field `thickness_m` (or in US units: thickness_ft, thickness_in)"),
         "{e}"
     );
+    // A misspelt US key is named as written.
+    let bad = src.replace("[slab]\nthickness_in", "[slab]\nthicknes_in");
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(
+        e.contains("slab.thicknes_in: unknown field `thicknes_in`"),
+        "{e}"
+    );
+    // A design index whose sinusoid needs more than the 30 K a given amplitude may have.
+    let bad = src
+        .replace("mean_f = 40.0 ", "mean_f = 45.0 ")
+        .replace("_f_days = 2500.0", "_f_days = 6000.0");
+    let e = parse_case("us.toml", &bad).unwrap_err().to_string();
+    assert!(e.contains("needs an annual amplitude of 39.37 K"), "{e}");
     // One unit per key.
     let bad = src.replace("[wall]\n", "[wall]\nthickness_m = 0.2\n");
     let e = parse_case("us.toml", &bad).unwrap_err().to_string();
@@ -304,4 +317,35 @@ fn wing_by_board_width() {
     let both = src.replace(w, "board_width_in = 38.0\nwidth_in = 40.0 ");
     let e = parse_case("c.toml", &both).unwrap_err().to_string();
     assert!(e.contains("width_in: given with board_width_m"), "{e}");
+}
+
+/// Sizing sets a varied board's dimension in the case text: a wing given in inches, by R-value
+/// or by its board width builds the same design as the SI case (the edited quantity replaces
+/// every other spelling of it instead of colliding with it).
+#[test]
+fn sizing_edits_a_quantity_given_another_way() {
+    let si = example("kettle-hollow-sizing.toml");
+    let design = |src: &str| {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/x.toml");
+        let c = parse_case(&path.display().to_string(), src).unwrap();
+        let vary = &c.sizing.as_ref().unwrap().vary;
+        let values: Vec<f64> = vary.iter().map(|v| 0.5 * (v.min + v.max)).collect();
+        let d = frostline::design::apply(&c, vary, &values).unwrap();
+        format!("{:?}", d.insulation)
+    };
+    let want = design(&si);
+    for (from, to) in [
+        (
+            "thickness_m = 0.05\nmaterial = \"xps\"\ndepth",
+            "thickness_in = 2.0\nmaterial = \"xps\"\ndepth",
+        ),
+        (
+            "thickness_m = 0.05\nmaterial = \"xps\"\ndepth",
+            "thermal_resistance_m2k_per_w = 1.5\nmaterial = \"xps\"\ndepth",
+        ),
+        ("width_m = 1.00 ", "board_width_m = 0.95 "),
+    ] {
+        assert!(si.contains(from), "{from}");
+        assert_eq!(design(&si.replace(from, to)), want, "{to}");
+    }
 }

@@ -167,11 +167,17 @@ fn indoor(c: &Ctx, b: &RawBuilding, unheated: bool) -> Result<[f64; 12]> {
         }
     };
     if let Some(t) = temps.iter().find(|t| !(-30.0..=40.0).contains(*t)) {
+        let u = |v: f64| c.in_user_unit(given.span(), v, "°C");
         return Err(c.err(
             given.span(),
             key,
             InputKind::OutOfRange,
-            format!("{t} °C is out of range; allowed: −30 to 40 °C"),
+            format!(
+                "{} is out of range; allowed: {} to {}",
+                u(*t),
+                u(-30.0),
+                u(40.0)
+            ),
         ));
     }
     Ok(temps)

@@ -184,7 +184,15 @@ fn sinusoid(c: &Ctx, cl: &RawClimate) -> Result<Source> {
     };
     let amplitude_k = match (&cl.amplitude_k, fi) {
         (Some(a), _) => c.range_incl(a, "climate.amplitude_k", 0.0, 30.0, "K")?,
-        (None, Some((_, fi))) => pc::amplitude_for_freezing_index(mean_c, fi),
+        (None, Some((f, fi))) => {
+            // The same bound as a given amplitude.
+            let a = pc::amplitude_for_freezing_index(mean_c, fi);
+            if a > 30.0 {
+                return Err(c.err(f.span(), key, InputKind::OutOfRange, format!(
+                    "with a mean of {mean_c:.2} °C this index needs an annual amplitude of {a:.2} K; allowed: an index that gives at most 30 K (or give amplitude_k)")));
+            }
+            a
+        }
         (None, None) => {
             return Err(missing(
                 "amplitude_k",

@@ -42,6 +42,15 @@ impl Ctx<'_> {
         )
     }
 
+    /// SI value `v` (unit `unit`) of the value at `span`, as text in the unit the user gave it in
+    /// ("110 °F" for a key given in °F, else "43.3 °C").
+    pub fn in_user_unit(&self, span: Range<usize>, v: f64, unit: &str) -> String {
+        match self.units.given_at(span.start) {
+            Some(g) => format!("{} {}", from_si(g.unit, v), g.unit.label),
+            None => format!("{v} {unit}"),
+        }
+    }
+
     /// "V U is out of range; allowed: …" in the user's unit when `v` was given in a US unit;
     /// `bounds` formats the allowed range from two bound texts.
     fn out_of_range(

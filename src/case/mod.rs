@@ -83,7 +83,15 @@ fn toml_error(file: &str, src: &str, si: &units::Rewritten, e: &toml::de::Error)
     };
     // A `quoted` word names a key in "missing field `k`", "unknown field `k`" and "duplicate
     // key `k`"; in "invalid type: floating point `2.5`" it is the value, so the line's key wins.
-    let quoted = msg.split('`').nth(1).map(str::to_string);
+    let mut quoted = msg.split('`').nth(1).map(str::to_string);
+    // A key the user wrote in a US unit is named as written (`thicknes_in`, not `thicknes_m`).
+    let mut msg = msg;
+    if let (Some(q), Some(user)) = (&quoted, &line_key) {
+        if q != user && units::us_key(user).is_some_and(|(_, s)| s == *q) {
+            msg = msg.replacen(&format!("`{q}`"), &format!("`{user}`"), 1);
+            quoted = Some(user.clone());
+        }
+    }
     // A missing quantity key may also be given in a US unit: say so.
     let msg = match (&quoted, msg.starts_with("missing field")) {
         (Some(k), true) if !units::us_names(k).is_empty() => {

@@ -83,8 +83,9 @@ fn corner_text(base: &str, cv: &CornerVary, x: f64) -> Result<String> {
         .and_then(|a| a.get_mut(cv.corner))
         .and_then(|p| p.as_table_mut())
         .ok_or_else(|| Error::Method(format!("sizing: no [[corner]] board {}", cv.corner)))?;
-    board.insert(
-        cv.dimension.key().into(),
+    super::set_quantity(
+        board,
+        cv.dimension.key(),
         toml::Value::Float((x * 1e6).round() / 1e6),
     );
     t.remove("sizing");

@@ -132,6 +132,23 @@ fn output_err(e: impl std::fmt::Display) -> Error {
     Error::Output(e.to_string())
 }
 
+/// Set SI key `key` of `table` to `x`, removing the other ways the same quantity may be given
+/// (the key in a US unit, `thickness_in`; a board's R-value for its thickness; a wing's board
+/// width for its outer end), so the edited case gives it once.
+pub fn set_quantity(table: &mut toml::Table, key: &str, x: toml::Value) {
+    let alternative = match key {
+        "thickness_m" => Some("thermal_resistance_m2k_per_w"),
+        "width_m" => Some("board_width_m"),
+        _ => None,
+    };
+    let same = |k: &str| {
+        let si = crate::case::units::us_key(k).map_or(k.to_string(), |(_, s)| s);
+        si == key || Some(si.as_str()) == alternative
+    };
+    table.retain(|k, _| !same(k));
+    table.insert(key.into(), x);
+}
+
 /// The case text with the varied dimensions set to `values` and `[sizing]` removed.
 pub fn design_text(case: &Case, vary: &[Vary], values: &[f64]) -> Result<String> {
     let mut t: toml::Table = toml::from_str(&case.source).map_err(output_err)?;
@@ -146,7 +163,7 @@ pub fn design_text(case: &Case, vary: &[Vary], values: &[f64]) -> Result<String>
                 .and_then(|p| p.as_table_mut()),
         };
         if let Some(table) = table {
-            table.insert(toml_key(v.dimension).into(), x);
+            set_quantity(table, toml_key(v.dimension), x);
         }
     }
     t.remove("sizing");

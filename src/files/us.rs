@@ -101,6 +101,16 @@ const PAIRS: &[Pair] = &[
         offset: 0.0,
         more: 0,
     },
+    // A thermal coupling: 1 Btu_IT/(h·°F) = 0.293 071 1 W / (5/9 K) = 0.527 528 W/K.
+    Pair {
+        si_key: "_w_per_k",
+        us_key: "_btu_per_h_f",
+        si_label: "W/K",
+        us_label: "Btu/(h·°F)",
+        scale: BTU_H / F,
+        offset: 0.0,
+        more: 0,
+    },
     // 1 kBtu_IT = 1.055 056 MJ = 0.293 071 1 kWh.
     Pair {
         si_key: "_kwh",
@@ -323,6 +333,10 @@ mod tests {
         assert!((c("frost_margin_m", 1.0).1 - 3.280_84).abs() < 1e-5);
         assert!((c("freezing_index_c_days", 1000.0).1 - 1800.0).abs() < 1e-9);
         assert_eq!(convert("day_of_year", 3.0), None);
+        // A coupling in W/K is not a temperature difference: 1 W/K = 1.895 634 Btu/(h·°F).
+        let (k, v) = c("h_g_w_per_k", 1.0);
+        assert_eq!(k, "h_g_btu_per_h_f");
+        assert!((v - 1.895_634).abs() < 1e-6, "{v}");
     }
 
     /// CSV: converted headers and numbers, other columns and empty cells untouched.
