@@ -30,6 +30,7 @@ pub(crate) fn per_length(name: &str) -> String {
         name.to_string()
     } else {
         name.replace("per metre", "per foot")
+            .replace("per-metre", "per-foot")
     }
 }
 

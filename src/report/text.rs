@@ -59,10 +59,11 @@ fn table(s: &Summary) -> String {
         t += "\n  2D section (ISO 13370 equivalent strip) of the same case:\n";
     }
     t += &format!(
-        "  B' = {}, A = {}, P = {} (whole-building = per-metre section × P)\n",
+        "  B' = {}, A = {}, P = {} (whole-building = {} section × P)\n",
         value(s.characteristic_dimension_m, "m", 2),
         value(s.floor_area_m2, "m²", 1),
-        value(s.exposed_perimeter_m, "m", 1)
+        value(s.exposed_perimeter_m, "m", 1),
+        super::per_length("per-metre")
     );
     t += &heat_rows(s);
     t += &frost_rows(s);
@@ -126,8 +127,11 @@ fn three_rows(s: &Summary3) -> String {
         ],
     );
     t += &row("steady H_g = A U + P Ψ_g", "W/K", 1, &[c.h_g_w_per_k]);
-    t +=
-        "\n  Frost (depths below ground level)      mid long   mid short      corner  2D section\n";
+    t += &format!(
+        "\n  {:<w$}mid long   mid short      corner  2D section\n",
+        "Frost (depths below ground level)",
+        w = label_width() + 4
+    );
     let (ml, ms, co) = (&s.mid_long_wall, &s.mid_short_wall, &s.corner);
     t += &row(
         "at the footing's outer face",
