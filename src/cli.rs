@@ -114,6 +114,16 @@ pub enum ModelArg {
     ThreeD,
 }
 
+/// Options of the images a command draws.
+#[derive(Args, Debug, Clone, Copy)]
+pub struct ImageArgs {
+    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
+    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
+    /// graphics at any size; the animation stays at 96.
+    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
+    pub dpi: Option<u32>,
+}
+
 /// Units of the results shown.
 #[derive(ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum UnitsArg {
@@ -179,11 +189,8 @@ pub struct RunArgs {
     /// Also write soil_temperature.gif, the field through the year.
     #[arg(long)]
     pub animate: bool,
-    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
-    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
-    /// graphics at any size; the animation stays at 96.
-    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
-    pub dpi: Option<u32>,
+    #[command(flatten)]
+    pub image: ImageArgs,
     /// Standard output: the result table, or summary.json for pipes.
     #[arg(long, value_enum, default_value_t = FormatArg::Table)]
     pub format: FormatArg,
@@ -242,11 +249,8 @@ pub struct SizeArgs {
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
-    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
-    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
-    /// graphics at any size; the animation stays at 96.
-    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
-    pub dpi: Option<u32>,
+    #[command(flatten)]
+    pub image: ImageArgs,
     /// Units of the result table, the report and the extra `summary_us.json` and `*_us.csv`
     /// files (summary.json and the CSV files stay in SI).
     #[arg(long, value_enum, default_value_t = UnitsArg::Si)]
@@ -302,11 +306,8 @@ pub struct PlotArgs {
     /// the run directory (created if missing), so the run's own figures stay as they are.
     #[arg(long, short)]
     pub out: Option<PathBuf>,
-    /// Resolution of the PNG images in dots per inch (48–600; default 96). The figures keep
-    /// their layout and are drawn with more pixels, e.g. 300 for print. SVG images are vector
-    /// graphics at any size; the animation stays at 96.
-    #[arg(long, value_parser = clap::value_parser!(u32).range(48..=600))]
-    pub dpi: Option<u32>,
+    #[command(flatten)]
+    pub image: ImageArgs,
 }
 
 impl From<FitArg> for FitMethod {
@@ -580,7 +581,7 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         files::write_run(&case, &result, &cc, &a.out, a.units.into())?
     };
     if !a.no_plots {
-        written.extend(render(&a.out, a.animate, a.dpi)?);
+        written.extend(render(&a.out, a.animate, a.image.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
     let summary = files::read_summary(&a.out)?;
@@ -646,7 +647,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &a.out,
             a.units.into(),
         )?);
-        written.extend(render(&a.out, false, a.dpi)?);
+        written.extend(render(&a.out, false, a.image.dpi)?);
     } else if let Some((chosen, r)) = &result.chosen_run {
         written.extend(files::write_run(
             chosen,
@@ -655,7 +656,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &a.out,
             a.units.into(),
         )?);
-        written.extend(render(&a.out, false, a.dpi)?);
+        written.extend(render(&a.out, false, a.image.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
     say!(
@@ -768,7 +769,7 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
         zoom,
         animate: a.animate,
         out: a.out.clone(),
-        dpi: a.dpi,
+        dpi: a.image.dpi,
     };
     let out = a.out.as_deref().unwrap_or(&a.dir);
     let _lock = files::check_writable(out)?;

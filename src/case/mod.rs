@@ -93,11 +93,11 @@ fn toml_error(file: &str, src: &str, si: &units::Rewritten, e: &toml::de::Error)
         }
     }
     // A missing quantity key may also be given in a US unit: say so.
-    let msg = match (&quoted, msg.starts_with("missing field")) {
-        (Some(k), true) if !units::us_names(k).is_empty() => {
-            format!("{msg} (or in US units: {})", units::us_names(k).join(", "))
-        }
-        _ => msg,
+    let us = quoted.as_deref().map(units::us_names).unwrap_or_default();
+    let msg = if msg.starts_with("missing field") && !us.is_empty() {
+        format!("{msg} (or in US units: {})", us.join(", "))
+    } else {
+        msg
     };
     let names_key = ["missing field", "unknown field", "duplicate key"]
         .iter()

@@ -200,37 +200,35 @@ pub fn convert(key: &str, v: f64) -> Option<(String, f64)> {
 /// SI unit renamed and converted; the rest as it is.
 pub fn json(v: &Value) -> Value {
     match v {
-        Value::Object(m) => Value::Object(
-            m.iter()
-                .map(|(k, x)| match x {
-                    Value::Number(n) => match convert(k, n.as_f64().unwrap_or(f64::NAN)) {
-                        Some((uk, u)) => (uk, number(u)),
-                        None => (k.clone(), x.clone()),
-                    },
-                    Value::Array(a) if !a.is_empty() && a.iter().all(Value::is_number) => {
-                        match convert(k, 0.0) {
-                            Some((uk, _)) => (
-                                uk,
-                                Value::Array(
-                                    a.iter()
-                                        .map(|n| {
-                                            number(
-                                                convert(k, n.as_f64().unwrap_or(f64::NAN))
-                                                    .map_or(f64::NAN, |c| c.1),
-                                            )
-                                        })
-                                        .collect(),
-                                ),
-                            ),
-                            None => (k.clone(), x.clone()),
-                        }
-                    }
-                    other => (k.clone(), json(other)),
-                })
-                .collect(),
-        ),
+        Value::Object(m) => Value::Object(m.iter().map(|(k, x)| entry(k, x)).collect()),
         Value::Array(a) => Value::Array(a.iter().map(json).collect()),
         other => other.clone(),
+    }
+}
+
+/// One key and value of an object in US units: a number or an array of numbers under a key
+/// naming a unit converted, anything else recursed into.
+fn entry(k: &str, x: &Value) -> (String, Value) {
+    let us = |n: &Value| convert(k, n.as_f64().unwrap_or(f64::NAN));
+    let numbers = match x {
+        Value::Number(_) => true,
+        Value::Array(a) => !a.is_empty() && a.iter().all(Value::is_number),
+        _ => false,
+    };
+    match (numbers, convert(k, 0.0)) {
+        (true, Some((uk, _))) => {
+            let v = match x {
+                Value::Array(a) => Value::Array(
+                    a.iter()
+                        .map(|n| number(us(n).map_or(f64::NAN, |c| c.1)))
+                        .collect(),
+                ),
+                n => number(us(n).map_or(f64::NAN, |c| c.1)),
+            };
+            (uk, v)
+        }
+        (true, None) => (k.to_string(), x.clone()),
+        (false, _) => (k.to_string(), json(x)),
     }
 }
 

@@ -433,7 +433,7 @@ fn monthly(dir: &Path) -> Result<String> {
         "December",
     ];
     // Each figure in the units being rendered (an SI unit label and the SI value).
-    let cell = |si: &str, v: f64, d: usize| super::shown_cell(si, &raw(v, d)).0;
+    let cell = super::shown_number;
     let unit = |si: &str| super::shown(si, 0.0, 0).0.to_string();
     let mut h = format!("<h2 id=\"monthly\">Monthly results (2D section, whole building)</h2>\n<table>\n<tr><th>month</th><th>ground heat loss ({})</th><th>mean outdoor air ({})</th><th>deepest frost, open ground ({})</th><th>deepest frost at the footing face ({})</th></tr>\n", unit("kWh"), unit("°C"), unit("m"), unit("m"));
     for r in &rows {

@@ -24,9 +24,14 @@ pub fn in_units<T>(units: Units, f: impl FnOnce() -> T) -> T {
     out
 }
 
+/// The units being rendered.
+pub(crate) fn current() -> Units {
+    UNITS.with(Cell::get)
+}
+
 /// A row name in the units being rendered: "per metre" becomes "per foot" in US units.
 pub(crate) fn per_length(name: &str) -> String {
-    if shown("m", 0.0, 0).0 == "m" {
+    if current() == Units::Si {
         name.to_string()
     } else {
         name.replace("per metre", "per foot")
@@ -36,14 +41,19 @@ pub(crate) fn per_length(name: &str) -> String {
 
 /// An SI figure as shown: unit label, value and decimals in the units being rendered.
 pub(crate) fn shown(label: &str, v: f64, prec: usize) -> (&str, f64, usize) {
-    figure(UNITS.with(Cell::get), label, v, prec)
+    figure(current(), label, v, prec)
+}
+
+/// An SI figure formatted in the units being rendered, without its unit ("–" if not finite).
+pub(crate) fn shown_number(label: &str, v: f64, prec: usize) -> String {
+    let (_, x, d) = shown(label, v, prec);
+    html::f(x, d)
 }
 
 /// A results cell of exact figures (`VALUE#DECIMALS`, several joined by " / ", or text such as
 /// "–") in the units being rendered; `label` is its SI unit. Returns the cell and the unit label
 /// to show.
 pub(crate) fn shown_cell(label: &str, cell: &str) -> (String, String) {
-    let mut unit = label.to_string();
     let parts: Vec<String> = cell
         .split(" / ")
         .map(|p| {
@@ -51,18 +61,8 @@ pub(crate) fn shown_cell(label: &str, cell: &str) -> (String, String) {
                 .trim()
                 .split_once('#')
                 .and_then(|(v, d)| Some((v.parse::<f64>().ok()?, d.parse::<usize>().ok()?)));
-            match exact {
-                Some((v, prec)) => {
-                    let (u, x, d) = shown(label, v, prec);
-                    unit = u.to_string();
-                    format!("{x:.d$}")
-                }
-                None => p.to_string(),
-            }
+            exact.map_or(p.to_string(), |(v, prec)| shown_number(label, v, prec))
         })
         .collect();
-    if !cell.contains('#') {
-        unit = shown(label, 0.0, 0).0.to_string();
-    }
-    (parts.join(" / "), unit)
+    (parts.join(" / "), shown(label, 0.0, 0).0.to_string())
 }

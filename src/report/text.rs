@@ -15,10 +15,9 @@ fn value(v: f64, si: &str, prec: usize) -> String {
 
 /// Width of a row's label and unit: 35 characters, 45 for the longer US unit names.
 fn label_width() -> usize {
-    if super::shown("W", 1.0, 0).0 == "W" {
-        35
-    } else {
-        45
+    match super::current() {
+        crate::files::us::Units::Si => 35,
+        crate::files::us::Units::Us => 45,
     }
 }
 
