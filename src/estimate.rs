@@ -121,6 +121,9 @@ fn floor_resistance_and_edges(case: &Case) -> (f64, Vec<(methods::EdgeInsulation
             } => methods::EdgeInsulation::Horizontal {
                 width_m: width_m - x_start_m,
             },
+            // Not an edge insulation of ISO 13370 (its edge-insulation formula covers horizontal
+            // boards at the floor's edge and vertical ones down the wall): left out of the check.
+            InsulationKind::UnderFooting { .. } => continue,
         };
         edges.push((edge, r_n, ins.thickness_m));
     }

@@ -475,3 +475,86 @@ design_freezing_index_c_days = {fi}
         assert!((0.85..=1.0).contains(&(open / mb)), "{fi}: {open} vs {mb}");
     }
 }
+
+/// A footing bearing on an insulation board (`under_footing`): the protected zone starts at the
+/// board's underside (the definition in run/frost.rs: the board does not heave, the soil beneath
+/// it does; common practice for frost-protected footings on insulation). Read back from the saved
+/// field of the Sedge Point example: the board under the footing is frozen, no soil cell of the
+/// zone below it is, and the reported margin is the distance of frozen ground to that zone
+/// (≥ 0 here). Without the board the same building's frost reaches deeper under the footing,
+/// and open ground agrees with modified Berggren within ±15 % (the band of the demo checks).
+#[test]
+fn footing_on_a_board_keeps_the_zone_below_the_board() {
+    let dir = scratch("trust-board");
+    let src = std::fs::read_to_string(manifest("examples/sedge-point-storehouse.toml")).unwrap();
+    let case = dir.join("board.toml");
+    std::fs::write(&case, &src).unwrap();
+    let out = dir.join("board");
+    let (_, code) = run_written(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--quiet".as_ref(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+    ]);
+    assert_eq!(code, 0);
+    let s = read_json(&out.join("summary.json"));
+    let (base, bearing) = (num(&s, "footing_base_depth_m"), num(&s, "bearing_depth_m"));
+    assert!((base - 0.40).abs() < 1e-12 && (bearing - 0.50).abs() < 1e-12);
+    let margin = num(&s, "frost_margin_m");
+    assert!((0.0..0.10).contains(&margin), "margin {margin}");
+    assert!(!s["frost_in_protected_zone"].as_bool().unwrap());
+    let open = num(&s, "frost_depth_open_ground_m");
+    let mb = s["cross_check"]["modified_berggren_frost_depth_m"]
+        .as_f64()
+        .unwrap();
+    assert!((open / mb - 1.0).abs() < 0.15, "open {open} vs {mb}");
+
+    // The saved design day: board cells under the footing frozen, soil zone not.
+    let t_line = num(&s, "frost_line_temperature_c");
+    let day = num(&s, "design_day_of_year") as usize;
+    let text = std::fs::read_to_string(out.join(format!("field_{day:03}.csv"))).unwrap();
+    let tan = num(&s, "protected_zone_angle_deg").to_radians().tan();
+    let (x0, x1) = (-0.40, 0.0);
+    let (mut frozen_board, mut soil_cells) = (0, 0);
+    for line in text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with("x_m"))
+    {
+        let v: Vec<f64> = line.split(',').map(|x| x.parse().unwrap()).collect();
+        let (x, z, t) = (v[0], v[1], v[2]);
+        if (x0..=x1).contains(&x) && z > base && z < bearing && t <= t_line {
+            frozen_board += 1;
+        }
+        let d = z - bearing;
+        let spread = (z - base) * tan;
+        if d >= 0.0 && x >= x0 - spread && x <= x1 + spread {
+            soil_cells += 1;
+            assert!(
+                t > t_line,
+                "frozen soil cell ({x}, {z}) at {t} °C in the zone"
+            );
+        }
+    }
+    assert!(
+        frozen_board > 0 && soil_cells > 100,
+        "{frozen_board} {soil_cells}"
+    );
+
+    // The same building without the board (the footing on soil at the same depth).
+    let bare = src.replace(
+        "[[insulation]]\nkind = \"under_footing\"           # the footing bears on this board\nthickness_m = 0.10\nmaterial = \"xps\"\npast_outer_edge_m = 1.20         # reaches 1.2 m beyond the footing's outer edge\npast_inner_edge_m = 0.60         # and 0.6 m inward, under the floor's edge\n",
+        "",
+    );
+    assert_ne!(bare, src);
+    let (b, _, _) = run_text(&dir, "bare", &bare, &["--mesh", "coarse"]);
+    assert!((num(&b, "bearing_depth_m") - 0.40).abs() < 1e-12);
+    assert!(
+        num(&b, "frost_depth_under_footing_m") > 0.45 && num(&b, "frost_margin_m") < -0.05,
+        "without the board: under {} margin {}",
+        num(&b, "frost_depth_under_footing_m"),
+        num(&b, "frost_margin_m")
+    );
+}

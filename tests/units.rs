@@ -349,3 +349,60 @@ fn sizing_edits_a_quantity_given_another_way() {
         assert_eq!(design(&si.replace(from, to)), want, "{to}");
     }
 }
+
+/// A board under the footing: its reach past the footing's edges in inches equals the same in
+/// metres (1 in = 0.0254 m exactly), it spans the footing's base (top face at the base, the
+/// footing's width plus both reaches), keys of other kinds are refused on it and its keys on
+/// other kinds, and `size` may vary its outward reach.
+#[test]
+fn board_under_the_footing() {
+    let src = example("sedge-point-storehouse.toml");
+    let parse = |s: &str| parse_case("sedge.toml", s);
+    let si = parse(&src).unwrap();
+    let us = parse(
+        &src.replace(
+            "past_outer_edge_m = 1.20",
+            "past_outer_edge_in = 47.244094488",
+        )
+        .replace(
+            "past_inner_edge_m = 0.60",
+            "past_inner_edge_ft = 1.968503937",
+        ),
+    )
+    .unwrap();
+    let rect = |c: &frostline::case::Case| c.insulation_rect(2);
+    let (a, b) = (rect(&si), rect(&us));
+    for (x, y) in [(a.x0, b.x0), (a.x1, b.x1), (a.z0, b.z0), (a.z1, b.z1)] {
+        assert!((x - y).abs() < 1e-9, "{a:?} {b:?}");
+    }
+    // Footing x ∈ [−0.40, 0], base 0.40 m; the board 0.10 m thick, 0.60 m in and 1.20 m out.
+    assert!((a.x0 + 1.0).abs() < 1e-12 && (a.x1 - 1.2).abs() < 1e-12);
+    assert!((a.z0 - 0.40).abs() < 1e-12 && (a.z1 - 0.50).abs() < 1e-12);
+    assert!((si.board_under_footing_m() - 0.10).abs() < 1e-12);
+
+    let e = parse(&src.replace(
+        "past_inner_edge_m = 0.60 ",
+        "depth_m = 0.3\npast_inner_edge_m = 0.60 ",
+    ))
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("insulation[2].depth_m") && e.contains("not used by under_footing"),
+        "{e}"
+    );
+    let e = parse(&src.replace(
+        "bottom_depth_m = 0.40 ",
+        "past_outer_edge_m = 0.5\nbottom_depth_m = 0.40 ",
+    ))
+    .unwrap_err()
+    .to_string();
+    assert!(e.contains("insulation[1].past_outer_edge_m"), "{e}");
+
+    let sized = parse(&format!(
+        "{src}\n[sizing]\nmargin_m = 0.0\n[[sizing.vary]]\ninsulation = 2\ndimension = \"past_outer_edge_m\"\nmin = 0.3\nmax = 1.5\nstep = 0.1\n"
+    ))
+    .unwrap();
+    let vary = &sized.sizing.as_ref().unwrap().vary;
+    let d = frostline::design::apply(&sized, vary, &[0.7]).unwrap();
+    assert!((d.insulation_rect(2).x1 - 0.7).abs() < 1e-9);
+}

@@ -161,6 +161,8 @@ pub fn corner_pieces(
                 bottom_depth_m: None,
                 depth_m: Some(r.depth_m.clone()),
                 width_m: Some(r.width_m.clone()),
+                past_outer_edge_m: None,
+                past_inner_edge_m: None,
             },
         );
         let thickness_m = c.range(&r.thickness_m, &format!("{key}.thickness_m"), 0.0, 1.0, "m")?;
@@ -263,14 +265,14 @@ fn kind(
     let slab_bottom = -cons.slab.top_above_ground_m + cons.slab.thickness_m;
     match kind_name {
         "under_slab" => {
-            for (v, n) in [(&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m")] {
+            for (v, n) in [(&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m"), (&r.past_outer_edge_m, "past_outer_edge_m"), (&r.past_inner_edge_m, "past_inner_edge_m")] {
                 forbid(v, n)?;
             }
             let band = r.band_width_m.as_ref().map(|v| c.range(v, &format!("{key}.band_width_m"), 0.0, 0.5 * bp, "m")).transpose()?;
             Ok(InsulationKind::UnderSlab { band_width_m: band })
         }
         "vertical_outside" | "vertical_inside" => {
-            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m")] {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m"), (&r.past_outer_edge_m, "past_outer_edge_m"), (&r.past_inner_edge_m, "past_inner_edge_m")] {
                 forbid(v, n)?;
             }
             let outside = kind_name == "vertical_outside";
@@ -285,7 +287,7 @@ fn kind(
             }
         }
         "wing" => {
-            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m")] {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.past_outer_edge_m, "past_outer_edge_m"), (&r.past_inner_edge_m, "past_inner_edge_m")] {
                 forbid(v, n)?;
             }
             let d_v = need(&r.depth_m, "depth_m")?;
@@ -311,8 +313,22 @@ fn kind(
             }
             Ok(InsulationKind::Wing { depth_m: depth, x_start_m: vert_out_t, width_m: width })
         }
+        "under_footing" => {
+            for (v, n) in [(&r.band_width_m, "band_width_m"), (&r.top_depth_m, "top_depth_m"), (&r.bottom_depth_m, "bottom_depth_m"), (&r.depth_m, "depth_m"), (&r.width_m, "width_m"), (&r.board_width_m, "board_width_m")] {
+                forbid(v, n)?;
+            }
+            // The board spans the footing's base and reaches past its edges by the given lengths:
+            // outward up to 1 m short of the domain's far edge, inward up to the building's centre.
+            let f = &cons.footing;
+            let (fx0, fx1) = (f.outer_projection_m - f.width_m, f.outer_projection_m);
+            let far = parts.simulation.domain_width_m - 1.0 - fx1;
+            let centre = fx0 + cons.wall.thickness_m + 0.5 * bp;
+            let out = c.opt(&r.past_outer_edge_m, &format!("{key}.past_outer_edge_m"), (0.0, far), "m", 0.0)?;
+            let inn = c.opt(&r.past_inner_edge_m, &format!("{key}.past_inner_edge_m"), (0.0, centre), "m", 0.0)?;
+            Ok(InsulationKind::UnderFooting { x0_m: fx0 - inn, x1_m: fx1 + out })
+        }
         other => Err(c.err(r.kind.span(), &format!("{key}.kind"), InputKind::UnknownName, format!(
-            "\"{other}\" is not an insulation kind; allowed: under_slab, vertical_outside, vertical_inside, wing"))),
+            "\"{other}\" is not an insulation kind; allowed: under_slab, vertical_outside, vertical_inside, wing, under_footing"))),
     }
 }
 
@@ -392,6 +408,7 @@ fn between_pieces(
             | InsulationKind::VerticalInside { bottom_m, .. } => bottom_m,
             InsulationKind::Wing { depth_m, .. } => depth_m + a.thickness_m,
             InsulationKind::UnderSlab { .. } => slab_bottom + a.thickness_m,
+            InsulationKind::UnderFooting { .. } => parts.cons.footing.base_depth_m + a.thickness_m,
         };
         if deepest > domain_depth - 1.0 {
             return Err(c.err(raw[k].span(), &format!("insulation[{k}]"), InputKind::Geometry, format!(

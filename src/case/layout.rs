@@ -157,6 +157,13 @@ impl Case {
                 z1: depth_m + t,
                 part,
             },
+            InsulationKind::UnderFooting { x0_m, x1_m } => Rect {
+                x0: x0_m,
+                x1: x1_m,
+                z0: self.footing.base_depth_m,
+                z1: self.footing.base_depth_m + t,
+                part,
+            },
         }
     }
 

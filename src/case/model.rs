@@ -212,6 +212,14 @@ pub enum InsulationKind {
         /// Outer end x, m.
         width_m: f64,
     },
+    /// Horizontal board under the footing: top face at the footing's base, from x = `x0_m` to
+    /// x = `x1_m` (at least the footing's width; the footing bears on it).
+    UnderFooting {
+        /// Inner end x, m.
+        x0_m: f64,
+        /// Outer end x, m.
+        x1_m: f64,
+    },
 }
 
 /// An insulation piece.
@@ -369,6 +377,8 @@ pub enum Dimension {
     BottomDepthM,
     /// Under-slab band width.
     BandWidthM,
+    /// How far a board under the footing reaches past its outer edge.
+    PastOuterEdgeM,
     /// Footing base depth.
     FootingBaseDepthM,
 }
@@ -511,6 +521,14 @@ impl Case {
     pub fn footing_x(&self) -> (f64, f64) {
         let x1 = self.footing.outer_projection_m;
         (x1 - self.footing.width_m, x1)
+    }
+    /// Thickness of the insulation board the footing bears on (`under_footing`), m; 0 without.
+    pub fn board_under_footing_m(&self) -> f64 {
+        self.insulation
+            .iter()
+            .filter(|i| matches!(i.kind, InsulationKind::UnderFooting { .. }))
+            .map(|i| i.thickness_m)
+            .fold(0.0, f64::max)
     }
     /// z of the footing's top, m.
     pub fn footing_top_z(&self) -> f64 {

@@ -181,6 +181,10 @@ pub struct RawInsulation {
     /// wing: the board's own width, from its inner edge (the outer face of any outside vertical
     /// insulation, else the wall's exterior face); instead of width_m.
     pub board_width_m: Option<S<f64>>,
+    /// under_footing: how far the board reaches past the footing's outer edge (default 0).
+    pub past_outer_edge_m: Option<S<f64>>,
+    /// under_footing: how far the board reaches past the footing's inner edge (default 0).
+    pub past_inner_edge_m: Option<S<f64>>,
 }
 
 /// A rectangular plan, exterior faces of the foundation wall.

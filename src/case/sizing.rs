@@ -172,10 +172,11 @@ fn vary(c: &Ctx, v: &S<RawVary>, key: &str, insulation: &[Insulation]) -> Result
         "depth_m" => Dimension::DepthM,
         "bottom_depth_m" => Dimension::BottomDepthM,
         "band_width_m" => Dimension::BandWidthM,
+        "past_outer_edge_m" => Dimension::PastOuterEdgeM,
         "footing.base_depth_m" => Dimension::FootingBaseDepthM,
         other => {
             return Err(c.err(r.dimension.span(), &format!("{key}.dimension"), InputKind::UnknownName, format!(
-                "\"{other}\" is not a sizing dimension; allowed: thickness_m, width_m, depth_m, bottom_depth_m, band_width_m, footing.base_depth_m")))
+                "\"{other}\" is not a sizing dimension; allowed: thickness_m, width_m, depth_m, bottom_depth_m, band_width_m, past_outer_edge_m, footing.base_depth_m")))
         }
     };
     let piece = piece(c, v, key, dim, insulation)?;
@@ -257,6 +258,7 @@ fn piece(
                 band_width_m: Some(_)
             }
         ),
+        Dimension::PastOuterEdgeM => matches!(kind, InsulationKind::UnderFooting { .. }),
         Dimension::FootingBaseDepthM => false,
     };
     if !fits {

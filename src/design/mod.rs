@@ -93,6 +93,7 @@ pub fn toml_key(d: Dimension) -> &'static str {
         Dimension::DepthM => "depth_m",
         Dimension::BottomDepthM => "bottom_depth_m",
         Dimension::BandWidthM => "band_width_m",
+        Dimension::PastOuterEdgeM => "past_outer_edge_m",
         Dimension::FootingBaseDepthM => "base_depth_m",
     }
 }
@@ -106,6 +107,7 @@ pub fn dimension_label(case: &Case, v: &Vary) -> String {
         InsulationKind::VerticalOutside { .. } => "vertical_outside",
         InsulationKind::VerticalInside { .. } => "vertical_inside",
         InsulationKind::Wing { .. } => "wing",
+        InsulationKind::UnderFooting { .. } => "under_footing",
     };
     match v.insulation {
         Some(i) => {
@@ -260,6 +262,12 @@ pub fn cost_per_m(case: &Case, s: &Sizing) -> f64 {
             } => {
                 dig += (depth_m + ins.thickness_m) * (width_m - x_start_m).max(0.0);
                 width_m - x_start_m
+            }
+            // The trench deepened by the board over its width (beyond the footing's, full depth).
+            InsulationKind::UnderFooting { x0_m, x1_m } => {
+                dig += (case.footing.base_depth_m + ins.thickness_m) * (x1_m - x0_m)
+                    - case.footing.base_depth_m * case.footing.width_m;
+                x1_m - x0_m
             }
         };
         let weight = s

@@ -53,6 +53,10 @@ pub struct SizingFile {
     pub tradeoff: Vec<Design>,
     /// Every evaluated design.
     pub designs: Vec<Design>,
+    /// An unheated building: no heat loss to report (the figures are the indoor air's exchange
+    /// with the ground, not a heating load).
+    #[serde(default)]
+    pub unheated: bool,
     /// What the sizing says about corners.
     pub corners: String,
     /// The 3D corner check, if the sizing had `[sizing.corner]`.
@@ -86,6 +90,7 @@ impl SizingFile {
             chosen: r.chosen.clone(),
             tradeoff: r.tradeoff.clone(),
             designs: r.designs.clone(),
+            unheated: case.building.unheated,
             corners: if r.corner.is_some() {
                 CORNERS_3D.into()
             } else {

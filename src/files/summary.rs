@@ -74,7 +74,7 @@ pub const COORDINATES: &str =
     "x horizontal, 0 at the exterior face of the foundation wall, positive outward; z depth below finished ground level, positive down";
 
 /// What `frost_margin_m` means.
-pub const MARGIN_DEFINITION: &str = "the least distance between the frozen ground (the half-frozen line) and the protected zone below the footing: the soil below the base, widening outward and down from each base corner at protected_zone_angle_deg from the vertical; negative when frost enters the zone";
+pub const MARGIN_DEFINITION: &str = "the least distance between the frozen ground (the half-frozen line) and the protected zone below the footing: the soil below the base, widening outward and down from each base corner at protected_zone_angle_deg from the vertical (under a footing that bears on an insulation board, the same zone from the board's underside down: frost in the board counts as near the zone, not in it); negative when frost enters the zone";
 
 /// What the heat-loss figures include.
 pub const HEAT_DEFINITION: &str = "ground heat loss = the heat from the indoor air through the floor and the wall/floor junction (and a basement's wall below ground): the indoor air's heat minus the 1D loss of the wall above ground (U_w of its layers, R_si 0.13 and R_se), which is reported on its own line; floor U is the floor-only model's steady coupling over B'/2 (no junction), and the junction's Psi_g = L2D - wall 1D part - floor part (ISO 13370 H_g = A U + P Psi_g); the model's wall reaches at least 1 m above the floor so that these do not depend on where the section is cut";
@@ -194,6 +194,7 @@ pub fn materials_of(case: &Case) -> Vec<MaterialInfo> {
             K::VerticalOutside { .. } => "vertical, outside",
             K::VerticalInside { .. } => "vertical, inside",
             K::Wing { .. } => "wing",
+            K::UnderFooting { .. } => "under footing",
         };
         v.push(info(format!("insulation[{k}] ({kind})"), &ins.material));
     }
@@ -294,6 +295,9 @@ pub struct Summary {
     pub frost_in_protected_zone: bool,
     /// Footing base depth, m.
     pub footing_base_depth_m: f64,
+    /// Top of the bearing soil, m: the footing base, or the underside of the insulation board the
+    /// footing bears on (`under_footing`), where the protected zone starts.
+    pub bearing_depth_m: f64,
     /// Spread of the protected zone from the vertical, degrees.
     pub protected_zone_angle_deg: f64,
     /// Least signed distance between the frozen ground and the protected zone, m.
@@ -429,6 +433,7 @@ impl Summary {
             frost_distance_to_base_corner_m: h.frost_distance_to_base_corner_m,
             frost_in_protected_zone: h.frost_in_protected_zone,
             footing_base_depth_m: case.footing.base_depth_m,
+            bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
             protected_zone_angle_deg: case.footing.protected_zone_angle_deg,
             frost_margin_m: h.frost_margin_m,
             frost_margin_definition: MARGIN_DEFINITION.into(),

@@ -4,7 +4,9 @@
 //! - `concrete`: λ 2.0 W/(m·K), ρ 2400 kg/m³, c 1000 J/(kg·K) (ISO 10456 high-density concrete
 //!   as tabulated in EDF's BuildSysPro material library; secondary).
 //! - `xps`: λ 0.032 W/(m·K), long-term moist in-ground design value of extruded polystyrene
-//!   (ASCE/SEI 32-01, R 4.5 per inch), ρc 0.05 MJ/(m³·K) (35 kg/m³ × 1450 J/(kg·K), typical).
+//!   Types IV–VII (ASCE/SEI 32-01 effective R 4.5 per inch, as reproduced in HUD's Revised
+//!   Builder's Guide to Frost Protected Shallow Foundations, 2004), ρc 0.05 MJ/(m³·K)
+//!   (35 kg/m³ × 1450 J/(kg·K), typical).
 //! - `eps`: λ 0.045 W/(m·K), EPS Type IX in-ground design value (ASCE/SEI 32-01, R 3.2 per inch),
 //!   ρc 0.04 MJ/(m³·K) (typical).
 //! - `eps-ii`: λ 0.060 W/(m·K), EPS Type II in-ground design value (ASCE/SEI 32-01, R 2.4 per inch).
@@ -290,6 +292,20 @@ mod tests {
         }
         for n in MATERIAL_NAMES {
             assert!(named_material(n).is_some());
+        }
+    }
+
+    /// The boards' in-ground conductivities are ASCE/SEI 32-01's effective R per inch for long-term
+    /// moist below-ground use (XPS 4.5, EPS Type IX 3.2, EPS Type II 2.4 h·ft²·°F/(Btu·in), as
+    /// reproduced in HUD's Revised Builder's Guide to Frost Protected Shallow Foundations, 2004):
+    /// λ = 0.0254 m / (R × 0.1761102 m²·K/W) (NIST SP 811, B.9), to the two significant figures
+    /// the library keeps.
+    #[test]
+    fn boards_match_the_published_in_ground_r_per_inch() {
+        for (name, r_per_inch) in [("xps", 4.5), ("eps", 3.2), ("eps-ii", 2.4)] {
+            let k = named_material(name).unwrap().k_unfrozen;
+            let published = 0.0254 / (r_per_inch * 0.176_110_2);
+            assert!((k - published).abs() < 0.0005, "{name}: {k} vs {published}");
         }
     }
 

@@ -51,7 +51,12 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
             ("sans-serif", 18),
         )
         .map_err(out_err)?;
-    let (top, bottom) = root.split_vertically(SIZE.1 * 55 / 100);
+    // An unheated building has no heat loss to show: the margin panel takes the whole figure.
+    let (top, bottom) = if f.unheated {
+        (root.clone(), root.clone())
+    } else {
+        root.split_vertically(SIZE.1 * 55 / 100)
+    };
     let designs = shown(f);
     let two = f.dimensions.len() == 2;
     let x = |d: &Design| d.values[0];
@@ -77,6 +82,11 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
             format!("least {} (m)", f.dimensions[1])
         } else {
             "frost margin (m)".to_string()
+        })
+        // Decimals from the tick spacing; a tick at zero reads 0, not -0.0.
+        .y_label_formatter(&|v: &f64| {
+            let d = if (t1 - t0) < 0.5 { 2 } else { 1 };
+            format!("{:.d$}", if v.abs() < 1e-9 { 0.0 } else { *v })
         })
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -123,6 +133,9 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
             SeriesLabelPosition::UpperLeft
         },
     )?;
+    if f.unheated {
+        return root.present().map_err(out_err);
+    }
     // Bottom panel: annual heat loss.
     let base = f.baseline_without_varied_insulation.annual_heat_loss_kwh;
     let (h0, h1) = padded(

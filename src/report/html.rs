@@ -255,6 +255,7 @@ fn heat_rows(s: &Summary) -> Vec<Row> {
 
 fn frost_rows(s: &Summary) -> Vec<Row> {
     let cc = &s.cross_check;
+    let board = s.bearing_depth_m > s.footing_base_depth_m + 1e-9;
     vec![
         (
             "frost depth, open ground",
@@ -268,9 +269,10 @@ fn frost_rows(s: &Summary) -> Vec<Row> {
             "Stefan / modified Berggren, n = 1",
         ),
         ("frost depth at the footing's outer face", "m", raw(s.frost_depth_at_footing_face_m, 2), "–".into(), ""),
-        ("frost depth below the footing base", "m", raw(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
+        (if board { "frost depth below the footing's board" } else { "frost depth below the footing base" }, "m", raw(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
         ("frost depth beside the wall (within 0.5 m)", "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "frozen backfill above a footing counts here, not under the footing"),
-        ("footing base depth", "m", raw(s.footing_base_depth_m, 2), "–".into(), ""),
+        ("footing base depth", "m", raw(s.footing_base_depth_m, 2), "–".into(), if board { "the footing bears on an insulation board" } else { "" }),
+        ("bearing soil depth", "m", raw(s.bearing_depth_m, 2), "–".into(), if board { "the board's underside: the protected zone starts here" } else { "the footing base" }),
         ("frost line's closest approach to the outer base corner", "m", raw(s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN), 2), "–".into(), ""),
         ("frost margin to the protected zone", "m", raw(s.frost_margin_m, 2), "–".into(), "zone below the base spreading at protected_zone_angle_deg from each base corner; negative: frost in the zone"),
         (

@@ -22,9 +22,19 @@ pub fn text(f: &SizingFile) -> String {
         f.case_name, f.margin_meaning
     );
     let b = &f.baseline_without_varied_insulation;
+    // An unheated building has no heating load: no heat-loss figures.
+    let heat = |kwh: f64, change: Option<f64>| match (f.unheated, change) {
+        (true, _) => String::new(),
+        (false, None) => format!(", heat loss {kwh:.0} kWh/yr"),
+        (false, Some(c)) => {
+            format!(", heat loss {kwh:.0} kWh/yr ({c:+.0} against no varied insulation)")
+        }
+    };
     s += &format!(
-        "  without the varied insulation: frost under the footing {:.2} m, margin {:.2} m, heat loss {:.0} kWh/yr\n",
-        b.frost_depth_under_footing_m, b.frost_margin_m, b.annual_heat_loss_kwh
+        "  without the varied insulation: frost under the footing {:.2} m, margin {:.2} m{}\n",
+        b.frost_depth_under_footing_m,
+        b.frost_margin_m,
+        heat(b.annual_heat_loss_kwh, None)
     );
     if let Some(why) = &f.no_insulation_needed {
         s += &format!("\n  No insulation needed: {why}.\n");
@@ -39,19 +49,25 @@ pub fn text(f: &SizingFile) -> String {
             format!("\n  Least {last} that meets the margin:\n")
         };
         for d in &f.tradeoff {
+            let loss = if f.unheated {
+                String::new()
+            } else {
+                format!(
+                    "  heat loss {:>7.0} kWh/yr ({:+.0})",
+                    d.annual_heat_loss_kwh, d.heat_loss_change_kwh
+                )
+            };
             s += &format!(
-                "    {:<28} margin {:>6.2} m  heat loss {:>7.0} kWh/yr ({:+.0})  cost {:>7.1} per m\n",
+                "    {:<28} margin {:>6.2} m{loss}  cost {:>7.1} per m\n",
                 values(&d.values, " × ", ""),
                 d.frost_margin_m,
-                d.annual_heat_loss_kwh,
-                d.heat_loss_change_kwh,
                 d.cost_per_m
             );
         }
         match &f.chosen {
             Some(d) => {
                 s += &format!("\n  Chosen (least cost): {} = {}\n", f.dimensions.join(", "), values(&d.values, ", ", " m"));
-                s += &format!("    frost margin {:.2} m, heat loss {:.0} kWh/yr ({:+.0} against no varied insulation)\n", d.frost_margin_m, d.annual_heat_loss_kwh, d.heat_loss_change_kwh);
+                s += &format!("    frost margin {:.2} m{}\n", d.frost_margin_m, heat(d.annual_heat_loss_kwh, Some(d.heat_loss_change_kwh)));
             }
             None => s += "\n  No design within the bounds meets the margin: widen the bounds or deepen the footing.\n",
         }
@@ -122,7 +138,15 @@ pub fn html(f: &SizingFile) -> String {
         );
     }
     let dims: Vec<String> = f.dimensions.iter().map(|d| escape(d)).collect();
-    h += &format!("<table>\n<tr><th>{}</th><th>frost margin (m)</th><th>annual heat loss (kWh)</th><th>change (kWh)</th><th>cost per m</th></tr>\n", dims.join(" (m)</th><th>") + " (m)");
+    let heat_heads = if f.unheated {
+        ""
+    } else {
+        "<th>annual heat loss (kWh)</th><th>change (kWh)</th>"
+    };
+    h += &format!(
+        "<table>\n<tr><th>{}</th><th>frost margin (m)</th>{heat_heads}<th>cost per m</th></tr>\n",
+        dims.join(" (m)</th><th>") + " (m)"
+    );
     for d in &f.tradeoff {
         let vals: Vec<String> = d.values.iter().map(|v| num(*v, 3)).collect();
         let mark = if f.chosen.as_ref().is_some_and(|c| c.values == d.values) {
@@ -130,12 +154,19 @@ pub fn html(f: &SizingFile) -> String {
         } else {
             ""
         };
+        let heat_cells = if f.unheated {
+            String::new()
+        } else {
+            format!(
+                "<td class=n>{}</td><td class=n>{}</td>",
+                num(d.annual_heat_loss_kwh, 0),
+                num(d.heat_loss_change_kwh, 0)
+            )
+        };
         h += &format!(
-            "<tr><td class=n>{}{mark}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
+            "<tr><td class=n>{}{mark}</td><td class=n>{}</td>{heat_cells}<td class=n>{}</td></tr>\n",
             vals.join("</td><td class=n>"),
             num(d.frost_margin_m, 2),
-            num(d.annual_heat_loss_kwh, 0),
-            num(d.heat_loss_change_kwh, 0),
             num(d.cost_per_m, 1)
         );
     }

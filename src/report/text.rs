@@ -292,8 +292,13 @@ fn frost_rows(s: &Summary) -> String {
         2,
         &[s.frost_depth_at_footing_face_m],
     );
+    let board = s.bearing_depth_m > s.footing_base_depth_m + 1e-9;
     t += &row(
-        "below the footing base",
+        if board {
+            "below the footing's board"
+        } else {
+            "below the footing base"
+        },
         "m",
         2,
         &[s.frost_depth_under_footing_m],
@@ -305,6 +310,14 @@ fn frost_rows(s: &Summary) -> String {
         &[s.frost_depth_beside_wall_m],
     );
     t += &row("footing base", "m", 2, &[s.footing_base_depth_m]);
+    if board {
+        t += &row(
+            "bearing soil (under the board)",
+            "m",
+            2,
+            &[s.bearing_depth_m],
+        );
+    }
     t += &row(
         "closest to the outer base corner",
         "m",

@@ -16,6 +16,13 @@
 //! while frost stays outside Z and negative by the depth it reaches into Z. Without frost the
 //! margin is the base depth. Frost in backfill above the footing's top is frost beside the wall,
 //! never under the footing.
+//!
+//! A footing bearing on an insulation board (`under_footing`, thickness t_b) has the soil below
+//! the board as its bearing ground: the zone is the same spread from the base corners, cut at the
+//! board's underside, Z ∩ {z ≥ z_b + t_b} (corners (x₀ − t_b tan α, z_b + t_b) and
+//! (x₁ + t_b tan α, z_b + t_b)). Cold board cells lie above the zone like the footing's own
+//! concrete: they bring the frozen ground closer (a smaller margin) but never into the zone, since
+//! the board does not heave; frost in the soil under it does.
 use crate::analysis::{frost_depth_column, frost_scalar_field, isolines::isolines};
 use crate::case::Case;
 use crate::mesh::Mesh;
@@ -32,6 +39,8 @@ pub struct ProtectedZone {
     pub base_z: f64,
     /// tan α of the spread angle from the vertical.
     pub tan: f64,
+    /// Thickness of the board the footing bears on, m (0 without one).
+    pub board_m: f64,
 }
 
 impl ProtectedZone {
@@ -43,17 +52,40 @@ impl ProtectedZone {
             x1,
             base_z: case.footing.base_depth_m,
             tan: case.footing.protected_zone_angle_deg.to_radians().tan(),
+            board_m: case.board_under_footing_m(),
+        }
+    }
+
+    /// Depth of the bearing soil's top, m: the footing's base, or the underside of the board it
+    /// bears on.
+    pub fn bearing_z(&self) -> f64 {
+        self.base_z + self.board_m
+    }
+
+    /// The zone's part in the soil: the same spread lines, cut at the bearing level.
+    fn in_soil(&self) -> ProtectedZone {
+        let spread = self.board_m * self.tan;
+        ProtectedZone {
+            x0: self.x0 - spread,
+            x1: self.x1 + spread,
+            base_z: self.bearing_z(),
+            tan: self.tan,
+            board_m: 0.0,
         }
     }
 
     /// True if (x, z) lies in the zone.
     pub fn contains(&self, x: f64, z: f64) -> bool {
-        let d = z - self.base_z;
-        d >= 0.0 && x >= self.x0 - d * self.tan && x <= self.x1 + d * self.tan
+        let s = self.in_soil();
+        let d = z - s.base_z;
+        d >= 0.0 && x >= s.x0 - d * s.tan && x <= s.x1 + d * s.tan
     }
 
     /// Signed distance of (x, z) to the zone's boundary, m: positive outside, negative inside.
     pub fn signed_distance(&self, x: f64, z: f64) -> f64 {
+        if self.board_m > 0.0 {
+            return self.in_soil().signed_distance(x, z);
+        }
         let norm = (1.0 + self.tan * self.tan).sqrt();
         // The two rays from the base corners, unit directions outward and down.
         let ray = |cx: f64, dir: f64| {
@@ -85,7 +117,8 @@ pub struct FrostMeasures {
     pub at_face_top_m: f64,
     /// Frost depth on the vertical line just outside the footing's outer face.
     pub at_face_m: f64,
-    /// Deepest frozen point below the footing base within the footing's width (0: none).
+    /// Deepest frozen point below the bearing level (the footing's base, or the underside of the
+    /// board it bears on) within the footing's width (0: none).
     pub under_footing_m: f64,
     /// Deepest frost within 0.5 m outside the wall's exterior face.
     pub beside_wall_m: f64,
@@ -150,7 +183,7 @@ impl FrostLines {
             open_top_m: top(self.open),
             at_face_m: depth(self.face, 0.0).unwrap_or(0.0),
             at_face_top_m: top(self.face),
-            under_footing_m: deepest(&self.footing, self.zone.base_z),
+            under_footing_m: deepest(&self.footing, self.zone.bearing_z()),
             beside_wall_m: deepest(&self.beside_wall, 0.0),
             corner_distance_m: corner,
             margin_m: margin,
@@ -179,7 +212,7 @@ impl FrostLines {
             .fold(f64::INFINITY, f64::min);
         points.extend(cells);
         if points.is_empty() {
-            return (self.zone.base_z, corner);
+            return (self.zone.bearing_z(), corner);
         }
         let margin = points
             .iter()
@@ -222,6 +255,7 @@ mod tests {
             x1: 0.0,
             base_z: 0.45,
             tan: 1.0,
+            board_m: 0.0,
         };
         // Straight above the base: vertical distance.
         assert!((z.signed_distance(-0.2, 0.30) - 0.15).abs() < 1e-12);
@@ -239,5 +273,31 @@ mod tests {
             ..z
         };
         assert!(z30.signed_distance(0.08, 0.55) > 0.0 && z.signed_distance(0.08, 0.55) < 0.0);
+    }
+
+    /// The same footing on a 0.1 m board: the zone starts at the board's underside (0.55 m) and
+    /// keeps the 45° lines from the base corners. Distances by hand.
+    #[test]
+    fn zone_under_a_board_starts_at_its_underside() {
+        let z = ProtectedZone {
+            x0: -0.4,
+            x1: 0.0,
+            base_z: 0.45,
+            tan: 1.0,
+            board_m: 0.10,
+        };
+        assert!((z.bearing_z() - 0.55).abs() < 1e-12);
+        // A frozen point in the board under the footing's middle: outside, 0.02 m above the soil.
+        assert!(!z.contains(-0.2, 0.53));
+        assert!((z.signed_distance(-0.2, 0.53) - 0.02).abs() < 1e-12);
+        // Frost 0.05 m into the soil below the board: inside by 0.05 m.
+        assert!((z.signed_distance(-0.2, 0.60) + 0.05).abs() < 1e-12);
+        // The spread line continues from the base corner: (0.15, 0.60) lies on x = z − 0.45.
+        assert!(z.signed_distance(0.15, 0.60).abs() < 1e-12);
+        // Level with the board's underside, 0.2 m past the zone's top corner (0.1, 0.55): the
+        // perpendicular to the spread line, 0.2/√2.
+        assert!((z.signed_distance(0.3, 0.55) - 0.2 / 2f64.sqrt()).abs() < 1e-12);
+        // Above the board beside the footing: the distance to that corner.
+        assert!((z.signed_distance(0.1, 0.45) - 0.1).abs() < 1e-12);
     }
 }

@@ -250,7 +250,7 @@ impl<'a> Quarter3<'a> {
             plan[c.face],
             c.footing
                 .iter()
-                .filter_map(|&col| self.depth(col, self.zone.base_z))
+                .filter_map(|&col| self.depth(col, self.zone.bearing_z()))
                 .fold(0.0, f64::max),
             c.beside.iter().map(|&col| plan[col]).fold(0.0, f64::max),
         )
@@ -364,7 +364,7 @@ impl Observer for Quarter3<'_> {
                 Bin::East(_) | Bin::North(_) => {}
             }
         });
-        let no_frost = zone.base_z;
+        let no_frost = zone.bearing_z();
         let fix = |m: f64| if m.is_finite() { m } else { no_frost };
         // Every plan column's depth once (row-major j·nx + i, the columns' ids).
         let mut plan = Array2::zeros((g.ny(), g.nx()));
