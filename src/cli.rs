@@ -661,7 +661,9 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
     written.push(files::write_manifest(&a.out, &written, false)?);
     say!(
         "{}",
-        report::sizing::text(&files::SizingFile::new(&case, &result))
+        report::in_units(a.units.into(), || report::sizing::text(
+            &files::SizingFile::new(&case, &result)
+        ))
     );
     print_files(&a.out, &written);
     let mut u = Vec::new();

@@ -446,4 +446,34 @@ fn alder_bend_house_3d_coarse() {
     assert_eq!(walls.iter().filter(|w| **w == "corner").count(), 1);
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("id=\"three-d\"") && report.contains("fig-plan_frost"));
+
+    // The same results as a US-units run would show them: `plot` re-renders from the saved
+    // files in the units summary.json records (1 ft = 0.3048 m, °F = 1.8 °C + 32).
+    let us = crate::cli::scratch("alder-3d-us");
+    for e in std::fs::read_dir(&out).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_file() {
+            std::fs::copy(&p, us.join(p.file_name().unwrap())).unwrap();
+        }
+    }
+    let summary = std::fs::read_to_string(us.join("summary.json")).unwrap();
+    let summary = summary.replacen("\"units\": \"si\"", "\"units\": \"us\"", 1);
+    assert!(summary.contains("\"units\": \"us\""));
+    std::fs::write(us.join("summary.json"), summary).unwrap();
+    crate::common::run_ok(&["plot".as_ref(), us.as_os_str()]);
+    let svg = |n: &str| std::fs::read_to_string(us.join(n)).unwrap();
+    let plan = svg("plan_frost.svg");
+    assert!(plan.contains("X (ft) along the length") && plan.contains("depth below ground (ft)"));
+    let base_ft = format!("({:.2} ft)", num(&s, "footing_base_depth_m") / 0.3048);
+    assert!(plan.contains(&base_ft), "{base_ft}");
+    let per = svg("perimeter_frost.svg");
+    assert!(per.contains("frost margin (ft)") && !per.contains("(m)"));
+    for name in ["section_mid_wall.svg", "section_corner_diagonal.svg"] {
+        let sec = svg(name);
+        assert!(
+            sec.contains("depth z (ft) below ground") && sec.contains("°F") && !sec.contains("°C")
+        );
+    }
+    let html = std::fs::read_to_string(us.join("report.html")).unwrap();
+    assert!(html.contains("<td>ft</td>") && html.contains("Btu/(h·°F)"));
 }

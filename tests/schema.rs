@@ -156,6 +156,11 @@ fn schema_names_every_key_the_parser_accepts() {
         .filter(|l| !l.starts_with("struct") && !l.starts_with("enum") && !l.starts_with("type"))
         .filter_map(|l| l.split_once(':').map(|(k, _)| k.to_string()))
         .collect();
+    // A serde alias (`#[serde(alias = "min_m")]`) is a key the parser accepts too.
+    fields.extend(raw.lines().filter_map(|l| {
+        let rest = l.trim().strip_prefix("#[serde(alias = \"")?;
+        Some(rest.split('"').next()?.to_string())
+    }));
     let root = schema();
     let keys: Vec<String> = std::iter::once(&root)
         .chain(root["$defs"].as_object().unwrap().values())

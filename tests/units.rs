@@ -228,6 +228,32 @@ fn results_in_us_units() {
     assert!(svg("frost_depth.svg").contains("footing base (1.33 ft)"));
     assert!(svg("heat_loss.svg").contains("ground heat loss (kBtu per month)"));
     assert!(svg("heat_loss.svg").contains("mean outdoor temperature (°F)"));
+    // The field plots and the sketch: lengths in ft, temperatures in °F (the frost line at
+    // −0.25 °C = 31.55 °F); nothing left in metres or °C.
+    for name in ["soil_temperature.svg", "soil_temperature_zoom.svg"] {
+        let s = svg(name);
+        assert!(s.contains("depth z (ft) below ground") && s.contains("x (ft), 0 at the wall"));
+        assert!(s.contains("frost line (31.55 °F)") && !s.contains("°C") && !s.contains("(m)"));
+    }
+    let sketch = svg("foundation_sketch.svg");
+    assert!(sketch.contains("footing base 1.33 ft (16.0 in)"), "sketch");
+    assert!(sketch.contains("z depth below ground (ft)") && !sketch.contains("(m)"));
+    // The saved frost line stays in metres (a data file, SI like the other CSVs).
+    let day = n(&si, "design_day_of_year") as usize;
+    let line = std::fs::read_to_string(out.join(format!("frost_line_{day:03}.csv"))).unwrap();
+    assert!(line.contains("x_m,z_m"));
+    let deepest = line
+        .lines()
+        .skip(1)
+        .filter_map(|l| l.split(',').nth(2)?.parse::<f64>().ok())
+        .fold(0.0, f64::max);
+    // The zoomed view's line: frozen ground, never deeper than open ground's frost (in feet it
+    // would be 3.28 times deeper).
+    let open = n(&si, "frost_depth_open_ground_m");
+    assert!(
+        deepest > 0.3 && deepest <= open + 0.01,
+        "frost line {deepest} m vs {open} m"
+    );
 }
 
 /// An unheated building: no heat-loss figures and none of the heated-floor cross-checks (ISO
@@ -405,4 +431,32 @@ fn board_under_the_footing() {
     let vary = &sized.sizing.as_ref().unwrap().vary;
     let d = frostline::design::apply(&sized, vary, &[0.7]).unwrap();
     assert!((d.insulation_rect(2).x1 - 0.7).abs() < 1e-9);
+}
+
+/// Errors that compare one quantity with others name every length in the unit the user wrote the
+/// offending one in (1 in = 0.0254 m exactly): a footing narrower than the wall, a wall cut below
+/// the floor surface.
+#[test]
+fn cross_field_errors_in_the_users_unit() {
+    let src = example("tamarack-flats-house-us.toml");
+    let e = parse_case("us.toml", &src.replace("width_in = 16.0", "width_in = 6.0"))
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("footing.width_in: 6 in is narrower than the wall (8 in)"),
+        "{e}"
+    );
+    let e = parse_case(
+        "us.toml",
+        &src.replace(
+            "height_above_ground_in = 12.0",
+            "height_above_ground_ft = 0.25",
+        ),
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("0.25 ft is below the floor surface (0.6667 ft above ground)"),
+        "{e}"
+    );
 }

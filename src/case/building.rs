@@ -100,7 +100,7 @@ fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
                     p.span(),
                     "building.exposed_perimeter_m",
                     InputKind::OutOfRange,
-                    format!("{p_v} m gives B' = A/(0.5 P) = {bp:.0} m; allowed: B' of at most 1000 m (the same bound as characteristic_dimension_m: the section's domain grows with B')"),
+                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at most {} (the same bound as characteristic_dimension_m: the section's domain grows with B')", c.len(&p.span(), p_v), c.len(&p.span(), bp.round()), c.len(&p.span(), 1000.0)),
                 ));
             }
             if bp < 1.0 {
@@ -108,7 +108,7 @@ fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
                     p.span(),
                     "building.exposed_perimeter_m",
                     InputKind::OutOfRange,
-                    format!("{p_v} m gives B' = A/(0.5 P) = {bp:.3} m; allowed: B' of at least 1 m"),
+                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at least {}", c.len(&p.span(), p_v), c.len(&p.span(), (bp * 1e3).round() / 1e3), c.len(&p.span(), 1.0)),
                 ));
             }
             Ok((a_v, p_v, bp))
@@ -229,13 +229,18 @@ pub fn construction(c: &Ctx, raw: &RawCase) -> Result<Construction> {
         )?,
     };
     if wall.height_above_ground_m < slab.top_above_ground_m {
+        let sp = raw
+            .wall
+            .height_above_ground_m
+            .as_ref()
+            .map_or(raw.wall.thickness_m.span(), |v| v.span());
         return Err(c.err(
-            raw.wall.height_above_ground_m.as_ref().map_or(raw.wall.thickness_m.span(), |v| v.span()),
+            sp.clone(),
             "wall.height_above_ground_m",
             InputKind::OutOfRange,
             format!(
-                "{} m is below the floor surface ({} m above ground); allowed: at least slab.top_above_ground_m",
-                wall.height_above_ground_m, slab.top_above_ground_m
+                "{} is below the floor surface ({} above ground); allowed: at least slab.top_above_ground_m",
+                c.len(&sp, wall.height_above_ground_m), c.len(&sp, slab.top_above_ground_m)
             ),
         ));
     }
@@ -278,8 +283,9 @@ fn footing(c: &Ctx, f: &RawFooting, slab: &Slab, wall: &Wall) -> Result<Footing>
             "footing.width_m",
             InputKind::OutOfRange,
             format!(
-                "{} m is narrower than the wall ({} m); allowed: at least wall.thickness_m",
-                footing.width_m, wall.thickness_m
+                "{} is narrower than the wall ({}); allowed: at least wall.thickness_m",
+                c.len(&f.width_m.span(), footing.width_m),
+                c.len(&f.width_m.span(), wall.thickness_m)
             ),
         ));
     }
@@ -290,8 +296,9 @@ fn footing(c: &Ctx, f: &RawFooting, slab: &Slab, wall: &Wall) -> Result<Footing>
             "footing.base_depth_m",
             InputKind::OutOfRange,
             format!(
-                "{} m puts the footing base above the slab's underside (z = {slab_bottom:.3} m); allowed: deeper than the slab",
-                footing.base_depth_m
+                "{} puts the footing base above the slab's underside (z = {}); allowed: deeper than the slab",
+                c.len(&f.base_depth_m.span(), footing.base_depth_m),
+                c.len(&f.base_depth_m.span(), slab_bottom)
             ),
         ));
     }
@@ -300,7 +307,7 @@ fn footing(c: &Ctx, f: &RawFooting, slab: &Slab, wall: &Wall) -> Result<Footing>
             f.thickness_m.span(),
             "footing.thickness_m",
             InputKind::OutOfRange,
-            format!("{} m puts the footing's top above the floor surface; allowed: at most base_depth_m + slab.top_above_ground_m", footing.thickness_m),
+            format!("{} puts the footing's top above the floor surface; allowed: at most base_depth_m + slab.top_above_ground_m", c.len(&f.thickness_m.span(), footing.thickness_m)),
         ));
     }
     Ok(footing)

@@ -51,6 +51,15 @@ impl Ctx<'_> {
         }
     }
 
+    /// A length `v` (m) in a message about the value at `span`: in the unit the user gave that
+    /// value in (4 significant digits), else in metres as `v` prints.
+    pub fn len(&self, span: &Range<usize>, v: f64) -> String {
+        match self.units.given_at(span.start) {
+            Some(g) => format!("{} {}", from_si(g.unit, v), g.unit.label),
+            None => format!("{} m", (v * 1e6).round() / 1e6),
+        }
+    }
+
     /// "V U is out of range; allowed: …" in the user's unit when `v` was given in a US unit;
     /// `bounds` formats the allowed range from two bound texts.
     fn out_of_range(

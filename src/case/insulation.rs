@@ -201,8 +201,9 @@ pub fn check_corners(c: &Ctx, raw: &[S<RawCorner>], case: &Case) -> Result<()> {
                 &format!("{key}.length_m"),
                 InputKind::OutOfRange,
                 format!(
-                    "{} m is more than half the plan's shorter side; allowed: up to {half} m",
-                    cp.length_m
+                    "{} is more than half the plan's shorter side; allowed: up to {}",
+                    c.len(&v.span(), cp.length_m),
+                    c.len(&v.span(), half)
                 ),
             ));
         }
@@ -308,8 +309,8 @@ fn kind(
             let fx1 = f.outer_projection_m;
             if fx1 > 1e-9 && depth + t > f.base_depth_m - f.thickness_m + 1e-9 && depth < f.base_depth_m {
                 return Err(c.err(d_v.span(), &format!("{key}.depth_m"), InputKind::Geometry, format!(
-                    "{depth} m puts the wing beside the footing, which projects {fx1:.3} m beyond the wall; allowed: above the footing's top ({:.3} m) or below its base",
-                    f.base_depth_m - f.thickness_m)));
+                    "{} puts the wing beside the footing, which projects {} beyond the wall; allowed: above the footing's top ({}) or below its base",
+                    c.len(&d_v.span(), depth), c.len(&d_v.span(), fx1), c.len(&d_v.span(), f.base_depth_m - f.thickness_m))));
             }
             Ok(InsulationKind::Wing { depth_m: depth, x_start_m: vert_out_t, width_m: width })
         }
@@ -344,8 +345,8 @@ fn vertical_outside(
     let fx1 = f.outer_projection_m;
     if fx1 > 1e-9 && bottom_m > f.base_depth_m - f.thickness_m + 1e-9 {
         return Err(c.err(bot_v.span(), &format!("{key}.bottom_depth_m"), InputKind::Geometry, format!(
-            "{bottom_m} m runs into the footing, which projects {fx1:.3} m beyond the wall's outside face from z = {:.3} m; allowed: at most the footing's top depth",
-            f.base_depth_m - f.thickness_m)));
+            "{} runs into the footing, which projects {} beyond the wall's outside face from z = {}; allowed: at most the footing's top depth",
+            c.len(&bot_v.span(), bottom_m), c.len(&bot_v.span(), fx1), c.len(&bot_v.span(), f.base_depth_m - f.thickness_m))));
     }
     Ok(InsulationKind::VerticalOutside { top_m, bottom_m })
 }
@@ -366,8 +367,9 @@ fn vertical_inside(
             .top_depth_m
             .as_ref()
             .map_or(ins.span(), |v| v.span());
-        return Err(c.err(sp, &format!("{key}.top_depth_m"), InputKind::Geometry, format!(
-            "{top_m} m overlaps the slab (z = {floor_z:.3} to {slab_bottom:.3} m); allowed: at or below the slab's underside, or wholly above the floor")));
+        return Err(c.err(sp.clone(), &format!("{key}.top_depth_m"), InputKind::Geometry, format!(
+            "{} overlaps the slab (z = {} to {}); allowed: at or below the slab's underside, or wholly above the floor",
+            c.len(&sp, top_m), c.len(&sp, floor_z), c.len(&sp, slab_bottom))));
     }
     Ok(InsulationKind::VerticalInside { top_m, bottom_m })
 }

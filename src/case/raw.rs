@@ -57,8 +57,13 @@ pub struct RawSizing {
 pub struct RawCornerVary {
     pub corner: Option<S<i64>>,
     pub dimension: S<String>,
+    /// Bounds and step in metres; `min_m` etc. are the same keys with their unit named, so that
+    /// `min_in`, `min_ft` (US units) are accepted too.
+    #[serde(alias = "min_m")]
     pub min: S<f64>,
+    #[serde(alias = "max_m")]
     pub max: S<f64>,
+    #[serde(alias = "step_m")]
     pub step: S<f64>,
 }
 
@@ -68,8 +73,13 @@ pub struct RawCornerVary {
 pub struct RawVary {
     pub insulation: Option<S<i64>>,
     pub dimension: S<String>,
+    /// Bounds and step in metres; `min_m` etc. are the same keys with their unit named, so that
+    /// `min_in`, `min_ft` (US units) are accepted too.
+    #[serde(alias = "min_m")]
     pub min: S<f64>,
+    #[serde(alias = "max_m")]
     pub max: S<f64>,
+    #[serde(alias = "step_m")]
     pub step: S<f64>,
 }
 

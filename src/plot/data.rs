@@ -12,8 +12,10 @@ use std::path::Path;
 pub struct PlotData {
     /// Case name.
     pub case_name: String,
-    /// Units of the charts' axes (the field plots and the sketch are in SI).
+    /// Units of the charts' axes and data (converted by [`PlotData::charts_in`]).
     pub units: Units,
+    /// Units of the field plots' and the sketch's axes and labels (their data stay in m, °C).
+    pub field_units: Units,
     /// Grid x edges, m.
     pub xe: Vec<f64>,
     /// Grid z edges, m.
@@ -104,6 +106,7 @@ impl PlotData {
             .unwrap_or(0);
         Ok(PlotData {
             units: Units::Si,
+            field_units: Units::Si,
             section: sec.clone(),
             case_name: sec.case_name,
             xe: sec.xe,

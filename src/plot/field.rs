@@ -4,6 +4,7 @@ use super::{data::PlotData, out_err, shade};
 use crate::analysis::isolines::{self, isolines};
 use crate::error::Result;
 use crate::files::section::PartOutline;
+use crate::files::us::Units;
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -15,6 +16,40 @@ pub(crate) struct View {
     pub(crate) x1: f64,
     pub(crate) z0: f64,
     pub(crate) z1: f64,
+}
+
+/// Lengths on the axes per metre: 1 in SI, 1/0.3048 in feet (exact international foot).
+///
+/// The section's data stay in metres and °C (the shading, the frost scalar and the saved frost
+/// line are computed there); only the chart's coordinates and labels are in the user's units:
+/// every point drawn is (x, z) × this factor, the isotherms are drawn at round °F values
+/// converted to °C, and the colour bar is labelled at round °F values placed at their °C.
+pub(crate) fn per_metre(units: Units) -> f64 {
+    match units {
+        Units::Si => 1.0,
+        Units::Us => 1.0 / 0.3048,
+    }
+}
+
+/// The length unit's label on the axes.
+pub(crate) fn length_label(units: Units) -> &'static str {
+    match units {
+        Units::Si => "m",
+        Units::Us => "ft",
+    }
+}
+
+/// °C → °F (exact).
+pub(crate) fn fahrenheit(c: f64) -> f64 {
+    c * 9.0 / 5.0 + 32.0
+}
+
+/// A temperature as labelled in `units` with `d` decimals: "−0.25 °C" or "31.55 °F".
+pub(crate) fn temperature_text(units: Units, c: f64, d: usize) -> String {
+    match units {
+        Units::Si => format!("{c:.d$} °C"),
+        Units::Us => format!("{:.d$} °F", fahrenheit(c)),
+    }
 }
 
 /// The pieces of a polyline that lie inside the view (split where it leaves, so no chord is drawn
@@ -206,26 +241,30 @@ fn metres(v: f64) -> String {
     s.strip_suffix('0').map_or(s.clone(), str::to_string)
 }
 
-/// A section chart on `area` for view `v` (equal scales are the caller's sizing): caption, axes
-/// in metres with depth increasing downwards, no grid.
+/// A section chart on `area` for view `v` (m; equal scales are the caller's sizing): caption,
+/// axes in the length unit of `units` (the chart's coordinates are metres × [`per_metre`]; an
+/// axis title's "(m)" reads "(ft)" in US units) with depth increasing downwards, no grid.
 pub(crate) fn section_chart<'a, DB: DrawingBackend>(
     area: &'a DrawingArea<DB, Shift>,
     title: &str,
     v: View,
     x_desc: &str,
+    units: Units,
 ) -> Result<Section2d<'a, DB>> {
+    let k = per_metre(units);
     let mut chart = ChartBuilder::on(area)
         .caption(title, ("sans-serif", 18))
         .margin(15)
         .x_label_area_size(45)
         .y_label_area_size(60)
-        .build_cartesian_2d(v.x0..v.x1, v.z1..v.z0)
+        .build_cartesian_2d(v.x0 * k..v.x1 * k, v.z1 * k..v.z0 * k)
         .map_err(out_err)?;
+    let unit = format!("({})", length_label(units));
     chart
         .configure_mesh()
         .disable_mesh()
-        .x_desc(x_desc)
-        .y_desc("depth z (m) below ground")
+        .x_desc(x_desc.replace("(m)", &unit))
+        .y_desc(format!("depth z {unit} below ground"))
         .x_label_formatter(&|v: &f64| metres(*v))
         .y_label_formatter(&|v: &f64| metres(*v))
         .label_style(("sans-serif", 13))
@@ -238,14 +277,38 @@ pub(crate) fn section_chart<'a, DB: DrawingBackend>(
 pub(crate) type Section2d<'a, DB> =
     ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
-/// Isotherms every `interval` K between `lo` and `hi` (the 0 °C line excepted), labelled where
-/// labels do not crowd.
+/// Isotherms every `interval` K between `lo` and `hi` (°C; the 0 °C line excepted), labelled
+/// where labels do not crowd. In US units the lines lie at round °F values instead (every 2 °F
+/// for a 1 K interval, every 5 °F for larger ones; 32 °F excepted), labelled in °F.
 pub(crate) fn draw_isotherms<DB: DrawingBackend>(
     chart: &mut Section2d<DB>,
     (xs, zs, field): (&[f64], &[f64], &[f64]),
     v: View,
     (lo, hi, interval): (f64, f64, f64),
+    units: Units,
 ) -> Result<()> {
+    let k = per_metre(units);
+    // The levels in the shown unit, and back to °C.
+    let (lo_s, hi_s, step) = match units {
+        Units::Si => (lo, hi, interval),
+        Units::Us => (
+            fahrenheit(lo),
+            fahrenheit(hi),
+            if interval <= 1.0 { 2.0 } else { 5.0 },
+        ),
+    };
+    let freezing = match units {
+        Units::Si => 0.0,
+        Units::Us => 32.0,
+    };
+    let to_c = |s: f64| match units {
+        Units::Si => s,
+        Units::Us => (s - 32.0) * 5.0 / 9.0,
+    };
+    let symbol = match units {
+        Units::Si => "°C",
+        Units::Us => "°F",
+    };
     let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
     // Labels keep a distance of 6 % of the view from each other.
     let mut placed: Vec<(f64, f64)> = Vec::new();
@@ -255,9 +318,10 @@ pub(crate) fn draw_isotherms<DB: DrawingBackend>(
                 > 0.06
         })
     };
-    let mut level = (lo / interval).ceil() * interval;
-    while level <= hi {
-        if level.abs() > 1e-9 {
+    let mut shown = (lo_s / step).ceil() * step;
+    while shown <= hi_s {
+        let level = to_c(shown);
+        if (shown - freezing).abs() > 1e-9 {
             for pts in isolines(xs, zs, field, level)
                 .iter()
                 .flat_map(|l| runs_inside(l, &inside))
@@ -265,21 +329,22 @@ pub(crate) fn draw_isotherms<DB: DrawingBackend>(
                 if pts.len() < 2 {
                     continue;
                 }
+                let drawn: Vec<(f64, f64)> = pts.iter().map(|&(x, z)| (x * k, z * k)).collect();
                 chart
                     .draw_series(std::iter::once(PathElement::new(
-                        pts.clone(),
+                        drawn,
                         RGBColor(70, 70, 70).stroke_width(1),
                     )))
                     .map_err(out_err)?;
                 if pts.len() >= 6 && far(pts[pts.len() / 2], &placed) {
                     let (x, z) = pts[pts.len() / 2];
                     placed.push((x, z));
-                    // The label in °C on a pale box, readable on dark and light colours.
-                    let text = format!("{level:.0} °C");
+                    // The label on a pale box, readable on dark and light colours.
+                    let text = format!("{shown:.0} {symbol}");
                     let w = 7 * text.chars().count() as i32;
                     chart
                         .draw_series(std::iter::once(
-                            EmptyElement::at((x, z))
+                            EmptyElement::at((x * k, z * k))
                                 + Rectangle::new([(-2, -8), (w, 8)], WHITE.mix(0.8).filled())
                                 + Text::new(text, (0, -6), ("sans-serif", 12).into_font()),
                         ))
@@ -287,7 +352,7 @@ pub(crate) fn draw_isotherms<DB: DrawingBackend>(
                 }
             }
         }
-        level += interval;
+        shown += step;
     }
     Ok(())
 }
@@ -307,7 +372,9 @@ pub(crate) fn draw_outlines<DB: DrawingBackend>(
     chart: &mut Section2d<DB>,
     parts: &[PartOutline],
     v: View,
+    units: Units,
 ) -> Result<()> {
+    let k = per_metre(units);
     let kinds = [
         ("concrete", "concrete"),
         ("fill", "fill and backfill"),
@@ -320,8 +387,8 @@ pub(crate) fn draw_outlines<DB: DrawingBackend>(
             .filter(|p| p.kind == kind)
             .map(|p| {
                 [
-                    (p.x0.max(v.x0), p.z0.max(v.z0)),
-                    (p.x1.min(v.x1), p.z1.min(v.z1)),
+                    (p.x0.max(v.x0) * k, p.z0.max(v.z0) * k),
+                    (p.x1.min(v.x1) * k, p.z1.min(v.z1) * k),
                 ]
             })
             .filter(|r| r[0].0 < r[1].0 && r[0].1 < r[1].1)
@@ -344,18 +411,26 @@ pub(crate) fn draw_outlines<DB: DrawingBackend>(
     Ok(())
 }
 
-/// The colour bar over [tmin, tmax] °C with the frost-line temperature marked.
+/// The colour bar over [tmin, tmax] °C with the frost-line temperature marked; in US units
+/// labelled in °F (round °F values at their °C positions).
 pub(crate) fn draw_colour_bar<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     (tmin, tmax): (f64, f64),
     frost_line_c: f64,
+    units: Units,
 ) -> Result<()> {
     let mut bar = ChartBuilder::on(area)
         .margin_top(60)
         .margin_bottom(60)
         .margin_right(10)
         .y_label_area_size(50)
-        .caption("°C", ("sans-serif", 15))
+        .caption(
+            match units {
+                Units::Si => "°C",
+                Units::Us => "°F",
+            },
+            ("sans-serif", 15),
+        )
         .build_cartesian_2d(0.0..1.0, tmin..tmax)
         .map_err(out_err)?;
     bar.configure_mesh()
@@ -369,7 +444,14 @@ pub(crate) fn draw_colour_bar<DB: DrawingBackend>(
     use plotters::style::text_anchor::{HPos, Pos, VPos};
     let style =
         TextStyle::from(("sans-serif", 12).into_font()).pos(Pos::new(HPos::Right, VPos::Center));
-    for (v, text) in bar_ticks(tmin, tmax) {
+    let ticks = match units {
+        Units::Si => bar_ticks(tmin, tmax),
+        Units::Us => bar_ticks(fahrenheit(tmin), fahrenheit(tmax))
+            .into_iter()
+            .map(|(f, text)| ((f - 32.0) * 5.0 / 9.0, text))
+            .collect(),
+    };
+    for (v, text) in ticks {
         let (px, py) = bar.backend_coord(&(0.0, v));
         let (x, y) = (px - base.0, py - base.1);
         area.draw(&PathElement::new(vec![(x - 5, y), (x, y)], BLACK))
@@ -408,6 +490,8 @@ pub(crate) struct FieldView<'a> {
     pub(crate) x_desc: &'a str,
     /// Depths of the soil-layer boundaries, m (drawn outside the building).
     pub(crate) strata_z: Vec<f64>,
+    /// The units of the axes and labels (the data stay in m and °C).
+    pub(crate) units: Units,
 }
 
 impl<'a> FieldView<'a> {
@@ -422,6 +506,7 @@ impl<'a> FieldView<'a> {
             frost_line_c: d.frost_line_c,
             x_desc: "x (m), 0 at the wall's exterior face",
             strata_z: strata_boundaries(d),
+            units: d.field_units,
         }
     }
 }
@@ -451,12 +536,14 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
     root.fill(&WHITE).map_err(out_err)?;
     let (w, _) = root.dim_in_pixel();
     let (left, right) = root.split_horizontally(w.saturating_sub(110));
-    let mut chart = section_chart(&left, title, v, f.x_desc)?;
+    let units = f.units;
+    let k = per_metre(units);
+    let mut chart = section_chart(&left, title, v, f.x_desc, units)?;
     let field = &f.t[..];
     // The field shaded smoothly, one pixel at a time (see `shade`).
     let size = chart.plotting_area().dim_in_pixel();
     let image = BitMapElement::<_, plotters::backend::RGBPixel>::with_owned_buffer(
-        (v.x0, v.z0),
+        (v.x0 * k, v.z0 * k),
         size,
         shade::raster(f, v, size),
     )
@@ -469,10 +556,16 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
         .filter(|t| t.is_finite())
         .fold((f64::MAX, f64::MIN), |(a, b), &t| (a.min(t), b.max(t)));
     let inside = |&(x, z): &(f64, f64)| x >= v.x0 && x <= v.x1 && z >= v.z0 && z <= v.z1;
-    draw_isotherms(&mut chart, (&xs, &zs, &padded_t), v, (lo, hi, interval))?;
-    draw_outlines(&mut chart, f.parts, v)?;
+    draw_isotherms(
+        &mut chart,
+        (&xs, &zs, &padded_t),
+        v,
+        (lo, hi, interval),
+        units,
+    )?;
+    draw_outlines(&mut chart, f.parts, v, units)?;
     let brown = RGBColor(110, 70, 30);
-    for (k, &z) in f
+    for (n, &z) in f
         .strata_z
         .iter()
         .filter(|&&z| z > v.z0 && z < v.z1)
@@ -480,13 +573,13 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
     {
         let s = chart
             .draw_series(DashedLineSeries::new(
-                vec![(0.0f64.max(v.x0), z), (v.x1, z)],
+                vec![(0.0f64.max(v.x0) * k, z * k), (v.x1 * k, z * k)],
                 6,
                 4,
                 brown.stroke_width(1),
             ))
             .map_err(out_err)?;
-        if k == 0 {
+        if n == 0 {
             s.label("soil-layer boundary").legend(move |(x, y)| {
                 PathElement::new(vec![(x, y), (x + 18, y)], brown.stroke_width(1))
             });
@@ -495,7 +588,7 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
     // Ground line outside, and the frost line.
     chart
         .draw_series(std::iter::once(PathElement::new(
-            vec![(0.0f64.max(v.x0), 0.0), (v.x1, 0.0)],
+            vec![(0.0f64.max(v.x0) * k, 0.0), (v.x1 * k, 0.0)],
             RGBColor(90, 60, 30).stroke_width(2),
         )))
         .map_err(out_err)?;
@@ -505,16 +598,19 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
         if pts.len() >= 2 {
             let s = chart
                 .draw_series(std::iter::once(PathElement::new(
-                    pts,
+                    pts.iter().map(|&(x, z)| (x * k, z * k)).collect::<Vec<_>>(),
                     BLACK.stroke_width(4),
                 )))
                 .map_err(out_err)?;
             if !labelled {
                 labelled = true;
-                s.label(format!("frost line ({:.2} °C)", f.frost_line_c))
-                    .legend(|(x, y)| {
-                        PathElement::new(vec![(x, y), (x + 18, y)], BLACK.stroke_width(4))
-                    });
+                s.label(format!(
+                    "frost line ({})",
+                    temperature_text(units, f.frost_line_c, 2)
+                ))
+                .legend(|(x, y)| {
+                    PathElement::new(vec![(x, y), (x + 18, y)], BLACK.stroke_width(4))
+                });
             }
         }
     }
@@ -534,7 +630,7 @@ pub(crate) fn draw_field<DB: DrawingBackend>(
         .draw()
         .map_err(out_err)?;
     let (tmin, tmax) = range.unwrap_or(((lo.floor()).min(-1.0), hi.ceil().max(1.0)));
-    draw_colour_bar(&right, (tmin, tmax), f.frost_line_c)?;
+    draw_colour_bar(&right, (tmin, tmax), f.frost_line_c, units)?;
     root.present().map_err(out_err)?;
     Ok(frost)
 }

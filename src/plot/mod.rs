@@ -225,8 +225,10 @@ fn draw_animation(path: &Path, d: &PlotData, view: View) -> Result<(u32, u32)> {
     let range = Some((lo.floor().min(-1.0), hi.ceil().max(1.0)));
     for k in (0..d.days.len()).step_by(7) {
         let t = format!(
-            "{} — day {}; bold: frost line ({:.2} °C)",
-            d.case_name, d.days[k].day_of_year, d.frost_line_c
+            "{} — day {}; bold: frost line ({})",
+            d.case_name,
+            d.days[k].day_of_year,
+            field::temperature_text(d.field_units, d.frost_line_c, 2)
         );
         draw_field(&root, &FieldView::of_day(d, k), view, 1.0, &t, range)?;
     }
@@ -264,6 +266,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     register_fonts();
     let mut d = PlotData::load(dir)?;
     let units = crate::files::read_summary(dir)?.units;
+    d.field_units = units;
     let out = opts.out.as_deref().unwrap_or(dir);
     crate::files::create_dir(out)?;
     let target = Target {
@@ -289,9 +292,9 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         z0: d.ze[0],
         z1: *d.ze.last().unwrap_or(&1.0),
     };
-    let fl = d.frost_line_c;
+    let fl = field::temperature_text(units, d.frost_line_c, 2);
     let title = format!(
-        "{} — soil temperature, day {doy}; bold: frost line ({fl:.2} °C)",
+        "{} — soil temperature, day {doy}; bold: frost line ({fl})",
         d.case_name
     );
     // The day's field (and its frost scalar) once for both views and both image formats.
@@ -324,7 +327,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         ));
     }
     let ztitle = format!(
-        "{} — around the footing, day {doy}; bold: frost line ({fl:.2} °C)",
+        "{} — around the footing, day {doy}; bold: frost line ({fl})",
         d.case_name
     );
     sizes.push(("soil_temperature_zoom", field_size(zoom)));
@@ -343,7 +346,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
     )?);
     let sketch_size = sketch::render(&target, &d, &mut files)?;
     sizes.push(("foundation_sketch", sketch_size));
-    // The charts in the run's units (the field plots and the sketch above stay in SI).
+    // The charts in the run's units (the field plots and the sketch above convert as they draw).
     d.charts_in(units);
     charts::frost_depth(&target, &d, &mut files)?;
     charts::heat_loss(&target, &d, &mut files)?;
@@ -351,7 +354,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         charts::probes(&target, &d, &mut files)?;
     }
     if let Some(f) = crate::files::read_three_d(dir)? {
-        sizes.extend(three::render(&target, &f, &mut files)?);
+        sizes.extend(three::render(&target, &f, units, &mut files)?);
     }
     if let Some(z) = crate::files::read_sizing(dir)? {
         if tradeoff::render(&target, &z, &mut files)? {

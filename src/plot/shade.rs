@@ -122,6 +122,7 @@ mod tests {
             frost_line_c: -0.25,
             x_desc: "",
             strata_z: Vec::new(),
+            units: crate::files::us::Units::Si,
         };
         let v = View {
             x0: 0.0,

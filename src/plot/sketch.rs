@@ -1,10 +1,11 @@
 //! `foundation_sketch.png/svg`: the foundation as the model built it, drawn from the saved
 //! section (`section.json`): every construction part filled by kind and numbered, the ground
 //! line, the soil-layer boundaries, the footing base's depth dimensioned, and a key listing each
-//! part's thickness, width and position in metres.
-use super::field::{field_size, outline_colour, strata_boundaries, View};
+//! part's thickness, width and position in metres (in US units: inches and feet).
+use super::field::{field_size, length_label, outline_colour, per_metre, strata_boundaries, View};
 use super::{data::PlotData, out_err, Target};
 use crate::error::Result;
+use crate::files::us::Units;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::PathBuf;
@@ -52,25 +53,26 @@ fn shown(d: &PlotData) -> Vec<&crate::files::section::PartOutline> {
         .collect()
 }
 
-/// The key line of one part: size and position.
-fn describe(p: &crate::files::section::PartOutline) -> String {
+/// The key line of one part: size and position (sizes in mm below 1 m, else m; in US units in
+/// inches below 3 ft, else ft; positions in m or ft).
+fn describe(p: &crate::files::section::PartOutline, units: Units) -> String {
     let (w, h) = (p.x1 - p.x0, p.z1 - p.z0);
-    let thick = |v: f64| {
-        if v < 0.995 {
-            format!("{:.0} mm", v * 1000.0)
-        } else {
-            format!("{v:.2} m")
-        }
+    let thick = |v: f64| match units {
+        Units::Si if v < 0.995 => format!("{:.0} mm", v * 1000.0),
+        Units::Si => format!("{v:.2} m"),
+        Units::Us if v < 0.9144 - 0.0005 => format!("{:.1} in", v / 0.0254),
+        Units::Us => format!("{:.2} ft", v / 0.3048),
     };
+    let k = per_metre(units);
     format!(
         "{}: {} × {}; x {:.2} to {:.2}, z {:.2} to {:.2}",
         p.label,
         thick(w),
         thick(h),
-        p.x0,
-        p.x1,
-        p.z0,
-        p.z1
+        p.x0 * k,
+        p.x1 * k,
+        p.z0 * k,
+        p.z1 * k
     )
 }
 
@@ -79,11 +81,16 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     let parts = shown(d);
     let (w, _) = root.dim_in_pixel();
     let (left, right) = root.split_horizontally(w - KEY_W);
+    let units = d.field_units;
+    // Chart coordinates: metres × k (see `field::per_metre`).
+    let k = per_metre(units);
+    let at = |x: f64, z: f64| (x * k, z * k);
     let mut chart = super::field::section_chart(
         &left,
         &format!("{} — the foundation as modelled", d.case_name),
         v,
         "x (m), 0 at the wall's exterior face",
+        units,
     )?;
     // Ground: every solid cell of the grid (air, such as a basement's room, stays white).
     let nx = d.xe.len() - 1;
@@ -101,8 +108,8 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
         .map(|(i, j)| {
             Rectangle::new(
                 [
-                    (d.xe[i].max(v.x0), d.ze[j].max(v.z0)),
-                    (d.xe[i + 1].min(v.x1), d.ze[j + 1].min(v.z1)),
+                    at(d.xe[i].max(v.x0), d.ze[j].max(v.z0)),
+                    at(d.xe[i + 1].min(v.x1), d.ze[j + 1].min(v.z1)),
                 ],
                 ground.filled(),
             )
@@ -116,11 +123,11 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     // Fill first, so the thinner parts drawn later stay visible.
     let mut order: Vec<usize> = (0..d.parts.len()).collect();
     order.sort_by_key(|&k| (d.parts[k].kind != "fill", d.parts[k].kind == "insulation"));
-    for &k in &order {
-        let p = &d.parts[k];
+    for &n in &order {
+        let p = &d.parts[n];
         let r = [
-            (p.x0.max(v.x0), p.z0.max(v.z0)),
-            (p.x1.min(v.x1), p.z1.min(v.z1)),
+            at(p.x0.max(v.x0), p.z0.max(v.z0)),
+            at(p.x1.min(v.x1), p.z1.min(v.z1)),
         ];
         chart
             .draw_series([
@@ -130,8 +137,8 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
             .map_err(out_err)?;
     }
     // Part numbers at the parts' centres (within the view).
-    for (k, p) in parts.iter().enumerate() {
-        let c = (
+    for (n, p) in parts.iter().enumerate() {
+        let c = at(
             0.5 * (p.x0.max(v.x0) + p.x1.min(v.x1)),
             0.5 * (p.z0.max(v.z0) + p.z1.min(v.z1)),
         );
@@ -141,7 +148,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
                     + Circle::new((0, 0), 9, WHITE.filled())
                     + Circle::new((0, 0), 9, BLACK.stroke_width(1))
                     + Text::new(
-                        format!("{}", k + 1),
+                        format!("{}", n + 1),
                         (-4, -6),
                         ("sans-serif", 12).into_font(),
                     ),
@@ -151,7 +158,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     // Ground line outside, soil-layer boundaries.
     chart
         .draw_series(std::iter::once(PathElement::new(
-            vec![(0.0f64.max(v.x0), 0.0), (v.x1, 0.0)],
+            vec![at(0.0f64.max(v.x0), 0.0), at(v.x1, 0.0)],
             RGBColor(90, 60, 30).stroke_width(2),
         )))
         .map_err(out_err)?;
@@ -159,7 +166,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     for &z in strata.iter().filter(|&&z| z > v.z0 && z < v.z1) {
         chart
             .draw_series(DashedLineSeries::new(
-                vec![(0.0f64.max(v.x0), z), (v.x1, z)],
+                vec![at(0.0f64.max(v.x0), z), at(v.x1, z)],
                 6,
                 4,
                 RGBColor(110, 70, 30).stroke_width(1),
@@ -177,18 +184,25 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     let base = d.footing_base_depth_m;
     chart
         .draw_series([
-            PathElement::new(vec![(xd, 0.0), (xd, base)], BLACK.stroke_width(1)),
+            PathElement::new(vec![at(xd, 0.0), at(xd, base)], BLACK.stroke_width(1)),
             PathElement::new(
-                vec![(d.footing_x.1, base), (xd + 0.02 * (v.x1 - v.x0), base)],
+                vec![at(d.footing_x.1, base), at(xd + 0.02 * (v.x1 - v.x0), base)],
                 BLACK.stroke_width(1),
             ),
         ])
         .map_err(out_err)?;
     chart
         .draw_series(std::iter::once(
-            EmptyElement::at((xd, 0.5 * base))
+            EmptyElement::at(at(xd, 0.5 * base))
                 + Text::new(
-                    format!("footing base {base:.2} m"),
+                    match units {
+                        Units::Si => format!("footing base {base:.2} m"),
+                        Units::Us => format!(
+                            "footing base {:.2} ft ({:.1} in)",
+                            base / 0.3048,
+                            base / 0.0254
+                        ),
+                    },
                     (6, -6),
                     ("sans-serif", 13).into_font(),
                 ),
@@ -206,17 +220,29 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData, v: View
     };
     line("Parts: width × height; x from the wall's".into(), y, true).map_err(out_err)?;
     y += 17;
-    line("exterior face, z depth below ground (m)".into(), y, true).map_err(out_err)?;
+    line(
+        format!(
+            "exterior face, z depth below ground ({})",
+            length_label(units)
+        ),
+        y,
+        true,
+    )
+    .map_err(out_err)?;
     y += 24;
-    for (k, p) in parts.iter().enumerate() {
-        line(format!("{}  {}", k + 1, describe(p)), y, false).map_err(out_err)?;
+    for (n, p) in parts.iter().enumerate() {
+        line(format!("{}  {}", n + 1, describe(p, units)), y, false).map_err(out_err)?;
         y += 18;
     }
     if !strata.is_empty() {
         y += 10;
-        let depths: Vec<String> = strata.iter().map(|z| format!("{z:.2}")).collect();
+        let depths: Vec<String> = strata.iter().map(|z| format!("{:.2}", z * k)).collect();
         line(
-            format!("soil-layer boundaries (dashed) at {} m", depths.join(", ")),
+            format!(
+                "soil-layer boundaries (dashed) at {} {}",
+                depths.join(", "),
+                length_label(units)
+            ),
             y,
             false,
         )

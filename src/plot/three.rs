@@ -6,6 +6,7 @@ use super::{draw_field, field_size, out_err, runs_inside, FieldView, Target, Vie
 use crate::analysis::isolines::isolines;
 use crate::error::Result;
 use crate::files::three::{PlanBand, Slice, ThreeDFile};
+use crate::files::us::Units;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::PathBuf;
@@ -121,9 +122,15 @@ fn plan_view(f: &ThreeDFile) -> View {
     }
 }
 
-fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) -> Result<()> {
+/// The plan in the lengths of `f` (metres, or feet after [`in_feet`]), labelled in `u`; `v`
+/// is the view in those lengths.
+fn draw_plan<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    f: &ThreeDFile,
+    v: View,
+    u: &str,
+) -> Result<()> {
     root.fill(&WHITE).map_err(out_err)?;
-    let v = plan_view(f);
     let (xe, ye, field) = whole_plan(f);
     let max = field.iter().copied().fold(f.footing_base_depth_m, f64::max);
     let (w, _) = root.dim_in_pixel();
@@ -131,7 +138,7 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
     let mut chart = ChartBuilder::on(&left)
         .caption(
             format!(
-                "{} — deepest frost over the year, depth below ground (m)",
+                "{} — deepest frost over the year, depth below ground ({u})",
                 f.case_name
             ),
             ("sans-serif", 18),
@@ -144,8 +151,8 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
     chart
         .configure_mesh()
         .disable_mesh()
-        .x_desc("X (m) along the length, 0 at the plan's centre")
-        .y_desc("Y (m) along the width")
+        .x_desc(format!("X ({u}) along the length, 0 at the plan's centre"))
+        .y_desc(format!("Y ({u}) along the width"))
         .label_style(("sans-serif", 13))
         .draw()
         .map_err(out_err)?;
@@ -162,7 +169,8 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
             })
         });
     chart.draw_series(cells).map_err(out_err)?;
-    // Contours of frost depth, labelled in metres; the footing base depth bold and dashed.
+    // Contours of frost depth, labelled in the length unit; the footing base depth bold and
+    // dashed.
     let (xs, ys) = (super::field::centres(&xe), super::field::centres(&ye));
     let inside = |&(x, y): &(f64, f64)| x >= v.x0 && x <= v.x1 && y >= v.z0 && y <= v.z1;
     let step = contour_step(max);
@@ -186,7 +194,7 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
                 .all(|q| ((p.0 - q.0) / (v.x1 - v.x0)).hypot((p.1 - q.1) / (v.z1 - v.z0)) > 0.08);
             if pts.len() >= 6 && far {
                 placed.push(p);
-                let text = format!("{level:.2} m");
+                let text = format!("{level:.2} {u}");
                 let w = 7 * text.chars().count() as i32;
                 chart
                     .draw_series(std::iter::once(
@@ -211,7 +219,7 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
             .map_err(out_err)?;
         if !labelled {
             labelled = true;
-            s.label(format!("frost as deep as the footing base ({base:.2} m)"))
+            s.label(format!("frost as deep as the footing base ({base:.2} {u})"))
                 .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED.stroke_width(3)));
         }
     }
@@ -251,7 +259,9 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
     }
     // The legend inside the building, where the plan is empty.
     let (px, py) = chart.plotting_area().get_pixel_range();
-    let (lx, ly) = chart.backend_coord(&(-f.a_m + 0.6, f.b_m - 0.6));
+    // 0.6 m inside the far corner, in the plan's lengths.
+    let inset = if u == "ft" { 0.6 / 0.3048 } else { 0.6 };
+    let (lx, ly) = chart.backend_coord(&(-f.a_m + inset, f.b_m - inset));
     chart
         .configure_series_labels()
         .background_style(WHITE.mix(0.9))
@@ -263,18 +273,23 @@ fn draw_plan<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) 
         ))
         .draw()
         .map_err(out_err)?;
-    depth_bar(&right, max, base)?;
+    depth_bar(&right, max, base, u)?;
     root.present().map_err(out_err)
 }
 
-/// The frost-depth colour bar (m), the footing base marked.
-fn depth_bar<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, max: f64, base: f64) -> Result<()> {
+/// The frost-depth colour bar (in `u`), the footing base marked.
+fn depth_bar<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    max: f64,
+    base: f64,
+    u: &str,
+) -> Result<()> {
     let mut bar = ChartBuilder::on(area)
         .margin_top(60)
         .margin_bottom(60)
         .margin_right(10)
         .y_label_area_size(50)
-        .caption("m", ("sans-serif", 15))
+        .caption(u, ("sans-serif", 15))
         .build_cartesian_2d(0.0..1.0, max..0.0)
         .map_err(out_err)?;
     bar.configure_mesh()
@@ -301,8 +316,8 @@ fn depth_bar<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, max: f64, base: 
     Ok(())
 }
 
-/// A slice as a field to draw.
-fn slice_view(s: &Slice, frost_line_c: f64) -> FieldView<'_> {
+/// A slice as a field to draw (its data in m; axes in `units`).
+fn slice_view(s: &Slice, frost_line_c: f64, units: Units) -> FieldView<'_> {
     let nan = |v: &Vec<Option<f64>>| v.iter().map(|x| x.unwrap_or(f64::NAN)).collect();
     FieldView {
         xe: &s.xe,
@@ -313,6 +328,7 @@ fn slice_view(s: &Slice, frost_line_c: f64) -> FieldView<'_> {
         frost_line_c,
         x_desc: &s.axis,
         strata_z: Vec::new(),
+        units,
     }
 }
 
@@ -361,16 +377,51 @@ fn section_view(f: &ThreeDFile) -> View {
     }
 }
 
-/// Render the 3D plots into `dir`; returns (file stem, size) of each for the plot index.
+/// The plan's and the perimeter's lengths of `f` in feet (the sections' slices stay in metres:
+/// their plots scale as they draw). 1 ft = 0.3048 m exactly.
+fn in_feet(f: &ThreeDFile) -> ThreeDFile {
+    let ft = |m: f64| m / 0.3048;
+    let mut g = f.clone();
+    g.a_m = ft(f.a_m);
+    g.b_m = ft(f.b_m);
+    g.xe = f.xe.iter().map(|&v| ft(v)).collect();
+    g.ye = f.ye.iter().map(|&v| ft(v)).collect();
+    g.plan_frost_m = f.plan_frost_m.iter().map(|&v| ft(v)).collect();
+    for b in &mut g.plan_bands {
+        b.s0_m = ft(b.s0_m);
+        b.s1_m = ft(b.s1_m);
+        b.length_m = b.length_m.map(ft);
+    }
+    g.footing_base_depth_m = ft(f.footing_base_depth_m);
+    g.perimeter = f.perimeter.iter().map(|p| p.map(ft)).collect();
+    g.corner_at_m = ft(f.corner_at_m);
+    g.section_2d = f.section_2d.map(ft);
+    g
+}
+
+/// Render the 3D plots into `dir`, axes in `units`; returns (file stem, size) of each for the
+/// plot index.
 pub fn render(
     dir: &Target,
     f: &ThreeDFile,
+    units: Units,
     files: &mut Vec<PathBuf>,
 ) -> Result<Vec<(&'static str, (u32, u32))>> {
     let mut sizes = Vec::new();
     let pv = plan_view(f);
     let psize = field_size(pv);
-    render_both!(dir, "plan_frost", psize, files, draw_plan(f));
+    let (g, u) = match units {
+        Units::Si => (f.clone(), "m"),
+        Units::Us => (in_feet(f), "ft"),
+    };
+    let k = super::field::per_metre(units);
+    let pv_shown = View {
+        x0: pv.x0 * k,
+        x1: pv.x1 * k,
+        z0: pv.z0 * k,
+        z1: pv.z1 * k,
+    };
+    render_both!(dir, "plan_frost", psize, files, draw_plan(&g, pv_shown, u));
     sizes.push(("plan_frost", psize));
     let v = section_view(f);
     // Both sections on one colour scale.
@@ -387,8 +438,10 @@ pub fn render(
         .zip(["section_mid_wall", "section_corner_diagonal"])
     {
         let title = format!(
-            "{} — {}; bold: frost line ({fl:.2} °C)",
-            f.case_name, s.title
+            "{} — {}; bold: frost line ({})",
+            f.case_name,
+            s.title,
+            super::field::temperature_text(units, fl, 2)
         );
         let size = field_size(v);
         render_both!(
@@ -396,16 +449,21 @@ pub fn render(
             stem,
             size,
             files,
-            draw_field(&slice_view(s, fl), v, 1.0, &title, range)
+            draw_field(&slice_view(s, fl, units), v, 1.0, &title, range)
         );
         sizes.push((stem, size));
     }
-    render_both!(dir, "perimeter_frost", SIZE, files, draw_perimeter(f));
+    render_both!(dir, "perimeter_frost", SIZE, files, draw_perimeter(&g, u));
     sizes.push(("perimeter_frost", SIZE));
     Ok(sizes)
 }
 
-fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDFile) -> Result<()> {
+/// The perimeter chart in the lengths of `f` (metres, or feet after [`in_feet`]), labelled in `u`.
+fn draw_perimeter<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    f: &ThreeDFile,
+    u: &str,
+) -> Result<()> {
     root.fill(&WHITE).map_err(out_err)?;
     let (top, bottom) = root.split_vertically(SIZE.1 / 2 + 20);
     let dmax = f.perimeter.iter().map(|p| p[0]).fold(1.0, f64::max);
@@ -433,7 +491,7 @@ fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDF
     c.configure_mesh()
         .y_labels(6)
         .x_labels(12)
-        .y_desc("frost depth at footing face (m)")
+        .y_desc(format!("frost depth at footing face ({u})"))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
         .draw()
@@ -460,9 +518,9 @@ fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDF
         grey.stroke_width(2),
     ))
     .map_err(out_err)?
-    .label(format!("2D section ({:.2} m)", f.section_2d[0]))
+    .label(format!("2D section ({:.2} {u})", f.section_2d[0]))
     .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], grey.stroke_width(2)));
-    super::charts::footing_base_line(&mut c, 0.0, dmax, (base, "m"))?;
+    super::charts::footing_base_line(&mut c, 0.0, dmax, (base, u))?;
     corner_line(&mut c, corner, (0.0, zmax))?;
     c.configure_series_labels()
         .background_style(WHITE.mix(0.9))
@@ -492,8 +550,10 @@ fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDF
     m.configure_mesh()
         .y_labels(6)
         .x_labels(12)
-        .x_desc("distance along the exterior wall face from the middle of the long wall (m)")
-        .y_desc("frost margin (m)")
+        .x_desc(format!(
+            "distance along the exterior wall face from the middle of the long wall ({u})"
+        ))
+        .y_desc(format!("frost margin ({u})"))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
         .draw()
@@ -519,7 +579,7 @@ fn draw_perimeter<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &ThreeDF
         grey.stroke_width(2),
     ))
     .map_err(out_err)?
-    .label(format!("2D section ({:.2} m)", f.section_2d[1]))
+    .label(format!("2D section ({:.2} {u})", f.section_2d[1]))
     .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], grey.stroke_width(2)));
     m.draw_series(std::iter::once(PathElement::new(
         vec![(0.0, 0.0), (dmax, 0.0)],

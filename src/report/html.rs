@@ -270,7 +270,7 @@ fn frost_rows(s: &Summary) -> Vec<Row> {
         ),
         ("frost depth at the footing's outer face", "m", raw(s.frost_depth_at_footing_face_m, 2), "–".into(), ""),
         (if board { "frost depth below the footing's board" } else { "frost depth below the footing base" }, "m", raw(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
-        ("frost depth beside the wall (within 0.5 m)", "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "frozen backfill above a footing counts here, not under the footing"),
+        ("frost depth beside the wall", "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "within 0.5 m (1.64 ft) outside the wall; frozen backfill above a footing counts here, not under the footing"),
         ("footing base depth", "m", raw(s.footing_base_depth_m, 2), "–".into(), if board { "the footing bears on an insulation board" } else { "" }),
         ("bearing soil depth", "m", raw(s.bearing_depth_m, 2), "–".into(), if board { "the board's underside: the protected zone starts here" } else { "the footing base" }),
         ("frost line's closest approach to the outer base corner", "m", raw(s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN), 2), "–".into(), ""),
@@ -384,20 +384,43 @@ fn properties(m: &[files::summary::MaterialInfo]) -> String {
     if m.is_empty() {
         return String::new();
     }
-    let mut h = String::from(
+    // In US units: k in Btu·in/(h·ft²·°F) (1 = 0.144 227 9 W/(m·K)), C in Btu/(ft³·°F)
+    // (1 = 67 066.11 J/(m³·K)), L in Btu/ft³ (1 = 37 258.95 J/m³), NIST SP 811 B.9; the
+    // interval in °F.
+    let us = super::current() == crate::files::us::Units::Us;
+    let (k_u, c_u, l_u, t_u) = if us {
+        (
+            ("Btu·in/(h·ft²·°F)", 0.144_227_9, 3),
+            ("Btu/(ft³·°F)", 67_066.11, 2),
+            ("Btu/ft³", 37_258.95, 0),
+            "°F",
+        )
+    } else {
+        (
+            ("W/(m·K)", 1.0, 3),
+            ("MJ/(m³·K)", 1e6, 3),
+            ("MJ/m³", 1e6, 1),
+            "°C",
+        )
+    };
+    let temp = |c: f64| if us { c * 1.8 + 32.0 } else { c };
+    let mut h = format!(
         "<h2 id=\"properties\">Properties used</h2>\n<p>As derived from the case (library soils, \
          index properties, explicit values, defaults); C is the volumetric heat capacity, L the \
          latent heat of the pore water per volume of ground.</p>\n<table>\n<tr><th>where</th>\
-         <th>material</th><th>k unfrozen<br>W/(m·K)</th><th>k frozen<br>W/(m·K)</th>\
-         <th>C unfrozen<br>MJ/(m³·K)</th><th>C frozen<br>MJ/(m³·K)</th><th>L<br>MJ/m³</th>\
-         <th>freezing interval<br>°C</th></tr>\n",
+         <th>material</th><th>k unfrozen<br>{k}</th><th>k frozen<br>{k}</th>\
+         <th>C unfrozen<br>{c}</th><th>C frozen<br>{c}</th><th>L<br>{l}</th>\
+         <th>freezing interval<br>{t_u}</th></tr>\n",
+        k = k_u.0,
+        c = c_u.0,
+        l = l_u.0
     );
     for x in m {
         let interval = match x.freezing_interval_c {
             Some([a, b]) if x.tabulated_freezing_curve => {
-                format!("{a:.2} to {b:.2} (tabulated curve)")
+                format!("{:.2} to {:.2} (tabulated curve)", temp(a), temp(b))
             }
-            Some([a, b]) => format!("{a:.2} to {b:.2}"),
+            Some([a, b]) => format!("{:.2} to {:.2}", temp(a), temp(b)),
             None => "does not freeze".into(),
         };
         h.push_str(&format!(
@@ -405,11 +428,11 @@ fn properties(m: &[files::summary::MaterialInfo]) -> String {
              <td class=\"n\">{}</td><td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td></tr>\n",
             escape(&x.role),
             escape(&x.name),
-            f(x.k_unfrozen_w_per_mk, 3),
-            f(x.k_frozen_w_per_mk, 3),
-            f(x.c_unfrozen_j_per_m3k / 1e6, 3),
-            f(x.c_frozen_j_per_m3k / 1e6, 3),
-            f(x.latent_heat_j_per_m3 / 1e6, 1),
+            f(x.k_unfrozen_w_per_mk / k_u.1, k_u.2),
+            f(x.k_frozen_w_per_mk / k_u.1, k_u.2),
+            f(x.c_unfrozen_j_per_m3k / c_u.1, c_u.2),
+            f(x.c_frozen_j_per_m3k / c_u.1, c_u.2),
+            f(x.latent_heat_j_per_m3 / l_u.1, l_u.2),
             escape(&interval)
         ));
     }

@@ -44,6 +44,13 @@ pub(crate) fn shown(label: &str, v: f64, prec: usize) -> (&str, f64, usize) {
     figure(current(), label, v, prec)
 }
 
+/// A length (m) with its unit in the units being rendered, two decimals in m or ft: "0.50 m",
+/// "1.64 ft".
+pub(crate) fn shown_length(m: f64) -> String {
+    let (unit, v, _) = shown("m", m, 2);
+    format!("{v:.2} {unit}")
+}
+
 /// An SI figure formatted in the units being rendered, without its unit ("–" if not finite).
 pub(crate) fn shown_number(label: &str, v: f64, prec: usize) -> String {
     let (_, x, d) = shown(label, v, prec);

@@ -3,38 +3,68 @@
 use super::html::escape;
 use crate::files::SizingFile;
 
+/// A length (m) in the units being rendered, `d` decimals in m (more in ft), without its unit.
+fn len(v: f64, d: usize) -> String {
+    let (_, x, p) = super::shown("m", v, d);
+    format!("{x:.p$}")
+}
+
+/// The length unit being rendered ("m" or "ft").
+fn lu() -> &'static str {
+    super::shown("m", 0.0, 0).0
+}
+
+/// An annual energy (kWh) in the units being rendered, rounded, and its unit.
+fn energy(kwh: f64) -> (f64, &'static str) {
+    let (u, x, _) = super::shown("kWh", kwh, 0);
+    (x, u)
+}
+
 fn values(v: &[f64], sep: &str, unit: &str) -> String {
     v.iter()
-        .map(|x| format!("{x:.3}{unit}"))
+        .map(|x| format!("{}{unit}", len(*x, 3)))
         .collect::<Vec<_>>()
         .join(sep)
 }
 
 /// A margin or "none" (no frost near the zone).
 fn opt(v: Option<f64>) -> String {
-    v.map_or("none".into(), |v| format!("{v:.3}"))
+    v.map_or("none".into(), |v| len(v, 3))
+}
+
+/// The margin's meaning, its required value in the units being rendered.
+fn meaning(f: &SizingFile) -> String {
+    let si = format!("at least {:.2} m,", f.margin_m);
+    let shown = format!("at least {} {},", len(f.margin_m, 2), lu());
+    f.margin_meaning.replace(&si, &shown)
 }
 
 /// The printed summary.
 pub fn text(f: &SizingFile) -> String {
     let mut s = format!(
         "{} — frost-protection sizing\n  {}\n",
-        f.case_name, f.margin_meaning
+        f.case_name,
+        meaning(f)
     );
     let b = &f.baseline_without_varied_insulation;
     // An unheated building has no heating load: no heat-loss figures.
-    let heat = |kwh: f64, change: Option<f64>| match (f.unheated, change) {
-        (true, _) => String::new(),
-        (false, None) => format!(", heat loss {kwh:.0} kWh/yr"),
-        (false, Some(c)) => {
-            format!(", heat loss {kwh:.0} kWh/yr ({c:+.0} against no varied insulation)")
+    let heat = |kwh: f64, change: Option<f64>| {
+        let (e, u) = energy(kwh);
+        match (f.unheated, change) {
+            (true, _) => String::new(),
+            (false, None) => format!(", heat loss {e:.0} {u}/yr"),
+            (false, Some(c)) => format!(
+                ", heat loss {e:.0} {u}/yr ({:+.0} against no varied insulation)",
+                energy(c).0
+            ),
         }
     };
     s += &format!(
-        "  without the varied insulation: frost under the footing {:.2} m, margin {:.2} m{}\n",
-        b.frost_depth_under_footing_m,
-        b.frost_margin_m,
-        heat(b.annual_heat_loss_kwh, None)
+        "  without the varied insulation: frost under the footing {} {u}, margin {} {u}{}\n",
+        len(b.frost_depth_under_footing_m, 2),
+        len(b.frost_margin_m, 2),
+        heat(b.annual_heat_loss_kwh, None),
+        u = lu()
     );
     if let Some(why) = &f.no_insulation_needed {
         s += &format!("\n  No insulation needed: {why}.\n");
@@ -52,52 +82,62 @@ pub fn text(f: &SizingFile) -> String {
             let loss = if f.unheated {
                 String::new()
             } else {
-                format!(
-                    "  heat loss {:>7.0} kWh/yr ({:+.0})",
-                    d.annual_heat_loss_kwh, d.heat_loss_change_kwh
-                )
+                let ((e, u), c) = (
+                    energy(d.annual_heat_loss_kwh),
+                    energy(d.heat_loss_change_kwh).0,
+                );
+                format!("  heat loss {e:>7.0} {u}/yr ({c:+.0})")
             };
             s += &format!(
-                "    {:<28} margin {:>6.2} m{loss}  cost {:>7.1} per m\n",
+                "    {:<28} margin {:>6} {}{loss}  cost {:>7.1} per m\n",
                 values(&d.values, " × ", ""),
-                d.frost_margin_m,
+                len(d.frost_margin_m, 2),
+                lu(),
                 d.cost_per_m
             );
         }
         match &f.chosen {
             Some(d) => {
-                s += &format!("\n  Chosen (least cost): {} = {}\n", f.dimensions.join(", "), values(&d.values, ", ", " m"));
-                s += &format!("    frost margin {:.2} m{}\n", d.frost_margin_m, heat(d.annual_heat_loss_kwh, Some(d.heat_loss_change_kwh)));
+                s += &format!("\n  Chosen (least cost): {} = {}\n", f.dimensions.join(", "), values(&d.values, ", ", &format!(" {}", lu())));
+                s += &format!("    frost margin {} {}{}\n", len(d.frost_margin_m, 2), lu(), heat(d.annual_heat_loss_kwh, Some(d.heat_loss_change_kwh)));
             }
             None => s += "\n  No design within the bounds meets the margin: widen the bounds or deepen the footing.\n",
         }
     }
     let c = &f.cross_check;
+    let (fi_unit, fi, _) = super::shown("°C·d", c.design_air_freezing_index_c_days, 0);
+    s += &format!("\n  Cross-check (design air freezing index {fi:.0} {fi_unit}):\n");
     s += &format!(
-        "\n  Cross-check (design air freezing index {:.0} °C·d):\n",
-        c.design_air_freezing_index_c_days
-    );
-    s += &format!(
-        "    modified Berggren open-ground frost depth {:.2} m\n",
-        c.modified_berggren_open_ground_frost_depth_m
+        "    modified Berggren open-ground frost depth {} {}\n",
+        len(c.modified_berggren_open_ground_frost_depth_m, 2),
+        lu()
     );
     for flag in &f.flags {
         s += &format!("    NOTE: {flag}\n");
     }
     s += &format!("\n  {}\n", f.corners);
     if let Some(c) = &f.corner_check {
+        let u = lu();
         s += &format!(
-            "\n  Corner check in 3D ({}, {:.2} to {:.2} m by {:.2} m):\n",
-            c.dimension, c.range_m[0], c.range_m[1], c.range_m[2]
+            "\n  Corner check in 3D ({}, {} to {} {u} by {} {u}):\n",
+            c.dimension,
+            len(c.range_m[0], 2),
+            len(c.range_m[1], 2),
+            len(c.range_m[2], 2)
         );
         for d in &c.designs {
+            let loss = if f.unheated {
+                String::new()
+            } else {
+                let (e, eu) = energy(d.annual_heat_loss_kwh);
+                format!("  heat loss {e:.0} {eu}/yr")
+            };
             s += &format!(
-                "    {:>6.3} m  least margin {:>6} m  corner margin {:>6} m  corner frost at the face {:.2} m  heat loss {:.0} kWh/yr{}\n",
-                d.value_m,
+                "    {:>6} {u}  least margin {:>6} {u}  corner margin {:>6} {u}  corner frost at the face {} {u}{loss}{}\n",
+                len(d.value_m, 3),
                 opt(d.least_margin_m),
                 opt(d.corner_margin_m),
-                d.corner_face_frost_m,
-                d.annual_heat_loss_kwh,
+                len(d.corner_face_frost_m, 2),
                 if d.feasible { "  passes" } else { "" }
             );
         }
@@ -130,7 +170,7 @@ pub fn html(f: &SizingFile) -> String {
         }
     };
     let mut h = String::from("<h2 id=\"sizing\">Insulation sizing</h2>\n");
-    h += &format!("<p>{}</p>\n", escape(&f.margin_meaning));
+    h += &format!("<p>{}</p>\n", escape(&meaning(f)));
     if let Some(why) = &f.no_insulation_needed {
         h += &format!(
             "<p><strong>No insulation needed:</strong> {}.</p>\n",
@@ -138,17 +178,18 @@ pub fn html(f: &SizingFile) -> String {
         );
     }
     let dims: Vec<String> = f.dimensions.iter().map(|d| escape(d)).collect();
+    let (u, eu) = (lu(), energy(0.0).1);
     let heat_heads = if f.unheated {
-        ""
+        String::new()
     } else {
-        "<th>annual heat loss (kWh)</th><th>change (kWh)</th>"
+        format!("<th>annual heat loss ({eu})</th><th>change ({eu})</th>")
     };
     h += &format!(
-        "<table>\n<tr><th>{}</th><th>frost margin (m)</th>{heat_heads}<th>cost per m</th></tr>\n",
-        dims.join(" (m)</th><th>") + " (m)"
+        "<table>\n<tr><th>{}</th><th>frost margin ({u})</th>{heat_heads}<th>cost per m</th></tr>\n",
+        dims.join(&format!(" ({u})</th><th>")) + &format!(" ({u})")
     );
     for d in &f.tradeoff {
-        let vals: Vec<String> = d.values.iter().map(|v| num(*v, 3)).collect();
+        let vals: Vec<String> = d.values.iter().map(|v| len(*v, 3)).collect();
         let mark = if f.chosen.as_ref().is_some_and(|c| c.values == d.values) {
             " (chosen)"
         } else {
@@ -159,29 +200,29 @@ pub fn html(f: &SizingFile) -> String {
         } else {
             format!(
                 "<td class=n>{}</td><td class=n>{}</td>",
-                num(d.annual_heat_loss_kwh, 0),
-                num(d.heat_loss_change_kwh, 0)
+                num(energy(d.annual_heat_loss_kwh).0, 0),
+                num(energy(d.heat_loss_change_kwh).0, 0)
             )
         };
         h += &format!(
             "<tr><td class=n>{}{mark}</td><td class=n>{}</td>{heat_cells}<td class=n>{}</td></tr>\n",
             vals.join("</td><td class=n>"),
-            num(d.frost_margin_m, 2),
+            len(d.frost_margin_m, 2),
             num(d.cost_per_m, 1)
         );
     }
     h += "</table>\n";
     h += &format!("<p><strong>Corners:</strong> {}</p>\n", escape(&f.corners));
     if let Some(c) = &f.corner_check {
-        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} (m)</th><th>least margin (m)</th><th>corner margin (m)</th><th>corner frost at the face (m)</th><th>annual heat loss (kWh)</th><th>passes</th></tr>\n", escape(&c.dimension));
+        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} ({u})</th><th>least margin ({u})</th><th>corner margin ({u})</th><th>corner frost at the face ({u})</th><th>annual heat loss ({eu})</th><th>passes</th></tr>\n", escape(&c.dimension));
         for d in &c.designs {
             h += &format!(
-                "<tr><td class=n>{:.3}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{:.2}</td><td class=n>{:.0}</td><td>{}</td></tr>\n",
-                d.value_m,
+                "<tr><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{:.0}</td><td>{}</td></tr>\n",
+                len(d.value_m, 3),
                 opt(d.least_margin_m),
                 opt(d.corner_margin_m),
-                d.corner_face_frost_m,
-                d.annual_heat_loss_kwh,
+                len(d.corner_face_frost_m, 2),
+                energy(d.annual_heat_loss_kwh).0,
                 if d.feasible { "yes" } else { "no" }
             );
         }

@@ -81,9 +81,9 @@ fn three_rows(s: &Summary3) -> String {
     let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
     let nan = f64::NAN;
     let mut t = format!(
-        "  3D model: quarter of a {:.2} × {:.2} m plan (exterior faces), corners included{}\n",
-        s.plan_length_m,
-        s.plan_width_m,
+        "  3D model: quarter of a {} × {} plan (exterior faces), corners included{}\n",
+        super::shown_length(s.plan_length_m),
+        super::shown_length(s.plan_width_m),
         if s.corner_pieces > 0 {
             format!(", {} corner insulation piece(s)", s.corner_pieces)
         } else {
@@ -155,7 +155,7 @@ fn three_rows(s: &Summary3) -> String {
         ],
     );
     t += &row(
-        "beside the wall (within 0.5 m)",
+        &format!("beside the wall (within {})", super::shown_length(0.5)),
         "m",
         2,
         &[
@@ -174,11 +174,11 @@ fn three_rows(s: &Summary3) -> String {
     t += &row("open ground", "m", 2, &[h.frost_depth_open_ground_m]);
     if let Some(w) = &s.worst_point {
         t += &format!(
-            "    least margin {:.2} m at X = {:.2} m, Y = {:.2} m, z = {:.2} m, day {}{}\n",
-            w.margin_m,
-            w.x_m,
-            w.y_m,
-            w.z_m,
+            "    least margin {} at X = {}, Y = {}, z = {}, day {}{}\n",
+            super::shown_length(w.margin_m),
+            super::shown_length(w.x_m),
+            super::shown_length(w.y_m),
+            super::shown_length(w.z_m),
             w.day_of_year,
             if w.margin_m < 0.0 {
                 ": FROST IN THE PROTECTED ZONE"
@@ -304,7 +304,7 @@ fn frost_rows(s: &Summary) -> String {
         &[s.frost_depth_under_footing_m],
     );
     t += &row(
-        "beside the wall (within 0.5 m)",
+        &format!("beside the wall (within {})", super::shown_length(0.5)),
         "m",
         2,
         &[s.frost_depth_beside_wall_m],

@@ -1,7 +1,7 @@
 //! The 3D section of `report.html`: the whole building's heat loss beside the 2D equivalent
 //! strip, frost and margin at mid-wall and at the corner, the worst point, the 3D numerics and
 //! the 3D figures.
-use super::html::{escape, f, figures};
+use super::html::{escape, figures};
 use crate::files::three::Summary3;
 use std::path::Path;
 
@@ -16,60 +16,68 @@ pub const FIGURES_3D: &[(&str, &str)] = &[
 /// The 3D section's HTML.
 pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
     let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
-    let o = |v: Option<f64>, d: usize| f(v.unwrap_or(f64::NAN), d);
     let mut t = format!(
-        "<h2 id=\"three-d\">3D model</h2>\n<p>{}</p>\n<p>Quarter of a {:.2} m × {:.2} m plan (between the wall's exterior faces), corners included; {} corner insulation piece(s).</p>\n",
+        "<h2 id=\"three-d\">3D model</h2>\n<p>{}</p>\n<p>Quarter of a {} × {} plan (between the wall's exterior faces), corners included; {} corner insulation piece(s).</p>\n",
         escape(&s.note),
-        s.plan_length_m,
-        s.plan_width_m,
+        super::shown_length(s.plan_length_m),
+        super::shown_length(s.plan_width_m),
         s.corner_pieces
     );
     t += "<table>\n<tr><th>heat loss to the ground (floor + junction)</th><th>unit</th><th>3D model</th><th>2D equivalent strip</th></tr>\n";
-    let rows: [(&str, &str, String, String); 5] = [
+    // Figures in the units being rendered (SI, or US with `--units us`).
+    let n = |u: &str, v: f64, d: usize| super::shown_number(u, v, d);
+    let nan = f64::NAN;
+    let rows: [(&str, &str, f64, f64, usize); 5] = [
         (
             "annual",
             "kWh",
-            f(h.annual_heat_loss_kwh, 0),
-            f(two.annual_heat_loss_kwh, 0),
+            h.annual_heat_loss_kwh,
+            two.annual_heat_loss_kwh,
+            0,
         ),
-        (
-            "mean",
-            "W",
-            f(h.mean_heat_loss_w, 1),
-            f(two.mean_heat_loss_w, 1),
-        ),
+        ("mean", "W", h.mean_heat_loss_w, two.mean_heat_loss_w, 1),
         (
             "peak (daily mean)",
             "W",
-            f(h.peak_heat_loss_w, 1),
-            f(two.peak_heat_loss_w, 1),
+            h.peak_heat_loss_w,
+            two.peak_heat_loss_w,
+            1,
         ),
         (
             "floor U-value (no junction)",
             "W/(m²K)",
-            o(h.floor_u_value_w_per_m2k, 3),
-            o(two.floor_u_value_w_per_m2k, 3),
+            h.floor_u_value_w_per_m2k.unwrap_or(nan),
+            two.floor_u_value_w_per_m2k.unwrap_or(nan),
+            3,
         ),
         (
             "junction Ψ_g (3D: with the corners)",
             "W/(mK)",
-            o(h.junction_psi_w_per_mk, 3),
-            o(two.junction_psi_w_per_mk, 3),
+            h.junction_psi_w_per_mk.unwrap_or(nan),
+            two.junction_psi_w_per_mk.unwrap_or(nan),
+            3,
         ),
     ];
-    for (q, u, a, b) in rows {
+    for (q, u, a, b, d) in rows {
         t += &format!(
-            "<tr><td>{}</td><td>{}</td><td class=n>{a}</td><td class=n>{b}</td></tr>\n",
+            "<tr><td>{}</td><td>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
             escape(q),
-            escape(u)
+            escape(super::shown(u, 0.0, 0).0),
+            n(u, a, d),
+            n(u, b, d)
         );
     }
+    let wk = super::shown("W/K", 0.0, 0).0;
     t += &format!(
-        "</table>\n<p>Annual ratio 3D / 2D strip: {:.3}. Steady couplings: L3D {:.2} W/K, wall above ground {:.2} W/K, H_g {:.2} W/K.</p>\n",
-        s.annual_heat_loss_ratio_3d_to_2d, c.l3d_w_per_k, c.wall_1d_w_per_k, c.h_g_w_per_k
+        "</table>\n<p>Annual ratio 3D / 2D strip: {:.3}. Steady couplings: L3D {} {wk}, wall above ground {} {wk}, H_g {} {wk}.</p>\n",
+        s.annual_heat_loss_ratio_3d_to_2d,
+        n("W/K", c.l3d_w_per_k, 2),
+        n("W/K", c.wall_1d_w_per_k, 2),
+        n("W/K", c.h_g_w_per_k, 2)
     );
     t += "<table>\n<tr><th>frost (depth below ground)</th><th>unit</th><th>mid long wall</th><th>mid short wall</th><th>corner</th><th>2D section</th></tr>\n";
     let (ml, ms, co) = (&s.mid_long_wall, &s.mid_short_wall, &s.corner);
+    let within = format!("beside the wall (within {})", super::shown_length(0.5));
     let frost: [(&str, [f64; 4]); 4] = [
         (
             "at the footing's outer face",
@@ -90,7 +98,7 @@ pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
             ],
         ),
         (
-            "beside the wall (within 0.5 m)",
+            &within,
             [
                 ml.beside_wall_m,
                 ms.beside_wall_m,
@@ -105,10 +113,11 @@ pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
     ];
     for (q, v) in frost {
         t += &format!(
-            "<tr><td>{}</td><td>m</td>{}</tr>\n",
+            "<tr><td>{}</td><td>{}</td>{}</tr>\n",
             escape(q),
+            super::shown("m", 0.0, 0).0,
             v.iter()
-                .map(|x| format!("<td class=n>{}</td>", f(*x, 2)))
+                .map(|x| format!("<td class=n>{}</td>", n("m", *x, 2)))
                 .collect::<String>()
         );
     }
@@ -120,8 +129,8 @@ pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
             ""
         };
         t += &format!(
-            "<p{cls}>Least margin {:.2} m at X = {:.2} m, Y = {:.2} m, z = {:.2} m (from the plan's centre), day {}{}.</p>\n",
-            w.margin_m, w.x_m, w.y_m, w.z_m, w.day_of_year,
+            "<p{cls}>Least margin {} at X = {}, Y = {}, z = {} (from the plan's centre), day {}{}.</p>\n",
+            super::shown_length(w.margin_m), super::shown_length(w.x_m), super::shown_length(w.y_m), super::shown_length(w.z_m), w.day_of_year,
             if w.margin_m < 0.0 { ": <strong>frost in the protected zone</strong>" } else { "" }
         );
     }
