@@ -72,6 +72,24 @@ pub enum Command {
         Writes sizing.json, sizing.csv and chosen_case.toml (a complete case that `frostline run` accepts)."
     )]
     Size(SizeArgs),
+    /// Sample the case's [uncertainty] inputs (Latin hypercube), run every sample in parallel and
+    /// report the spread of frost margin, frost depth and heat loss, the probability of frost in
+    /// the protected zone and which input drives it.
+    #[command(
+        after_help = "Examples:\n  frostline uncertainty examples/kettle-hollow-uncertainty.toml --out out/spread --mesh coarse\n  \
+        frostline uncertainty case.toml --out out/spread --shard 2/10   (one shard of ten, e.g. a Slurm array task)\n  \
+        frostline merge out/spread/shard-*-of-10 --out out/spread-all\n\n\
+        Writes samples.csv (every sample's inputs and results) and uncertainty.json (the statistics).\n\
+        Under Slurm (SLURM_ARRAY_TASK_ID and SLURM_ARRAY_TASK_COUNT set) the shard defaults to the\n\
+        array task, into OUT/shard-K-of-N; see docs/slurm-uncertainty.sh."
+    )]
+    Uncertainty(UncertaintyArgs),
+    /// Merge the shard directories of one `frostline uncertainty` design into one result (the
+    /// same samples.csv and statistics as an unsharded run).
+    #[command(
+        after_help = "Example:\n  frostline merge out/spread/shard-*-of-10 --out out/spread-all"
+    )]
+    Merge(MergeArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
     #[command(after_help = "Example:\n  frostline check examples/kettle-hollow-house.toml")]
     Check {
@@ -257,6 +275,47 @@ pub struct SizeArgs {
     pub units: UnitsArg,
 }
 
+/// Arguments of `uncertainty`.
+#[derive(Args, Debug)]
+pub struct UncertaintyArgs {
+    /// The case file with an [uncertainty] table.
+    pub case: PathBuf,
+    /// Output directory (a shard writes into OUT/shard-K-of-N).
+    #[arg(long, short)]
+    pub out: PathBuf,
+    /// Run only shard K of N (1-based), e.g. 3/10: the samples i with i mod N = K − 1. Default:
+    /// the Slurm array task (SLURM_ARRAY_TASK_ID − SLURM_ARRAY_TASK_MIN + 1 of
+    /// SLURM_ARRAY_TASK_COUNT) when set, else the whole design.
+    #[arg(long)]
+    pub shard: Option<String>,
+    /// Worker threads (default: all cores).
+    #[arg(short = 'j', long)]
+    pub jobs: Option<usize>,
+    /// Override the case's mesh fineness.
+    #[arg(long, value_enum)]
+    pub mesh: Option<MeshArg>,
+    /// Override the number of samples.
+    #[arg(long)]
+    pub samples: Option<usize>,
+    /// Override the seed.
+    #[arg(long)]
+    pub seed: Option<u64>,
+    /// No progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+/// Arguments of `merge`.
+#[derive(Args, Debug)]
+pub struct MergeArgs {
+    /// The shard directories (each with samples.csv and uncertainty.json).
+    #[arg(required = true)]
+    pub dirs: Vec<PathBuf>,
+    /// Output directory.
+    #[arg(long, short)]
+    pub out: PathBuf,
+}
+
 /// Arguments of `soil`.
 #[derive(Args, Debug)]
 pub struct SoilArgs {
@@ -431,6 +490,8 @@ fn execute(cli: Cli) -> Result<Vec<String>, Error> {
             Ok(Vec::new())
         }
         Command::Size(a) => size(a),
+        Command::Uncertainty(a) => uncertainty(a),
+        Command::Merge(a) => merge(a),
         Command::Soil(a) => {
             say!("{}", soil(&a)?);
             Ok(Vec::new())
@@ -787,6 +848,179 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
 }
 
 /// List the files written in `dir`, by name.
+/// The shard of a run: `--shard K/N`, else the Slurm array task, else the whole design.
+fn shard_of(flag: Option<&str>) -> Result<frostline::uncertainty::Shard, Error> {
+    use frostline::uncertainty::Shard;
+    let usage = |why: String| {
+        Error::command_line(
+            "--shard",
+            InputKind::OutOfRange,
+            format!("{why}; allowed: K/N with 1 ≤ K ≤ N"),
+        )
+    };
+    if let Some(s) = flag {
+        let (k, n) = s
+            .split_once('/')
+            .ok_or_else(|| usage(format!("\"{s}\" is not K/N")))?;
+        let k: usize = k
+            .trim()
+            .parse()
+            .map_err(|_| usage(format!("\"{k}\" is not a number")))?;
+        let n: usize = n
+            .trim()
+            .parse()
+            .map_err(|_| usage(format!("\"{n}\" is not a number")))?;
+        if k == 0 || k > n {
+            return Err(usage(format!("{k}/{n}")));
+        }
+        return Ok(Shard { index: k, count: n });
+    }
+    let env = |k: &str| {
+        std::env::var(k)
+            .ok()
+            .and_then(|v| v.trim().parse::<usize>().ok())
+    };
+    match (env("SLURM_ARRAY_TASK_ID"), env("SLURM_ARRAY_TASK_COUNT")) {
+        (Some(id), Some(n)) if n >= 1 => {
+            let k = id - env("SLURM_ARRAY_TASK_MIN").unwrap_or(0).min(id) + 1;
+            if k > n {
+                return Err(usage(format!(
+                    "the Slurm array task {id} (minimum {:?}) is not one of {n}",
+                    env("SLURM_ARRAY_TASK_MIN")
+                )));
+            }
+            Ok(Shard { index: k, count: n })
+        }
+        _ => Ok(Shard::WHOLE),
+    }
+}
+
+fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
+    let start = std::time::Instant::now();
+    let mut case: Case = load_case(&a.case)?;
+    let Some(u) = case.uncertainty.as_mut() else {
+        return Err(Error::in_file(
+            &case.file,
+            "uncertainty",
+            InputKind::Missing,
+            "the case has no [uncertainty] table; `frostline uncertainty` needs one",
+        ));
+    };
+    if let Some(n) = a.samples {
+        u.samples = flag_range(n, (2, 100_000), "--samples", "2 to 100000")?;
+    }
+    if let Some(s) = a.seed {
+        u.seed = s;
+    }
+    if let Some(m) = a.mesh {
+        case.simulation.mesh = m.into();
+    }
+    let shard = shard_of(a.shard.as_deref())?;
+    if let Some(j) = a.jobs {
+        let _ = rayon::ThreadPoolBuilder::new()
+            .num_threads(j.max(1))
+            .build_global();
+    }
+    let out = if shard.count > 1 {
+        a.out
+            .join(format!("shard-{}-of-{}", shard.index, shard.count))
+    } else {
+        a.out.clone()
+    };
+    let _lock = files::check_writable(&out)?;
+    let total = case
+        .uncertainty
+        .as_ref()
+        .map_or(0, |u| (0..u.samples).filter(|&i| shard.has(i)).count());
+    let bar = bar(a.quiet, None);
+    bar.set_message(format!("0 of {total} samples"));
+    let cb = |n: usize| bar.set_message(format!("{n} of {total} samples"));
+    let samples = frostline::uncertainty::run_samples(&case, shard, &cb);
+    bar.finish_and_clear();
+    let samples = samples?;
+    let mesh = format!("{:?}", case.simulation.mesh).to_lowercase();
+    let f = files::uncertainty::new_file(
+        &case,
+        shard,
+        &samples,
+        (
+            &mesh,
+            start.elapsed().as_secs_f64(),
+            rayon::current_num_threads(),
+        ),
+    )
+    .ok_or_else(|| Error::Output("no [uncertainty] design".into()))?;
+    files::remove_previous(&out)?;
+    let mut written = files::uncertainty::write(&out, &f, &samples)?;
+    written.extend(frostline::plot::uncertainty_plots(&out, &f, &samples)?);
+    written.push(files::write_manifest(&out, &written, false)?);
+    say!("{}", report::uncertainty::text(&f));
+    print_files(&out, &written);
+    Ok(Vec::new())
+}
+
+fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
+    let start = std::time::Instant::now();
+    let parts: Vec<files::uncertainty::UncertaintyFile> = a
+        .dirs
+        .iter()
+        .map(|d| files::uncertainty::read_file(d))
+        .collect::<Result<_, _>>()?;
+    let first = &parts[0];
+    let mut samples = Vec::new();
+    let mut shards = Vec::new();
+    for (d, p) in a.dirs.iter().zip(&parts) {
+        if p.design != first.design || p.mesh != first.mesh || p.shard.count != first.shard.count {
+            return Err(Error::command_line("merge", InputKind::Conflict, format!(
+                "{}: another design (samples, seed, inputs, mesh or shard count) than {}; allowed: shards of one `frostline uncertainty` design",
+                d.display(),
+                a.dirs[0].display()
+            )));
+        }
+        if shards.contains(&p.shard.index) {
+            return Err(Error::command_line(
+                "merge",
+                InputKind::Conflict,
+                format!("{}: shard {} given twice", d.display(), p.shard.index),
+            ));
+        }
+        shards.push(p.shard.index);
+        samples.extend(files::uncertainty::read_samples(d, &p.design.inputs)?);
+    }
+    let n = first.design.samples;
+    samples.sort_by_key(|s| s.index);
+    let complete = samples.len() == n && samples.iter().enumerate().all(|(i, s)| s.index == i);
+    if !complete {
+        let missing: Vec<usize> = (1..=first.shard.count)
+            .filter(|k| !shards.contains(k))
+            .collect();
+        return Err(Error::command_line("merge", InputKind::Missing, format!(
+            "the shards hold {} of the design's {n} samples (missing shards: {missing:?}); allowed: every shard of the design",
+            samples.len()
+        )));
+    }
+    let keys: Vec<String> = first.design.inputs.iter().map(|i| i.key.clone()).collect();
+    let mut t: Vec<f64> = samples.iter().map(|s| s.run_s).collect();
+    t.sort_by(f64::total_cmp);
+    let f = files::uncertainty::UncertaintyFile {
+        stats: frostline::uncertainty::Stats::of(&samples, &keys),
+        shard: frostline::uncertainty::Shard::WHOLE,
+        median_sample_s: t.get(t.len() / 2).copied().unwrap_or(0.0),
+        wall_time_s: start.elapsed().as_secs_f64()
+            + parts.iter().map(|p| p.wall_time_s).sum::<f64>(),
+        threads: parts.iter().map(|p| p.threads).max().unwrap_or(1),
+        ..first.clone()
+    };
+    let _lock = files::check_writable(&a.out)?;
+    files::remove_previous(&a.out)?;
+    let mut written = files::uncertainty::write(&a.out, &f, &samples)?;
+    written.extend(frostline::plot::uncertainty_plots(&a.out, &f, &samples)?);
+    written.push(files::write_manifest(&a.out, &written, false)?);
+    say!("{}", report::uncertainty::text(&f));
+    print_files(&a.out, &written);
+    Ok(Vec::new())
+}
+
 fn print_files(dir: &Path, written: &[PathBuf]) {
     sayln!("\n  Files in {}:", dir.display());
     for f in written {

@@ -39,5 +39,6 @@ pub mod plot;
 pub mod report;
 pub mod run;
 pub mod solver;
+pub mod uncertainty;
 
 pub use error::{Error, Result};

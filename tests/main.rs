@@ -12,6 +12,7 @@ mod schema;
 mod sizing;
 mod three_d;
 mod trust;
+mod uncertainty;
 mod units;
 mod verification;
 mod verification3d;

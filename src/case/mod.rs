@@ -16,6 +16,7 @@ pub mod raw;
 mod simulation;
 mod sizing;
 mod soil;
+pub mod uncertainty;
 pub mod units;
 
 pub use layout::{Part, Rect};
@@ -229,14 +230,25 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         (None, ..) => Some(None),
         _ => None,
     };
+    let spread = match &raw.uncertainty {
+        Some(u) => g.take(uncertainty::uncertainty(c, u)).map(Some),
+        None => Some(None),
+    };
     g.finish()?;
-    let (Some(basement), Some(insulation), Some(corners), Some(probes), Some(sizing)) =
-        (basement, insulation, corners, probes, sizing)
+    let (
+        Some(basement),
+        Some(insulation),
+        Some(corners),
+        Some(probes),
+        Some(sizing),
+        Some(uncertainty),
+    ) = (basement, insulation, corners, probes, sizing, spread)
     else {
         unreachable!("every table above validated (Gather::finish returned Ok)");
     };
     let case = Case {
         sizing,
+        uncertainty,
         plan,
         corners,
         file: c.file.to_string(),

@@ -506,6 +506,72 @@ pub struct Case {
     pub probes: Vec<Probe>,
     /// Insulation sizing settings, if the case has a `[sizing]` table.
     pub sizing: Option<Sizing>,
+    /// Sampled inputs of `frostline uncertainty`, if the case has an `[uncertainty]` table.
+    pub uncertainty: Option<Uncertainty>,
+}
+
+/// `[uncertainty]`: how many samples, the seed, and the distribution of each sampled input.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Uncertainty {
+    /// Number of samples of the Latin hypercube.
+    pub samples: usize,
+    /// Seed of the sampling (the same seed, count and inputs give the same samples).
+    pub seed: u64,
+    /// The sampled inputs.
+    pub inputs: Vec<UncertainInput>,
+}
+
+/// One sampled input: a key of the case and its distribution, in the key's own unit.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct UncertainInput {
+    /// The key's path in the case file, e.g. `soil[0].water_content`, `climate.mean_c`.
+    pub key: String,
+    /// Its distribution.
+    pub distribution: Distribution,
+}
+
+/// A distribution of an input, optionally truncated to [min, max].
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum Distribution {
+    /// Normal (mean, standard deviation), truncated to [min, max] (±∞ when not given).
+    Normal {
+        /// Mean.
+        mean: f64,
+        /// Standard deviation (0: the mean itself).
+        sd: f64,
+        /// Lower truncation.
+        min: f64,
+        /// Upper truncation.
+        max: f64,
+    },
+    /// Lognormal with the given mean and standard deviation of the value itself, truncated.
+    Lognormal {
+        /// Mean of the value.
+        mean: f64,
+        /// Standard deviation of the value.
+        sd: f64,
+        /// Lower truncation.
+        min: f64,
+        /// Upper truncation.
+        max: f64,
+    },
+    /// Uniform on [min, max].
+    Uniform {
+        /// Lower end.
+        min: f64,
+        /// Upper end.
+        max: f64,
+    },
+    /// Triangular on [min, max] with its mode.
+    Triangular {
+        /// Lower end.
+        min: f64,
+        /// Most likely value.
+        mode: f64,
+        /// Upper end.
+        max: f64,
+    },
 }
 
 impl Case {

@@ -37,6 +37,32 @@ pub struct RawCase {
     pub probe: Vec<S<RawProbe>>,
     #[serde(default)]
     pub sizing: Option<RawSizing>,
+    #[serde(default)]
+    pub uncertainty: Option<S<RawUncertainty>>,
+}
+
+/// `[uncertainty]`: the sampled inputs of `frostline uncertainty`.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawUncertainty {
+    pub samples: Option<S<i64>>,
+    pub seed: Option<S<i64>>,
+    pub input: Vec<S<RawInput>>,
+}
+
+/// One `[[uncertainty.input]]`: a case key and its distribution, in the key's own unit.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawInput {
+    pub key: S<String>,
+    pub distribution: S<String>,
+    pub mean: Option<S<f64>>,
+    pub sd: Option<S<f64>>,
+    pub min: Option<S<f64>>,
+    pub max: Option<S<f64>>,
+    pub mode: Option<S<f64>>,
 }
 
 #[derive(Debug, Deserialize)]

@@ -7,6 +7,7 @@ pub mod sizing;
 pub mod summary;
 pub mod tables;
 pub mod three;
+pub mod uncertainty;
 pub mod us;
 
 pub use section::{read_fields, read_section, PlotEntry, PlotIndex, SectionFile, NO_VALUE};

@@ -389,3 +389,5 @@ pub mod charts;
 mod sketch;
 pub mod three;
 mod tradeoff;
+mod uncertainty;
+pub use uncertainty::uncertainty_plots;

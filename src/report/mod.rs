@@ -5,6 +5,7 @@ pub mod html;
 pub mod sizing;
 pub mod text;
 pub mod three;
+pub mod uncertainty;
 
 use crate::files::us::{figure, Units};
 pub use crate::files::{CAUTION, COORDINATES};

@@ -1,0 +1,23 @@
+#!/bin/bash
+# A Slurm job array running one `frostline uncertainty` design in 10 shards, then merging them.
+# Each array task runs the samples i with i mod 10 = task − 1 (frostline reads
+# SLURM_ARRAY_TASK_ID, SLURM_ARRAY_TASK_MIN and SLURM_ARRAY_TASK_COUNT) into
+# out/spread/shard-K-of-10; the merge job waits for the whole array.
+#
+#   sbatch docs/slurm-uncertainty.sh CASE.toml
+#
+# Edit the resources to your cluster; frostline uses every core it is given (-j).
+#SBATCH --job-name=frostline-spread
+#SBATCH --array=1-10
+#SBATCH --cpus-per-task=4
+#SBATCH --time=02:00:00
+#SBATCH --output=spread-%A_%a.log
+set -euo pipefail
+CASE="${1:?usage: sbatch docs/slurm-uncertainty.sh CASE.toml}"
+frostline uncertainty "$CASE" --out out/spread -j "${SLURM_CPUS_PER_TASK:-1}" --quiet
+# The last task to finish is not known in advance: submit the merge once, from task 1, as a job
+# that starts after the whole array has ended successfully.
+if [ "${SLURM_ARRAY_TASK_ID}" = "${SLURM_ARRAY_TASK_MIN}" ]; then
+  sbatch --dependency="afterok:${SLURM_ARRAY_JOB_ID}" --job-name=frostline-merge \
+    --wrap="frostline merge out/spread/shard-*-of-${SLURM_ARRAY_TASK_COUNT} --out out/spread-all"
+fi

@@ -1,0 +1,252 @@
+//! `frostline uncertainty` and `frostline merge`: a design with no spread reproduces the single
+//! run; with one sampled input the probability of frost in the protected zone agrees with a
+//! bisection on that input; sharded and merged equals unsharded exactly; the case's
+//! `[uncertainty]` table is validated.
+use crate::cli::{bin, scratch};
+use crate::common::{read_json, run_ok};
+use frostline::case::parse_case;
+use serde_json::Value;
+use std::path::{Path, PathBuf};
+
+fn demo() -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-house.toml"),
+    )
+    .unwrap()
+}
+
+/// The demo with an `[uncertainty]` table.
+fn with_table(table: &str) -> String {
+    format!("{}\n{table}", demo())
+}
+
+/// `frostline uncertainty CASE --out OUT --mesh coarse --quiet` plus `extra`.
+fn spread(dir: &Path, name: &str, src: &str, extra: &[&str]) -> PathBuf {
+    let case = dir.join(format!("{name}.toml"));
+    std::fs::write(&case, src).unwrap();
+    let out = dir.join(name);
+    let mut args: Vec<std::ffi::OsString> = vec![
+        "uncertainty".into(),
+        case.into(),
+        "--out".into(),
+        out.clone().into(),
+        "--mesh".into(),
+        "coarse".into(),
+        "--quiet".into(),
+    ];
+    args.extend(extra.iter().map(std::ffi::OsString::from));
+    run_ok(&args);
+    out
+}
+
+/// samples.csv without its wall-time column (the only figure that differs between runs).
+fn samples_without_times(dir: &Path) -> String {
+    let text = std::fs::read_to_string(dir.join("samples.csv")).unwrap();
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let t = head.iter().position(|h| *h == "run_s").unwrap();
+    std::iter::once(text.lines().next().unwrap().to_string())
+        .chain(lines.map(|l| {
+            l.split(',')
+                .enumerate()
+                .filter(|(k, _)| *k != t)
+                .map(|(_, v)| v)
+                .collect::<Vec<_>>()
+                .join(",")
+        }))
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// With no spread (sd = 0) every sample is the case itself: its frost margin, frost depths and
+/// heat losses equal those of `frostline run` on the same mesh to the last digit, and P(frost in
+/// the zone) is 0 or 1 as the single run's margin says.
+#[test]
+fn no_spread_reproduces_the_single_run() {
+    let dir = scratch("spread-zero");
+    let src = with_table(
+        "[uncertainty]\nsamples = 2\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"normal\"\nmean = 3.0\nsd = 0.0\n",
+    );
+    let out = spread(&dir, "zero", &src, &[]);
+    let case = dir.join("zero.toml");
+    let single = dir.join("single");
+    run_ok(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        single.as_os_str(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+        "--quiet".as_ref(),
+        "--no-plots".as_ref(),
+    ]);
+    let s = read_json(&single.join("summary.json"));
+    let u = read_json(&out.join("uncertainty.json"));
+    let st = &u["stats"];
+    for (k, sk) in [
+        ("frost_margin_m", "frost_margin_m"),
+        ("frost_depth_under_footing_m", "frost_depth_under_footing_m"),
+        ("annual_heat_loss_kwh", "annual_heat_loss_kwh"),
+        ("peak_heat_loss_w", "peak_heat_loss_w"),
+    ] {
+        let want = s[sk].as_f64().unwrap();
+        for p in ["min", "p50", "max"] {
+            assert_eq!(st[k][p].as_f64().unwrap(), want, "{k}.{p}");
+        }
+    }
+    let frost = s["frost_margin_m"].as_f64().unwrap() < 0.0;
+    assert_eq!(
+        st["p_frost_in_zone"].as_f64().unwrap(),
+        if frost { 1.0 } else { 0.0 }
+    );
+    assert_eq!(st["samples_run"], 2);
+}
+
+/// One sampled input, the design amplitude uniform on [15, 19] K: the margin falls as the
+/// amplitude grows, so frost enters the zone exactly when the amplitude exceeds a*, found by
+/// bisection (8 halvings of [15, 19]: ±0.016 K), and P = (19 − a*)/4. A one-input Latin
+/// hypercube of n samples has one sample in each of the n equal-probability strata (McKay et al.
+/// 1979), so its estimate k/n is within 1/n of P for a monotone response (plus the bisection's
+/// 0.004).
+#[test]
+fn one_input_probability_agrees_with_bisection() {
+    let dir = scratch("spread-one");
+    let n = 16;
+    let src = with_table(&format!(
+        "[uncertainty]\nsamples = {n}\nseed = 5\n[[uncertainty.input]]\nkey = \"climate.amplitude_k\"\ndistribution = \"uniform\"\nmin = 15.0\nmax = 19.0\n"
+    ));
+    let out = spread(&dir, "one", &src, &[]);
+    let p_hat = read_json(&out.join("uncertainty.json"))["stats"]["p_frost_in_zone"]
+        .as_f64()
+        .unwrap();
+    let margin = |a: f64| {
+        let text = demo().replace(
+            "amplitude_k = 14.0               # K",
+            &format!("amplitude_k = {a}"),
+        );
+        let mut c = parse_case("bisect.toml", &text).unwrap();
+        c.simulation.mesh = frostline::case::Fineness::Coarse;
+        let r = frostline::run::run(&c, &mut |_| {}).unwrap();
+        frostline::run::headline(&c, &r).frost_margin_m
+    };
+    let (mut lo, mut hi) = (15.0, 19.0);
+    assert!(
+        margin(lo) >= 0.0 && margin(hi) < 0.0,
+        "the margin must cross 0 in [15, 19]"
+    );
+    for _ in 0..8 {
+        let mid = 0.5 * (lo + hi);
+        if margin(mid) >= 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    let p = (19.0 - 0.5 * (lo + hi)) / 4.0;
+    assert!(
+        (p_hat - p).abs() <= 1.0 / n as f64 + 0.004,
+        "P estimated {p_hat}, by bisection {p} (a* ≈ {})",
+        0.5 * (lo + hi)
+    );
+}
+
+/// Two shards (one from `--shard 1/2`, one from the Slurm array variables) merged give the same
+/// samples.csv (run times aside) and the same statistics as the unsharded run; a merge with a
+/// shard missing is refused.
+#[test]
+fn sharded_and_merged_equals_unsharded() {
+    let dir = scratch("spread-shards");
+    let src = with_table(
+        "[uncertainty]\nsamples = 5\nseed = 11\n[[uncertainty.input]]\nkey = \"insulation[2].depth_m\"\ndistribution = \"uniform\"\nmin = 0.25\nmax = 0.35\n[[uncertainty.input]]\nkey = \"soil[0].water_content\"\ndistribution = \"triangular\"\nmin = 0.10\nmode = 0.15\nmax = 0.20\n",
+    )
+    .replace(
+        "library = \"silty-sand\"",
+        "library = \"silty-sand\"\nwater_content = 0.15",
+    );
+    let whole = spread(&dir, "case", &src, &[]);
+    let parts = dir.join("parts");
+    let case = dir.join("case.toml");
+    let args = |extra: &[&str]| {
+        let mut a: Vec<std::ffi::OsString> = vec![
+            "uncertainty".into(),
+            case.clone().into(),
+            "--out".into(),
+            parts.clone().into(),
+            "--mesh".into(),
+            "coarse".into(),
+            "--quiet".into(),
+        ];
+        a.extend(extra.iter().map(std::ffi::OsString::from));
+        a
+    };
+    run_ok(&args(&["--shard", "1/2"]));
+    let o = bin()
+        .args(args(&[]))
+        .env("SLURM_ARRAY_TASK_ID", "8")
+        .env("SLURM_ARRAY_TASK_MIN", "7")
+        .env("SLURM_ARRAY_TASK_COUNT", "2")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let (s1, s2) = (parts.join("shard-1-of-2"), parts.join("shard-2-of-2"));
+    assert!(s1.join("samples.csv").exists() && s2.join("samples.csv").exists());
+    let merged = dir.join("merged");
+    run_ok(&[
+        "merge".as_ref(),
+        s1.as_os_str(),
+        s2.as_os_str(),
+        "--out".as_ref(),
+        merged.as_os_str(),
+    ]);
+    assert_eq!(
+        samples_without_times(&merged),
+        samples_without_times(&whole)
+    );
+    let stats = |d: &Path| -> Value { read_json(&d.join("uncertainty.json"))["stats"].clone() };
+    assert_eq!(stats(&merged), stats(&whole));
+    // A shard missing.
+    let o = bin()
+        .args([
+            "merge".as_ref(),
+            s1.as_os_str(),
+            "--out".as_ref(),
+            dir.join("half").as_os_str(),
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("missing shards: [2]"));
+}
+
+/// The `[uncertainty]` table is checked like any other: an unknown key path, a distribution
+/// without its parameters, an unknown distribution, a mode outside [min, max].
+#[test]
+fn uncertainty_table_is_validated() {
+    let bad = |table: &str, want: &str| {
+        let e = parse_case("u.toml", &with_table(table))
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains(want), "{want}: {e}");
+    };
+    bad(
+        "[uncertainty]\n[[uncertainty.input]]\nkey = \"soil[3].water_content\"\ndistribution = \"uniform\"\nmin = 0.1\nmax = 0.2\n",
+        "uncertainty.input[0].key: \"soil[3].water_content\" is not a number given in this case",
+    );
+    bad(
+        "[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"normal\"\nmean = 3.0\n",
+        "uncertainty.input[0].sd: missing (normal distribution)",
+    );
+    bad(
+        "[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"weibull\"\n",
+        "\"weibull\" is not a distribution; allowed: normal, lognormal, uniform, triangular",
+    );
+    bad(
+        "[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"triangular\"\nmin = 1.0\nmode = 5.0\nmax = 4.0\n",
+        "uncertainty.input[0].mode: outside [min, max]",
+    );
+    bad(
+        "[uncertainty]\nsamples = 1\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"uniform\"\nmin = 1.0\nmax = 4.0\n",
+        "uncertainty.samples: 1 is out of range; allowed: 2 to 100000",
+    );
+    assert!(parse_case("u.toml", &with_table("[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"uniform\"\nmin = 1.0\nmax = 4.0\n")).is_ok());
+}
