@@ -100,7 +100,7 @@ fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
                     p.span(),
                     "building.exposed_perimeter_m",
                     InputKind::OutOfRange,
-                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at most {} (the same bound as characteristic_dimension_m: the section's domain grows with B')", c.len(&p.span(), p_v), c.len(&p.span(), bp.round()), c.len(&p.span(), 1000.0)),
+                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at most {} (the same bound as characteristic_dimension_m: the section's domain grows with B')", c.len(&p.span(), p_v), c.len(&p.span(), bp), c.len(&p.span(), 1000.0)),
                 ));
             }
             if bp < 1.0 {
@@ -108,7 +108,7 @@ fn plan(c: &Ctx, b: &RawBuilding) -> Result<(f64, f64, f64)> {
                     p.span(),
                     "building.exposed_perimeter_m",
                     InputKind::OutOfRange,
-                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at least {}", c.len(&p.span(), p_v), c.len(&p.span(), (bp * 1e3).round() / 1e3), c.len(&p.span(), 1.0)),
+                    format!("{} gives B' = A/(0.5 P) = {}; allowed: B' of at least {}", c.len(&p.span(), p_v), c.len(&p.span(), bp), c.len(&p.span(), 1.0)),
                 ));
             }
             Ok((a_v, p_v, bp))

@@ -51,12 +51,12 @@ impl Ctx<'_> {
         }
     }
 
-    /// A length `v` (m) in a message about the value at `span`: in the unit the user gave that
-    /// value in (4 significant digits), else in metres as `v` prints.
+    /// A length `v` (m) in a message about the value at `span`, to 4 significant digits: in the
+    /// unit the user gave that value in, else in metres.
     pub fn len(&self, span: &Range<usize>, v: f64) -> String {
         match self.units.given_at(span.start) {
             Some(g) => format!("{} {}", from_si(g.unit, v), g.unit.label),
-            None => format!("{} m", (v * 1e6).round() / 1e6),
+            None => format!("{} m", from_si(&super::units::METRE, v)),
         }
     }
 

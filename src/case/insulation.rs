@@ -322,8 +322,8 @@ fn kind(
             // outward up to 1 m short of the domain's far edge, inward up to the building's centre.
             let f = &cons.footing;
             let (fx0, fx1) = (f.outer_projection_m - f.width_m, f.outer_projection_m);
-            let far = parts.simulation.domain_width_m - 1.0 - fx1;
-            let centre = fx0 + cons.wall.thickness_m + 0.5 * bp;
+            let far = ((parts.simulation.domain_width_m - 1.0 - fx1) * 1e6).round() / 1e6;
+            let centre = ((fx0 + cons.wall.thickness_m + 0.5 * bp) * 1e6).round() / 1e6;
             let out = c.opt(&r.past_outer_edge_m, &format!("{key}.past_outer_edge_m"), (0.0, far), "m", 0.0)?;
             let inn = c.opt(&r.past_inner_edge_m, &format!("{key}.past_inner_edge_m"), (0.0, centre), "m", 0.0)?;
             Ok(InsulationKind::UnderFooting { x0_m: fx0 - inn, x1_m: fx1 + out })

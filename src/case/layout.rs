@@ -258,6 +258,24 @@ impl Case {
             if let Some(j) = (k + 1..ins.len()).find(|&j| r.overlaps(&ins[j])) {
                 return hit(format!("overlaps insulation[{j}]"));
             }
+            // A board under the footing lies on the footing's bearing soil: not inside the fill
+            // under the slab or a basement's backfill (the other pieces may replace fill).
+            if matches!(self.insulation[k].kind, InsulationKind::UnderFooting { .. }) {
+                let grounds = self
+                    .parts()
+                    .into_iter()
+                    .filter(|p| matches!(p.part, Part::Fill | Part::Backfill));
+                for g in grounds {
+                    if r.overlaps(&g) {
+                        return hit(format!(
+                            "lies in the {} (z = {:.3} to {:.3} m); allowed: the board below it, on the bearing soil",
+                            part_name(g.part),
+                            g.z0,
+                            g.z1
+                        ));
+                    }
+                }
+            }
             if r.x1 > ext.x_max - 1e-9 || r.z1 > ext.z_bottom - 1e-9 {
                 return hit("leaves the domain".into());
             }

@@ -29,6 +29,15 @@ pub struct Unit {
 
 const F: f64 = 5.0 / 9.0;
 
+/// The metre itself (for messages formatted like the US units' ones).
+pub const METRE: Unit = Unit {
+    us: "_m",
+    si: "_m",
+    scale: 1.0,
+    offset: 0.0,
+    label: "m",
+};
+
 /// The units, longest key ending first (so `_h_ft2_f_per_btu` is found before `_f`).
 pub const UNITS: &[Unit] = &[
     // 1 °F·h·ft²/Btu_IT = 1.761 102 E−01 K·m²/W (NIST SP 811, B.9).

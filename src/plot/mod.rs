@@ -357,7 +357,7 @@ pub fn render_dir(dir: &Path, opts: &PlotOptions) -> Result<Vec<PathBuf>> {
         sizes.extend(three::render(&target, &f, units, &mut files)?);
     }
     if let Some(z) = crate::files::read_sizing(dir)? {
-        if tradeoff::render(&target, &z, &mut files)? {
+        if tradeoff::render(&target, &z, units, &mut files)? {
             sizes.push(("sizing_tradeoff", charts::SIZE));
         }
     }

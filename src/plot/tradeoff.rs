@@ -43,7 +43,34 @@ fn shown(f: &SizingFile) -> Vec<&Design> {
     v
 }
 
-fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Result<()> {
+/// The sizing's lengths in feet and energies in kBtu (1 ft = 0.3048 m; 1 kWh = 3.412 142 kBtu,
+/// NIST SP 811 B.9), for the plot of a run in US units.
+fn in_us(f: &SizingFile) -> SizingFile {
+    let (ft, kbtu) = (|m: f64| m / 0.3048, |kwh: f64| kwh * 3.412_142);
+    let conv = |d: &Design| Design {
+        values: d.values.iter().map(|&v| ft(v)).collect(),
+        frost_margin_m: ft(d.frost_margin_m),
+        frost_depth_under_footing_m: ft(d.frost_depth_under_footing_m),
+        annual_heat_loss_kwh: kbtu(d.annual_heat_loss_kwh),
+        heat_loss_change_kwh: kbtu(d.heat_loss_change_kwh),
+        ..d.clone()
+    };
+    SizingFile {
+        margin_m: ft(f.margin_m),
+        baseline_without_varied_insulation: conv(&f.baseline_without_varied_insulation),
+        chosen: f.chosen.as_ref().map(conv),
+        tradeoff: f.tradeoff.iter().map(conv).collect(),
+        designs: f.designs.iter().map(conv).collect(),
+        ..f.clone()
+    }
+}
+
+/// The plot of `f`, its lengths in `lu` and its energies in `eu` (SI or converted by [`in_us`]).
+fn draw<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    f: &SizingFile,
+    (lu, eu): (&str, &str),
+) -> Result<()> {
     root.fill(&WHITE).map_err(out_err)?;
     let root = root
         .titled(
@@ -77,11 +104,11 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
         .build_cartesian_2d(x0..x1, t0..t1)
         .map_err(out_err)?;
     c.configure_mesh()
-        .x_desc(format!("{} (m)", f.dimensions[0]))
+        .x_desc(format!("{} ({lu})", f.dimensions[0]))
         .y_desc(if two {
-            format!("least {} (m)", f.dimensions[1])
+            format!("least {} ({lu})", f.dimensions[1])
         } else {
-            "frost margin (m)".to_string()
+            format!("frost margin ({lu})")
         })
         // Decimals from the tick spacing; a tick at zero reads 0, not -0.0.
         .y_label_formatter(&|v: &f64| {
@@ -111,7 +138,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
             GREY.stroke_width(2),
         ))
         .map_err(out_err)?
-        .label(format!("required margin {:.2} m", f.margin_m))
+        .label(format!("required margin {:.2} {lu}", f.margin_m))
         .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], GREY.stroke_width(2)));
     }
     if let Some(ch) = chosen {
@@ -151,8 +178,8 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
         .build_cartesian_2d(x0..x1, h0..h1)
         .map_err(out_err)?;
     c.configure_mesh()
-        .x_desc(format!("{} (m)", f.dimensions[0]))
-        .y_desc("ground heat loss (kWh/yr)")
+        .x_desc(format!("{} ({lu})", f.dimensions[0]))
+        .y_desc(format!("ground heat loss ({eu}/yr)"))
         .y_label_formatter(&|v: &f64| format!("{v:.0}"))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -173,7 +200,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
         GREY.stroke_width(2),
     ))
     .map_err(out_err)?
-    .label(format!("without the varied insulation: {base:.0} kWh/yr"))
+    .label(format!("without the varied insulation: {base:.0} {eu}/yr"))
     .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], GREY.stroke_width(2)));
     if let Some(ch) = chosen {
         c.draw_series(std::iter::once(Circle::new(
@@ -187,12 +214,21 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, f: &SizingFile) -> Re
     root.present().map_err(out_err)
 }
 
-/// Draw `sizing_tradeoff.png/svg` into `dir` when the sizing evaluated designs (not when no
-/// insulation was needed).
-pub fn render(dir: &Target, f: &SizingFile, files: &mut Vec<PathBuf>) -> Result<bool> {
+/// Draw `sizing_tradeoff.png/svg` into `dir` in `units` when the sizing evaluated designs (not
+/// when no insulation was needed).
+pub fn render(
+    dir: &Target,
+    f: &SizingFile,
+    units: crate::files::us::Units,
+    files: &mut Vec<PathBuf>,
+) -> Result<bool> {
     if f.no_insulation_needed.is_some() || f.dimensions.is_empty() || shown(f).is_empty() {
         return Ok(false);
     }
-    render_both!(dir, "sizing_tradeoff", SIZE, files, draw(f));
+    let (g, labels) = match units {
+        crate::files::us::Units::Si => (f.clone(), ("m", "kWh")),
+        crate::files::us::Units::Us => (in_us(f), ("ft", "kBtu")),
+    };
+    render_both!(dir, "sizing_tradeoff", SIZE, files, draw(&g, labels));
     Ok(true)
 }

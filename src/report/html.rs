@@ -137,11 +137,15 @@ fn report(dir: &Path, out: &Path, s: files::Summary) -> Result<PathBuf> {
     h.push_str(&numerics(&s));
     h.push_str(&properties(&s.materials));
     h.push_str("<h2 id=\"inputs\">Inputs as read</h2>\n");
+    let show = |label: &str, v: f64, d: usize| {
+        let (u, x, p) = super::shown(label, v, d);
+        format!("{x:.p$} {u}")
+    };
     h.push_str(&format!(
-        "<p>B′ = {:.3} m, A = {:.1} m², P = {:.1} m.</p>\n<pre>{}</pre>\n",
-        s.characteristic_dimension_m,
-        s.floor_area_m2,
-        s.exposed_perimeter_m,
+        "<p>B′ = {}, A = {}, P = {}.</p>\n<pre>{}</pre>\n",
+        show("m", s.characteristic_dimension_m, 3),
+        show("m²", s.floor_area_m2, 1),
+        show("m", s.exposed_perimeter_m, 1),
         escape(&case_text)
     ));
     h.push_str("<h2 id=\"cautions\">Cautions</h2>\n<ul>\n");
@@ -270,7 +274,7 @@ fn frost_rows(s: &Summary) -> Vec<Row> {
         ),
         ("frost depth at the footing's outer face", "m", raw(s.frost_depth_at_footing_face_m, 2), "–".into(), ""),
         (if board { "frost depth below the footing's board" } else { "frost depth below the footing base" }, "m", raw(s.frost_depth_under_footing_m, 2), "–".into(), "0: no frozen soil under the footing"),
-        ("frost depth beside the wall", "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "within 0.5 m (1.64 ft) outside the wall; frozen backfill above a footing counts here, not under the footing"),
+        (if super::current() == crate::files::us::Units::Us { "frost depth beside the wall (within 1.64 ft)" } else { "frost depth beside the wall (within 0.5 m)" }, "m", raw(s.frost_depth_beside_wall_m, 2), "–".into(), "frozen backfill above a footing counts here, not under the footing"),
         ("footing base depth", "m", raw(s.footing_base_depth_m, 2), "–".into(), if board { "the footing bears on an insulation board" } else { "" }),
         ("bearing soil depth", "m", raw(s.bearing_depth_m, 2), "–".into(), if board { "the board's underside: the protected zone starts here" } else { "the footing base" }),
         ("frost line's closest approach to the outer base corner", "m", raw(s.frost_distance_to_base_corner_m.unwrap_or(f64::NAN), 2), "–".into(), ""),

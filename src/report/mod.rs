@@ -52,6 +52,15 @@ pub(crate) fn shown_length(m: f64) -> String {
     format!("{v:.2} {unit}")
 }
 
+/// The reach of the "beside the wall" frost measure (0.5 m outside the wall's exterior face) in
+/// the units being rendered: "0.5 m" or "1.64 ft".
+pub(crate) fn beside_wall_reach() -> String {
+    match current() {
+        Units::Si => "0.5 m".into(),
+        Units::Us => shown_length(0.5),
+    }
+}
+
 /// An SI figure formatted in the units being rendered, without its unit ("–" if not finite).
 pub(crate) fn shown_number(label: &str, v: f64, prec: usize) -> String {
     let (_, x, d) = shown(label, v, prec);

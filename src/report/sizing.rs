@@ -32,6 +32,44 @@ fn opt(v: Option<f64>) -> String {
     v.map_or("none".into(), |v| len(v, 3))
 }
 
+/// A sentence of the sizing (built in SI) with its lengths ("0.40 m") in the units being
+/// rendered: each number followed by " m" (and not by another letter) becomes that many feet.
+fn lengths_shown(text: &str) -> String {
+    if lu() == "m" {
+        return text.to_string();
+    }
+    let b = text.as_bytes();
+    let mut out = String::new();
+    let mut k = 0;
+    while k < b.len() {
+        let start_ok = k == 0 || !(b[k - 1].is_ascii_alphanumeric() || b[k - 1] == b'.');
+        if start_ok
+            && (b[k].is_ascii_digit()
+                || (b[k] == b'-' && k + 1 < b.len() && b[k + 1].is_ascii_digit()))
+        {
+            let mut e = k + 1;
+            while e < b.len() && (b[e].is_ascii_digit() || b[e] == b'.') {
+                e += 1;
+            }
+            let unit_here = text[e..].starts_with(" m")
+                && !text[e + 2..]
+                    .starts_with(|c: char| c.is_alphanumeric() || c == '²' || c == '³');
+            if let (true, Ok(v)) = (unit_here, text[k..e].parse::<f64>()) {
+                out += &format!("{} {}", len(v, 2), lu());
+                k = e + 2;
+                continue;
+            }
+            out += &text[k..e];
+            k = e;
+            continue;
+        }
+        let ch = text[k..].chars().next().unwrap_or(' ');
+        out.push(ch);
+        k += ch.len_utf8();
+    }
+    out
+}
+
 /// The margin's meaning, its required value in the units being rendered.
 fn meaning(f: &SizingFile) -> String {
     let si = format!("at least {:.2} m,", f.margin_m);
@@ -67,7 +105,7 @@ pub fn text(f: &SizingFile) -> String {
         u = lu()
     );
     if let Some(why) = &f.no_insulation_needed {
-        s += &format!("\n  No insulation needed: {why}.\n");
+        s += &format!("\n  No insulation needed: {}.\n", lengths_shown(why));
     } else {
         let last = f.dimensions.last().cloned().unwrap_or_default();
         s += &if f.dimensions.len() == 2 {
@@ -113,7 +151,7 @@ pub fn text(f: &SizingFile) -> String {
         lu()
     );
     for flag in &f.flags {
-        s += &format!("    NOTE: {flag}\n");
+        s += &format!("    NOTE: {}\n", lengths_shown(flag));
     }
     s += &format!("\n  {}\n", f.corners);
     if let Some(c) = &f.corner_check {
@@ -174,7 +212,7 @@ pub fn html(f: &SizingFile) -> String {
     if let Some(why) = &f.no_insulation_needed {
         h += &format!(
             "<p><strong>No insulation needed:</strong> {}.</p>\n",
-            escape(why)
+            escape(&lengths_shown(why))
         );
     }
     let dims: Vec<String> = f.dimensions.iter().map(|d| escape(d)).collect();
@@ -214,23 +252,54 @@ pub fn html(f: &SizingFile) -> String {
     h += "</table>\n";
     h += &format!("<p><strong>Corners:</strong> {}</p>\n", escape(&f.corners));
     if let Some(c) = &f.corner_check {
-        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} ({u})</th><th>least margin ({u})</th><th>corner margin ({u})</th><th>corner frost at the face ({u})</th><th>annual heat loss ({eu})</th><th>passes</th></tr>\n", escape(&c.dimension));
+        let heat_head = if f.unheated {
+            String::new()
+        } else {
+            format!("<th>annual heat loss ({eu})</th>")
+        };
+        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} ({u})</th><th>least margin ({u})</th><th>corner margin ({u})</th><th>corner frost at the face ({u})</th>{heat_head}<th>passes</th></tr>\n", escape(&c.dimension));
         for d in &c.designs {
+            let heat = if f.unheated {
+                String::new()
+            } else {
+                format!("<td class=n>{:.0}</td>", energy(d.annual_heat_loss_kwh).0)
+            };
             h += &format!(
-                "<tr><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{:.0}</td><td>{}</td></tr>\n",
+                "<tr><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td><td class=n>{}</td>{heat}<td>{}</td></tr>\n",
                 len(d.value_m, 3),
                 opt(d.least_margin_m),
                 opt(d.corner_margin_m),
                 len(d.corner_face_frost_m, 2),
-                energy(d.annual_heat_loss_kwh).0,
                 if d.feasible { "yes" } else { "no" }
             );
         }
         h += &format!("</table>\n<p>{}</p>\n", escape(&c.note));
     }
     for flag in &f.flags {
-        h += &format!("<p class=\"caution\">{}</p>\n", escape(flag));
+        h += &format!(
+            "<p class=\"caution\">{}</p>\n",
+            escape(&lengths_shown(flag))
+        );
     }
     h += &format!("<p class=\"caution\">{}</p>\n", escape(&f.caution));
     h
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::files::us::Units;
+
+    /// Lengths in a sentence built in SI, shown in feet (1 ft = 0.3048 m): numbers followed by
+    /// " m" only, not "mm", "m²" or other words.
+    #[test]
+    fn sentence_lengths_in_feet() {
+        let s = "frost depth of 0.09 m, above the footing base (0.40 m); 2 m² and 5 mm stay, -0.30 m too";
+        let us = crate::report::in_units(Units::Us, || lengths_shown(s));
+        assert_eq!(
+            us,
+            "frost depth of 0.30 ft, above the footing base (1.31 ft); 2 m² and 5 mm stay, -0.98 ft too"
+        );
+        assert_eq!(crate::report::in_units(Units::Si, || lengths_shown(s)), s);
+    }
 }

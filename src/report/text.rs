@@ -155,7 +155,7 @@ fn three_rows(s: &Summary3) -> String {
         ],
     );
     t += &row(
-        &format!("beside the wall (within {})", super::shown_length(0.5)),
+        &format!("beside the wall (within {})", super::beside_wall_reach()),
         "m",
         2,
         &[
@@ -304,7 +304,7 @@ fn frost_rows(s: &Summary) -> String {
         &[s.frost_depth_under_footing_m],
     );
     t += &row(
-        &format!("beside the wall (within {})", super::shown_length(0.5)),
+        &format!("beside the wall (within {})", super::beside_wall_reach()),
         "m",
         2,
         &[s.frost_depth_beside_wall_m],
@@ -405,8 +405,9 @@ fn numerics_line(s: &Summary) -> String {
         if s.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
         s.newton_iterations_per_step, s.energy_balance_error, s.wall_time_s);
     if let Some(e) = s.periodicity_error_heat_loss_kwh {
+        let (u, x, _) = super::shown("kWh", e, 2);
         t += &format!(
-            "  Periodicity: reported-year heat loss minus the periodic year's ≈ {e:+.2} kWh ({:+.3} %), estimated\n",
+            "  Periodicity: reported-year heat loss minus the periodic year's ≈ {x:+.2} {u} ({:+.3} %), estimated\n",
             100.0 * e / s.annual_heat_loss_kwh.abs().max(1e-9)
         );
     }

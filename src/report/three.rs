@@ -77,7 +77,7 @@ pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
     );
     t += "<table>\n<tr><th>frost (depth below ground)</th><th>unit</th><th>mid long wall</th><th>mid short wall</th><th>corner</th><th>2D section</th></tr>\n";
     let (ml, ms, co) = (&s.mid_long_wall, &s.mid_short_wall, &s.corner);
-    let within = format!("beside the wall (within {})", super::shown_length(0.5));
+    let within = format!("beside the wall (within {})", super::beside_wall_reach());
     let frost: [(&str, [f64; 4]); 4] = [
         (
             "at the footing's outer face",
