@@ -953,6 +953,11 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     files::remove_previous(&out)?;
     let mut written = files::uncertainty::write(&out, &f, &samples)?;
     written.extend(frostline::plot::uncertainty_plots(&out, &f, &samples)?);
+    written.push(files::write_atomic(
+        &out,
+        "report.html",
+        report::uncertainty::html(&out, &f)?.as_bytes(),
+    )?);
     written.push(files::write_manifest(&out, &written, false)?);
     say!("{}", report::uncertainty::text(&f));
     print_files(&out, &written);
@@ -1015,6 +1020,11 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
     files::remove_previous(&a.out)?;
     let mut written = files::uncertainty::write(&a.out, &f, &samples)?;
     written.extend(frostline::plot::uncertainty_plots(&a.out, &f, &samples)?);
+    written.push(files::write_atomic(
+        &a.out,
+        "report.html",
+        report::uncertainty::html(&a.out, &f)?.as_bytes(),
+    )?);
     written.push(files::write_manifest(&a.out, &written, false)?);
     say!("{}", report::uncertainty::text(&f));
     print_files(&a.out, &written);

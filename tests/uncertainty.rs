@@ -204,6 +204,8 @@ fn sharded_and_merged_equals_unsharded() {
     );
     let stats = |d: &Path| -> Value { read_json(&d.join("uncertainty.json"))["stats"].clone() };
     assert_eq!(stats(&merged), stats(&whole));
+    let report = std::fs::read_to_string(merged.join("report.html")).unwrap();
+    assert!(report.contains("Caution.") && report.contains("fig-uncertainty_margin"));
     // A shard missing.
     let o = bin()
         .args([

@@ -5,6 +5,12 @@ use crate::error::Result;
 use crate::files::{self, Summary, CAUTION, COORDINATES};
 use std::path::{Path, PathBuf};
 
+/// The reports' style sheet.
+pub(super) const STYLE: &str = "<style>body{font-family:sans-serif;max-width:1100px;margin:2em auto;color:#222;line-height:1.4}\
+        table{border-collapse:collapse;margin:1em 0}td,th{border:1px solid #bbb;padding:4px 8px}th{background:#eee}\
+        td.n{text-align:right;font-variant-numeric:tabular-nums}.caution{border:2px solid #b33;background:#fff4f0;padding:0.6em 1em}\
+        figure{margin:1.5em 0}img{max-width:100%;border:1px solid #ccc}pre{background:#f6f6f6;padding:1em;overflow-x:auto}</style>\n";
+
 /// Standard base64 (RFC 4648 §4, with padding) of `bytes`, by the `base64` crate.
 pub fn base64(bytes: &[u8]) -> String {
     use base64::Engine;
@@ -85,10 +91,7 @@ fn report(dir: &Path, out: &Path, s: files::Summary) -> Result<PathBuf> {
         "<title>frostline report: {}</title>\n",
         escape(&s.case_name)
     ));
-    h.push_str("<style>body{font-family:sans-serif;max-width:1100px;margin:2em auto;color:#222;line-height:1.4}\
-        table{border-collapse:collapse;margin:1em 0}td,th{border:1px solid #bbb;padding:4px 8px}th{background:#eee}\
-        td.n{text-align:right;font-variant-numeric:tabular-nums}.caution{border:2px solid #b33;background:#fff4f0;padding:0.6em 1em}\
-        figure{margin:1.5em 0}img{max-width:100%;border:1px solid #ccc}pre{background:#f6f6f6;padding:1em;overflow-x:auto}</style>\n");
+    h.push_str(STYLE);
     h.push_str("</head>\n<body>\n");
     h.push_str(&format!("<h1>{}</h1>\n", escape(&s.case_name)));
     h.push_str(&format!(

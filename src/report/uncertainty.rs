@@ -2,6 +2,27 @@
 use crate::files::uncertainty::UncertaintyFile;
 use crate::uncertainty::Spread;
 
+/// A distribution in words: "normal, mean 0.15, sd 0.03, truncated to [0.05, 0.3]".
+pub fn describe(d: &crate::case::Distribution) -> String {
+    use crate::case::Distribution as D;
+    let cut = |lo: f64, hi: f64| match (lo.is_finite(), hi.is_finite()) {
+        (false, false) => String::new(),
+        (true, false) => format!(", at least {lo}"),
+        (false, true) => format!(", at most {hi}"),
+        (true, true) => format!(", truncated to [{lo}, {hi}]"),
+    };
+    match *d {
+        D::Normal { mean, sd, min, max } => {
+            format!("normal, mean {mean}, sd {sd}{}", cut(min, max))
+        }
+        D::Lognormal { mean, sd, min, max } => {
+            format!("lognormal, mean {mean}, sd {sd}{}", cut(min, max))
+        }
+        D::Uniform { min, max } => format!("uniform on [{min}, {max}]"),
+        D::Triangular { min, mode, max } => format!("triangular on [{min}, {max}], mode {mode}"),
+    }
+}
+
 /// One result's row: percentiles with `d` decimals.
 fn row(label: &str, unit: &str, s: &Option<Spread>, d: usize) -> String {
     match s {
@@ -30,7 +51,7 @@ pub fn text(f: &UncertaintyFile) -> String {
     );
     t += "  Sampled inputs (the case's keys, in their own units):\n";
     for i in &f.design.inputs {
-        t += &format!("    {:<34} {:?}\n", i.key, i.distribution);
+        t += &format!("    {:<34} {}\n", i.key, describe(&i.distribution));
     }
     t += &format!(
         "\n  Results of {} samples run{}                 5 %      25 %    median      75 %      95 %\n",
@@ -96,4 +117,106 @@ pub fn text(f: &UncertaintyFile) -> String {
     }
     t += &format!("\n  Caution: {}\n", f.caution);
     t
+}
+
+/// `report.html` of an uncertainty run: the caution, the design, the percentiles, the probability
+/// of frost in the zone, the sensitivity ranking and the two plots (from the files in `dir`).
+pub fn html(dir: &std::path::Path, f: &UncertaintyFile) -> crate::error::Result<String> {
+    use super::html::{escape, figures, STYLE};
+    let st = &f.stats;
+    let mut h = format!(
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>frostline uncertainty: {}</title>\n{STYLE}</head>\n<body>\n<h1>{} — uncertainty</h1>\n",
+        escape(&f.case_name),
+        escape(&f.case_name)
+    );
+    h += &format!(
+        "<p class=\"caution\"><strong>Caution.</strong> {}</p>\n",
+        escape(&f.caution)
+    );
+    h += &format!(
+        "<p>{} Latin-hypercube samples (seed {}), mesh {}, {} run, {} refused by the case rules; case file {}.</p>\n",
+        f.design.samples,
+        f.design.seed,
+        escape(&f.mesh),
+        st.samples_run,
+        st.samples_refused,
+        escape(&f.case_file)
+    );
+    h += "<h2>Sampled inputs</h2>\n<table>\n<tr><th>key (its own unit)</th><th>distribution</th></tr>\n";
+    for i in &f.design.inputs {
+        h += &format!(
+            "<tr><td>{}</td><td>{}</td></tr>\n",
+            escape(&i.key),
+            escape(&describe(&i.distribution))
+        );
+    }
+    h += "</table>\n<h2>Results</h2>\n<table>\n<tr><th>result</th><th>unit</th><th>5 %</th><th>25 %</th><th>median</th><th>75 %</th><th>95 %</th></tr>\n";
+    let rows = [
+        (
+            "frost margin to the protected zone",
+            "m",
+            &st.frost_margin_m,
+            3,
+        ),
+        (
+            "frost below the footing",
+            "m",
+            &st.frost_depth_under_footing_m,
+            3,
+        ),
+        (
+            "frost at the footing's outer face",
+            "m",
+            &st.frost_depth_at_footing_face_m,
+            3,
+        ),
+        (
+            "annual ground heat loss",
+            "kWh",
+            &st.annual_heat_loss_kwh,
+            0,
+        ),
+        ("peak ground heat loss", "W", &st.peak_heat_loss_w, 1),
+    ];
+    for (label, unit, s, d) in rows {
+        let cells = s
+            .as_ref()
+            .map_or("<td colspan=5>no sample ran</td>".to_string(), |s| {
+                [s.p05, s.p25, s.p50, s.p75, s.p95]
+                    .iter()
+                    .map(|v| format!("<td class=n>{v:.d$}</td>"))
+                    .collect()
+            });
+        h += &format!("<tr><td>{label}</td><td>{unit}</td>{cells}</tr>\n");
+    }
+    h += "</table>\n";
+    h += &format!(
+        "<p><strong>P(frost in the protected zone)</strong> = {} / {} = {:.3}; 95 % Wilson interval {:.3} to {:.3}.</p>\n",
+        st.frost_in_zone_count, st.samples_run, st.p_frost_in_zone, st.p_frost_in_zone_95ci[0], st.p_frost_in_zone_95ci[1]
+    );
+    h += "<h2>Sensitivity</h2>\n<table>\n<tr><th>input</th><th>rank correlation with the frost margin</th><th>with the annual heat loss</th></tr>\n";
+    let c = |v: Option<f64>| v.map_or("–".to_string(), |x| format!("{x:+.3}"));
+    for s in &st.sensitivity {
+        h += &format!(
+            "<tr><td>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
+            escape(&s.key),
+            c(s.rank_correlation_margin),
+            c(s.rank_correlation_heat_loss)
+        );
+    }
+    h += "</table>\n";
+    h += &figures(
+        dir,
+        &[
+            ("uncertainty_margin", "The frost margin over the samples: histogram and the fraction of samples at or below each margin; red: 0, frost reaches the protected zone."),
+            ("uncertainty_tornado", "Spearman rank correlation of each input with the frost margin (blue) and with the annual heat loss (orange)."),
+        ],
+        ("figures", "Figures"),
+    )?;
+    h += "<h2>Notes</h2>\n<ul>\n";
+    for n in &f.notes {
+        h += &format!("<li>{}</li>\n", escape(n));
+    }
+    h += "</ul>\n</body>\n</html>\n";
+    Ok(h)
 }
