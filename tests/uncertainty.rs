@@ -252,3 +252,45 @@ fn uncertainty_table_is_validated() {
     );
     assert!(parse_case("u.toml", &with_table("[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"uniform\"\nmin = 1.0\nmax = 4.0\n")).is_ok());
 }
+
+/// The bundled example runs (cut to 4 samples on the coarse mesh): every output written, the four
+/// inputs ranked, the percentiles ordered.
+#[test]
+fn bundled_example_runs() {
+    let dir = scratch("spread-example");
+    let case =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/kettle-hollow-uncertainty.toml");
+    let out = dir.join("out");
+    let stdout = run_ok(&[
+        "uncertainty".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+        "--samples".as_ref(),
+        "4".as_ref(),
+        "--quiet".as_ref(),
+    ]);
+    assert!(stdout.contains("P(frost in the protected zone)") && stdout.contains("Caution"));
+    for f in [
+        "samples.csv",
+        "uncertainty.json",
+        "uncertainty_margin.png",
+        "uncertainty_tornado.svg",
+        "report.html",
+        "manifest.json",
+    ] {
+        assert!(out.join(f).exists(), "{f}");
+    }
+    let u = read_json(&out.join("uncertainty.json"));
+    assert_eq!(u["stats"]["sensitivity"].as_array().unwrap().len(), 4);
+    let m = &u["stats"]["frost_margin_m"];
+    let p = |k: &str| m[k].as_f64().unwrap();
+    assert!(
+        p("min") <= p("p05")
+            && p("p05") <= p("p50")
+            && p("p50") <= p("p95")
+            && p("p95") <= p("max")
+    );
+}
