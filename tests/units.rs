@@ -431,6 +431,16 @@ fn board_under_the_footing() {
     let vary = &sized.sizing.as_ref().unwrap().vary;
     let d = frostline::design::apply(&sized, vary, &[0.7]).unwrap();
     assert!((d.insulation_rect(2).x1 - 0.7).abs() < 1e-9);
+    // Sizing bounds in inches, an error named as written.
+    let e = parse(&format!(
+        "{src}\n[sizing]\nmargin_m = 0.0\n[[sizing.vary]]\ninsulation = 2\ndimension = \"past_outer_edge_m\"\nmin_in = -1\nmax_ft = 5\nstep_in = 4\n"
+    ))
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("sizing.vary[0].min_in: -1 in is out of range"),
+        "{e}"
+    );
 }
 
 /// Errors that compare one quantity with others name every length in the unit the user wrote the

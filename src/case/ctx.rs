@@ -28,10 +28,14 @@ impl Ctx<'_> {
         kind: InputKind,
         msg: impl Into<String>,
     ) -> Error {
+        // The key as written: its SI unit part replaced by the US one, or (a key whose SI
+        // spelling has no unit part, such as a sizing bound `min` written `min_in`) the US unit
+        // part added.
         let key = match self.units.given_at(span.start) {
-            Some(g) => key
-                .strip_suffix(g.unit.si)
-                .map_or(key.to_string(), |stem| format!("{stem}{}", g.unit.us)),
+            Some(g) => key.strip_suffix(g.unit.si).map_or_else(
+                || format!("{key}{}", g.unit.us),
+                |stem| format!("{stem}{}", g.unit.us),
+            ),
             None => key.to_string(),
         };
         Error::input(
