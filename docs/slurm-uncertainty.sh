@@ -14,6 +14,7 @@
 #SBATCH --output=spread-%A_%a.log
 set -euo pipefail
 CASE="${1:?usage: sbatch docs/slurm-uncertainty.sh CASE.toml}"
+# (Outside such an array, or to run the whole design inside one, pass --shard 1/1.)
 frostline uncertainty "$CASE" --out out/spread -j "${SLURM_CPUS_PER_TASK:-1}" --quiet
 # The last task to finish is not known in advance: submit the merge once, from task 1, as a job
 # that starts after the whole array has ended successfully.

@@ -284,8 +284,9 @@ pub struct UncertaintyArgs {
     #[arg(long, short)]
     pub out: PathBuf,
     /// Run only shard K of N (1-based), e.g. 3/10: the samples i with i mod N = K − 1. Default:
-    /// the Slurm array task (SLURM_ARRAY_TASK_ID − SLURM_ARRAY_TASK_MIN + 1 of
-    /// SLURM_ARRAY_TASK_COUNT) when set, else the whole design.
+    /// the Slurm array task (task (ID − MIN)/STEP + 1 of COUNT, from SLURM_ARRAY_TASK_ID, _MIN,
+    /// _STEP and _COUNT) when set, else the whole design; `--shard 1/1` runs the whole design
+    /// inside an array job.
     #[arg(long)]
     pub shard: Option<String>,
     /// Worker threads (default: all cores).
@@ -847,7 +848,6 @@ fn plot(a: PlotArgs) -> Result<(), Error> {
     Ok(())
 }
 
-/// List the files written in `dir`, by name.
 /// The shard of a run: `--shard K/N`, else the Slurm array task, else the whole design.
 fn shard_of(flag: Option<&str>) -> Result<frostline::uncertainty::Shard, Error> {
     use frostline::uncertainty::Shard;
@@ -882,12 +882,26 @@ fn shard_of(flag: Option<&str>) -> Result<frostline::uncertainty::Shard, Error> 
     };
     match (env("SLURM_ARRAY_TASK_ID"), env("SLURM_ARRAY_TASK_COUNT")) {
         (Some(id), Some(n)) if n >= 1 => {
-            let k = id - env("SLURM_ARRAY_TASK_MIN").unwrap_or(0).min(id) + 1;
-            if k > n {
-                return Err(usage(format!(
-                    "the Slurm array task {id} (minimum {:?}) is not one of {n}",
-                    env("SLURM_ARRAY_TASK_MIN")
+            // Task k (1-based) of an array min, min + step, …: k = (id − min)/step + 1.
+            let slurm = |why: String| {
+                Error::command_line(
+                    "SLURM_ARRAY_TASK_ID",
+                    InputKind::OutOfRange,
+                    format!(
+                        "{why}; give the shard with --shard K/N (--shard 1/1: the whole design)"
+                    ),
+                )
+            };
+            let min = env("SLURM_ARRAY_TASK_MIN").unwrap_or(0);
+            let step = env("SLURM_ARRAY_TASK_STEP").unwrap_or(1).max(1);
+            if id < min || (id - min) % step != 0 {
+                return Err(slurm(format!(
+                    "task {id} is not on the array {min}, {min} + {step}, …"
                 )));
+            }
+            let k = (id - min) / step + 1;
+            if k > n {
+                return Err(slurm(format!("task {id} is beyond the array's {n} tasks")));
             }
             Ok(Shard { index: k, count: n })
         }
@@ -961,6 +975,12 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     written.push(files::write_manifest(&out, &written, false)?);
     say!("{}", report::uncertainty::text(&f));
     print_files(&out, &written);
+    // Nothing to estimate from: every sample refused or failed (a shard may be empty by design).
+    if f.stats.samples_run == 0 && shard.count == 1 {
+        return Ok(vec![
+            "no sample ran: every sample was refused by the case rules or failed (samples.csv, refused_because)".into(),
+        ]);
+    }
     Ok(Vec::new())
 }
 
@@ -975,9 +995,13 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
     let mut samples = Vec::new();
     let mut shards = Vec::new();
     for (d, p) in a.dirs.iter().zip(&parts) {
-        if p.design != first.design || p.mesh != first.mesh || p.shard.count != first.shard.count {
+        if p.design != first.design
+            || p.mesh != first.mesh
+            || p.shard.count != first.shard.count
+            || p.case_file != first.case_file
+        {
             return Err(Error::command_line("merge", InputKind::Conflict, format!(
-                "{}: another design (samples, seed, inputs, mesh or shard count) than {}; allowed: shards of one `frostline uncertainty` design",
+                "{}: another design (case file, samples, seed, inputs, mesh or shard count) than {}; allowed: shards of one `frostline uncertainty` design",
                 d.display(),
                 a.dirs[0].display()
             )));
@@ -1031,6 +1055,7 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
     Ok(Vec::new())
 }
 
+/// List the files written in `dir`, by name.
 fn print_files(dir: &Path, written: &[PathBuf]) {
     sayln!("\n  Files in {}:", dir.display());
     for f in written {

@@ -150,14 +150,15 @@ fn one_input_probability_agrees_with_bisection() {
     );
 }
 
-/// Two shards (one from `--shard 1/2`, one from the Slurm array variables) merged give the same
-/// samples.csv (run times aside) and the same statistics as the unsharded run; a merge with a
-/// shard missing is refused.
+/// Two shards (one from `--shard 1/2`, one from the Slurm array variables of a stepped array)
+/// merged give the same samples.csv (run times aside) and the same statistics as the unsharded
+/// run, an untruncated normal input included (its infinite bounds are `null` in the JSON); a
+/// merge with a shard missing is refused.
 #[test]
 fn sharded_and_merged_equals_unsharded() {
     let dir = scratch("spread-shards");
     let src = with_table(
-        "[uncertainty]\nsamples = 5\nseed = 11\n[[uncertainty.input]]\nkey = \"insulation[2].depth_m\"\ndistribution = \"uniform\"\nmin = 0.25\nmax = 0.35\n[[uncertainty.input]]\nkey = \"soil[0].water_content\"\ndistribution = \"triangular\"\nmin = 0.10\nmode = 0.15\nmax = 0.20\n",
+        "[uncertainty]\nsamples = 5\nseed = 11\n[[uncertainty.input]]\nkey = \"insulation[2].depth_m\"\ndistribution = \"uniform\"\nmin = 0.25\nmax = 0.35\n[[uncertainty.input]]\nkey = \"soil[0].water_content\"\ndistribution = \"triangular\"\nmin = 0.10\nmode = 0.15\nmax = 0.20\n[[uncertainty.input]]\nkey = \"climate.amplitude_k\"\ndistribution = \"normal\"\nmean = 14.0\nsd = 0.5\n",
     )
     .replace(
         "library = \"silty-sand\"",
@@ -182,8 +183,9 @@ fn sharded_and_merged_equals_unsharded() {
     run_ok(&args(&["--shard", "1/2"]));
     let o = bin()
         .args(args(&[]))
-        .env("SLURM_ARRAY_TASK_ID", "8")
+        .env("SLURM_ARRAY_TASK_ID", "9")
         .env("SLURM_ARRAY_TASK_MIN", "7")
+        .env("SLURM_ARRAY_TASK_STEP", "2")
         .env("SLURM_ARRAY_TASK_COUNT", "2")
         .output()
         .unwrap();
@@ -293,4 +295,30 @@ fn bundled_example_runs() {
             && p("p50") <= p("p95")
             && p("p95") <= p("max")
     );
+}
+
+/// A sample whose run stops on its own terms (frost down to a 3 m domain's bottom in a severe
+/// winter) is recorded as failed, the others still run and are reported, and the summary bounds
+/// P by counting the failed ones as frost in the zone.
+#[test]
+fn failed_samples_are_recorded_and_bound_p() {
+    let dir = scratch("spread-failed");
+    let src = demo()
+        .replace(
+            "mean_c = 3.0                     # annual mean air temperature, °C",
+            "mean_c = 2.5",
+        )
+        .replace("amplitude_k = 14.0               # K", "amplitude_k = 5.0")
+        .replace("mesh = \"normal\"", "mesh = \"normal\"\ndomain_depth_m = 3.0")
+        + "\n[uncertainty]\nsamples = 8\n[[uncertainty.input]]\nkey = \"climate.amplitude_k\"\ndistribution = \"uniform\"\nmin = 4.0\nmax = 30.0\n";
+    let out = spread(&dir, "cold", &src, &[]);
+    let csv = std::fs::read_to_string(out.join("samples.csv")).unwrap();
+    let failed = csv.lines().filter(|l| l.contains("failed:")).count();
+    let u = read_json(&out.join("uncertainty.json"));
+    let st = &u["stats"];
+    assert!(failed > 0 && failed < 8, "{failed} failed");
+    assert_eq!(st["samples_refused"].as_u64().unwrap() as usize, failed);
+    assert_eq!(st["samples_run"].as_u64().unwrap() as usize, 8 - failed);
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(report.contains("counting the") && report.contains("as frost in the zone"));
 }

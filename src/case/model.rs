@@ -530,6 +530,20 @@ pub struct UncertainInput {
     pub distribution: Distribution,
 }
 
+/// A truncation bound read back from JSON, where an absent (infinite) bound is written `null`.
+fn bound<'de, D: serde::Deserializer<'de>>(d: D, absent: f64) -> Result<f64, D::Error> {
+    use serde::Deserialize;
+    Ok(Option::<f64>::deserialize(d)?.unwrap_or(absent))
+}
+
+fn lower_bound<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+    bound(d, f64::NEG_INFINITY)
+}
+
+fn upper_bound<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+    bound(d, f64::INFINITY)
+}
+
 /// A distribution of an input, optionally truncated to [min, max].
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 #[serde(tag = "kind", rename_all = "snake_case")]
@@ -540,9 +554,11 @@ pub enum Distribution {
         mean: f64,
         /// Standard deviation (0: the mean itself).
         sd: f64,
-        /// Lower truncation.
+        /// Lower truncation (−∞ when not given: `null` in JSON).
+        #[serde(deserialize_with = "lower_bound")]
         min: f64,
-        /// Upper truncation.
+        /// Upper truncation (+∞ when not given: `null` in JSON).
+        #[serde(deserialize_with = "upper_bound")]
         max: f64,
     },
     /// Lognormal with the given mean and standard deviation of the value itself, truncated.
@@ -551,9 +567,11 @@ pub enum Distribution {
         mean: f64,
         /// Standard deviation of the value.
         sd: f64,
-        /// Lower truncation.
+        /// Lower truncation (−∞ when not given: `null` in JSON).
+        #[serde(deserialize_with = "lower_bound")]
         min: f64,
-        /// Upper truncation.
+        /// Upper truncation (+∞ when not given: `null` in JSON).
+        #[serde(deserialize_with = "upper_bound")]
         max: f64,
     },
     /// Uniform on [min, max].

@@ -48,6 +48,7 @@ pub struct RawCase {
 pub struct RawUncertainty {
     pub samples: Option<S<i64>>,
     pub seed: Option<S<i64>>,
+    #[serde(default)]
     pub input: Vec<S<RawInput>>,
 }
 

@@ -160,7 +160,7 @@ fn input(c: &Ctx, i: &S<RawInput>, key: &str, doc: &toml::Table) -> Result<Uncer
             if sd < 0.0 {
                 return Err(bad("sd", "negative; allowed: 0 or more"));
             }
-            if sd > 0.0 && (mean < lo || mean > hi) {
+            if mean < lo || mean > hi {
                 return Err(bad("mean", "outside [min, max]; allowed: within the truncation"));
             }
             if kind == "normal" {

@@ -179,7 +179,11 @@ pub fn new_file(
 ) -> Option<UncertaintyFile> {
     let design = case.uncertainty.clone()?;
     let keys: Vec<String> = design.inputs.iter().map(|i| i.key.clone()).collect();
-    let mut t: Vec<f64> = samples.iter().map(|s| s.run_s).collect();
+    let mut t: Vec<f64> = samples
+        .iter()
+        .filter(|s| s.error.is_none())
+        .map(|s| s.run_s)
+        .collect();
     t.sort_by(f64::total_cmp);
     Some(UncertaintyFile {
         case_name: case.name.clone(),

@@ -29,7 +29,7 @@ fn draw_margin<DB: DrawingBackend>(
                 "{} — frost margin over {} samples; P(frost in the zone) = {:.3} (95 %: {:.3}–{:.3})",
                 f.case_name,
                 st.samples_run,
-                st.p_frost_in_zone,
+                st.p_frost_in_zone.unwrap_or(f64::NAN),
                 st.p_frost_in_zone_95ci[0],
                 st.p_frost_in_zone_95ci[1]
             ),
@@ -59,6 +59,7 @@ fn draw_margin<DB: DrawingBackend>(
         .map_err(out_err)?;
     c.configure_mesh()
         .y_desc("samples")
+        .y_labels((cmax + 1).min(11))
         .y_label_formatter(&|v: &f64| format!("{v:.0}"))
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))

@@ -34,6 +34,16 @@ fn row(label: &str, unit: &str, s: &Option<Spread>, d: usize) -> String {
     }
 }
 
+/// The bound that samples which did not run put on P: counted as frost in the zone (they are
+/// often the severe ones, e.g. frost down to the domain's bottom).
+fn not_run(st: &crate::uncertainty::Stats) -> String {
+    let (k, n, f) = (st.frost_in_zone_count, st.samples_run, st.samples_refused);
+    format!(
+        "P counts only the samples that ran; counting the {f} that did not as frost in the zone: ({k} + {f}) / ({n} + {f}) = {:.3}",
+        (k + f) as f64 / (n + f) as f64
+    )
+}
+
 /// The printed summary.
 pub fn text(f: &UncertaintyFile) -> String {
     let st = &f.stats;
@@ -53,14 +63,16 @@ pub fn text(f: &UncertaintyFile) -> String {
     for i in &f.design.inputs {
         t += &format!("    {:<34} {}\n", i.key, describe(&i.distribution));
     }
+    if st.samples_refused > 0 {
+        t += &format!(
+            "\n  {} sample(s) refused by the case rules or failed in their run (samples.csv: refused_because)\n",
+            st.samples_refused
+        );
+    }
+    let head = format!("Results of {} samples run", st.samples_run);
     t += &format!(
-        "\n  Results of {} samples run{}                 5 %      25 %    median      75 %      95 %\n",
-        st.samples_run,
-        if st.samples_refused > 0 {
-            format!(" ({} refused by the case rules)", st.samples_refused)
-        } else {
-            String::new()
-        }
+        "\n  {head:<43}{:>9} {:>9} {:>9} {:>9} {:>9}\n",
+        "5 %", "25 %", "median", "75 %", "95 %"
     );
     t += &row(
         "frost margin to the protected zone",
@@ -91,10 +103,13 @@ pub fn text(f: &UncertaintyFile) -> String {
         "\n  P(frost in the protected zone) = {} / {} = {:.3}, 95 % interval {:.3} to {:.3}\n",
         st.frost_in_zone_count,
         st.samples_run,
-        st.p_frost_in_zone,
+        st.p_frost_in_zone.unwrap_or(f64::NAN),
         st.p_frost_in_zone_95ci[0],
         st.p_frost_in_zone_95ci[1]
     );
+    if st.samples_refused > 0 {
+        t += &format!("  {}\n", not_run(st));
+    }
     t += "\n  Sensitivity (Spearman rank correlation)      with margin   with heat loss\n";
     let c = |v: Option<f64>| v.map_or("–".to_string(), |x| format!("{x:+.3}"));
     for s in &st.sensitivity {
@@ -192,8 +207,11 @@ pub fn html(dir: &std::path::Path, f: &UncertaintyFile) -> crate::error::Result<
     h += "</table>\n";
     h += &format!(
         "<p><strong>P(frost in the protected zone)</strong> = {} / {} = {:.3}; 95 % Wilson interval {:.3} to {:.3}.</p>\n",
-        st.frost_in_zone_count, st.samples_run, st.p_frost_in_zone, st.p_frost_in_zone_95ci[0], st.p_frost_in_zone_95ci[1]
+        st.frost_in_zone_count, st.samples_run, st.p_frost_in_zone.unwrap_or(f64::NAN), st.p_frost_in_zone_95ci[0], st.p_frost_in_zone_95ci[1]
     );
+    if st.samples_refused > 0 {
+        h += &format!("<p class=\"caution\">{}</p>\n", escape(&not_run(st)));
+    }
     h += "<h2>Sensitivity</h2>\n<table>\n<tr><th>input</th><th>rank correlation with the frost margin</th><th>with the annual heat loss</th></tr>\n";
     let c = |v: Option<f64>| v.map_or("–".to_string(), |x| format!("{x:+.3}"));
     for s in &st.sensitivity {

@@ -137,8 +137,18 @@ pub fn design(u: &Uncertainty) -> Vec<Vec<f64>> {
         .collect()
 }
 
+/// The TOML value of sampled value `x` for a key whose nominal value is `nominal`: an integer
+/// key (e.g. a count of years) gets the nearest integer.
+fn value_like(nominal: Option<&toml::Value>, x: f64) -> toml::Value {
+    match nominal {
+        Some(toml::Value::Integer(_)) => toml::Value::Integer(x.round() as i64),
+        _ => toml::Value::Float(x),
+    }
+}
+
 /// Set the value at key path `path` of `doc` (the key must exist: validated).
 fn set_path(doc: &mut toml::Table, path: &str, x: f64) {
+    let x = value_like(lookup(doc, path), x);
     let parts: Vec<&str> = path.split('.').collect();
     let mut cur: &mut toml::Table = doc;
     for (n, part) in parts.iter().enumerate() {
@@ -148,7 +158,7 @@ fn set_path(doc: &mut toml::Table, path: &str, x: f64) {
         };
         let last = n + 1 == parts.len();
         if last && index.is_none() {
-            cur.insert(name.to_string(), toml::Value::Float(x));
+            cur.insert(name.to_string(), x);
             return;
         }
         let Some(v) = cur.get_mut(name) else { return };
@@ -160,7 +170,7 @@ fn set_path(doc: &mut toml::Table, path: &str, x: f64) {
             None => v,
         };
         if last {
-            *v = toml::Value::Float(x);
+            *v = x;
             return;
         }
         let Some(t) = v.as_table_mut() else { return };
@@ -269,17 +279,26 @@ pub fn run_samples(
             };
             let text = sample_text(case, u, &values[i])?;
             match parse_case(&case.file, &text) {
-                Err(e) if e.is_input() => r.error = Some(e.to_string()),
+                Err(e) if e.is_input() => r.error = Some(format!("refused: {}", refusal(&e))),
                 Err(e) => return Err(e),
                 Ok(mut c) => {
                     c.simulation.mesh = case.simulation.mesh;
-                    let run = run::run(&c, &mut |_| {})?;
-                    let h = run::headline(&c, &run);
-                    r.frost_margin_m = h.frost_margin_m;
-                    r.frost_depth_under_footing_m = h.frost_depth_under_footing_m;
-                    r.frost_depth_at_footing_face_m = h.frost_depth_at_footing_face_m;
-                    r.annual_heat_loss_kwh = h.annual_heat_loss_kwh;
-                    r.peak_heat_loss_w = h.peak_heat_loss_w;
+                    match run::run(&c, &mut |_| {}) {
+                        // A sample whose run stops on its own terms (e.g. frost at the domain's
+                        // bottom) is recorded, not the end of the other samples.
+                        Err(e) if e.is_input() => {
+                            r.error = Some(format!("failed: {}", refusal(&e)))
+                        }
+                        Err(e) => return Err(e),
+                        Ok(run) => {
+                            let h = run::headline(&c, &run);
+                            r.frost_margin_m = h.frost_margin_m;
+                            r.frost_depth_under_footing_m = h.frost_depth_under_footing_m;
+                            r.frost_depth_at_footing_face_m = h.frost_depth_at_footing_face_m;
+                            r.annual_heat_loss_kwh = h.annual_heat_loss_kwh;
+                            r.peak_heat_loss_w = h.peak_heat_loss_w;
+                        }
+                    }
                 }
             }
             r.run_s = t0.elapsed().as_secs_f64();
@@ -288,6 +307,16 @@ pub fn run_samples(
         })
         .collect();
     results.into_iter().collect()
+}
+
+/// Why the case rules refused a sample: its key(s) and message(s), without the position (which
+/// would point into the sample's rewritten text, not the user's file).
+fn refusal(e: &Error) -> String {
+    match e {
+        Error::Input { key, message, .. } => format!("{key}: {message}"),
+        Error::Inputs(v) => v.iter().map(refusal).collect::<Vec<_>>().join("; "),
+        e => e.to_string(),
+    }
 }
 
 /// Percentile `p` (0–100) of sorted values, linear between order statistics (Hyndman & Fan
@@ -425,8 +454,8 @@ pub struct Stats {
     pub peak_heat_loss_w: Option<Spread>,
     /// Samples with frost in the protected zone.
     pub frost_in_zone_count: usize,
-    /// Estimated probability of frost in the protected zone, k/n.
-    pub p_frost_in_zone: f64,
+    /// Estimated probability of frost in the protected zone, k/n (null: no sample ran).
+    pub p_frost_in_zone: Option<f64>,
     /// Its 95 % Wilson score interval (lower, upper).
     pub p_frost_in_zone_95ci: [f64; 2],
     /// Inputs by decreasing |rank correlation| with the margin.
@@ -474,7 +503,7 @@ impl Stats {
             annual_heat_loss_kwh: col(|r| r.annual_heat_loss_kwh),
             peak_heat_loss_w: col(|r| r.peak_heat_loss_w),
             frost_in_zone_count: k,
-            p_frost_in_zone: if n > 0 { k as f64 / n as f64 } else { f64::NAN },
+            p_frost_in_zone: (n > 0).then(|| k as f64 / n as f64),
             p_frost_in_zone_95ci: [lo, hi],
             sensitivity,
         }
