@@ -964,17 +964,7 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
         ),
     )
     .ok_or_else(|| Error::Output("no [uncertainty] design".into()))?;
-    files::remove_previous(&out)?;
-    let mut written = files::uncertainty::write(&out, &f, &samples)?;
-    written.extend(frostline::plot::uncertainty_plots(&out, &f, &samples)?);
-    written.push(files::write_atomic(
-        &out,
-        "report.html",
-        report::uncertainty::html(&out, &f)?.as_bytes(),
-    )?);
-    written.push(files::write_manifest(&out, &written, false)?);
-    say!("{}", report::uncertainty::text(&f));
-    print_files(&out, &written);
+    write_uncertainty(&out, &f, &samples)?;
     // Nothing to estimate from: every sample refused or failed (a shard may be empty by design).
     if f.stats.samples_run == 0 && shard.count == 1 {
         return Ok(vec![
@@ -982,6 +972,27 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
         ]);
     }
     Ok(Vec::new())
+}
+
+/// The files of an uncertainty run or merge (samples, statistics, plots, report, manifest) and
+/// the printed summary.
+fn write_uncertainty(
+    out: &Path,
+    f: &files::uncertainty::UncertaintyFile,
+    samples: &[frostline::uncertainty::SampleResult],
+) -> Result<(), Error> {
+    files::remove_previous(out)?;
+    let mut written = files::uncertainty::write(out, f, samples)?;
+    written.extend(frostline::plot::uncertainty_plots(out, f, samples)?);
+    written.push(files::write_atomic(
+        out,
+        "report.html",
+        report::uncertainty::html(out, f)?.as_bytes(),
+    )?);
+    written.push(files::write_manifest(out, &written, false)?);
+    say!("{}", report::uncertainty::text(f));
+    print_files(out, &written);
+    Ok(())
 }
 
 fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
@@ -1029,29 +1040,17 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
         )));
     }
     let keys: Vec<String> = first.design.inputs.iter().map(|i| i.key.clone()).collect();
-    let mut t: Vec<f64> = samples.iter().map(|s| s.run_s).collect();
-    t.sort_by(f64::total_cmp);
     let f = files::uncertainty::UncertaintyFile {
         stats: frostline::uncertainty::Stats::of(&samples, &keys),
         shard: frostline::uncertainty::Shard::WHOLE,
-        median_sample_s: t.get(t.len() / 2).copied().unwrap_or(0.0),
+        median_sample_s: files::uncertainty::median_run_s(&samples),
         wall_time_s: start.elapsed().as_secs_f64()
             + parts.iter().map(|p| p.wall_time_s).sum::<f64>(),
         threads: parts.iter().map(|p| p.threads).max().unwrap_or(1),
         ..first.clone()
     };
     let _lock = files::check_writable(&a.out)?;
-    files::remove_previous(&a.out)?;
-    let mut written = files::uncertainty::write(&a.out, &f, &samples)?;
-    written.extend(frostline::plot::uncertainty_plots(&a.out, &f, &samples)?);
-    written.push(files::write_atomic(
-        &a.out,
-        "report.html",
-        report::uncertainty::html(&a.out, &f)?.as_bytes(),
-    )?);
-    written.push(files::write_manifest(&a.out, &written, false)?);
-    say!("{}", report::uncertainty::text(&f));
-    print_files(&a.out, &written);
+    write_uncertainty(&a.out, &f, &samples)?;
     Ok(Vec::new())
 }
 

@@ -69,14 +69,19 @@ pub fn uncertainty(c: &Ctx, u: &S<RawUncertainty>) -> Result<Uncertainty> {
     })
 }
 
+/// One part of a key path: `name` or `name[index]` (None: malformed index).
+pub fn path_part(part: &str) -> Option<(&str, Option<usize>)> {
+    match part.split_once('[') {
+        Some((name, rest)) => Some((name, Some(rest.strip_suffix(']')?.parse::<usize>().ok()?))),
+        None => Some((part, None)),
+    }
+}
+
 /// The value at a key path (`table.key`, `array[index].key`) of a TOML document.
 pub fn lookup<'a>(doc: &'a toml::Table, path: &str) -> Option<&'a toml::Value> {
     let mut cur: Option<&toml::Value> = None;
     for (n, part) in path.split('.').enumerate() {
-        let (name, index) = match part.split_once('[') {
-            Some((name, rest)) => (name, Some(rest.strip_suffix(']')?.parse::<usize>().ok()?)),
-            None => (part, None),
-        };
+        let (name, index) = path_part(part)?;
         let v = if n == 0 {
             doc.get(name)?
         } else {

@@ -170,6 +170,17 @@ pub fn write(dir: &Path, f: &UncertaintyFile, samples: &[SampleResult]) -> Resul
     ])
 }
 
+/// Median wall time of the samples that ran, s (0 when none ran).
+pub fn median_run_s(samples: &[SampleResult]) -> f64 {
+    let mut t: Vec<f64> = samples
+        .iter()
+        .filter(|s| s.error.is_none())
+        .map(|s| s.run_s)
+        .collect();
+    t.sort_by(f64::total_cmp);
+    t.get(t.len() / 2).copied().unwrap_or(0.0)
+}
+
 /// The file of a run of `case`'s samples.
 pub fn new_file(
     case: &Case,
@@ -179,12 +190,6 @@ pub fn new_file(
 ) -> Option<UncertaintyFile> {
     let design = case.uncertainty.clone()?;
     let keys: Vec<String> = design.inputs.iter().map(|i| i.key.clone()).collect();
-    let mut t: Vec<f64> = samples
-        .iter()
-        .filter(|s| s.error.is_none())
-        .map(|s| s.run_s)
-        .collect();
-    t.sort_by(f64::total_cmp);
     Some(UncertaintyFile {
         case_name: case.name.clone(),
         caution: CAUTION.into(),
@@ -194,7 +199,7 @@ pub fn new_file(
         mesh: mesh.into(),
         shard,
         notes: notes(),
-        median_sample_s: t.get(t.len() / 2).copied().unwrap_or(0.0),
+        median_sample_s: median_run_s(samples),
         wall_time_s,
         threads,
     })

@@ -378,9 +378,9 @@ fn section_view(f: &ThreeDFile) -> View {
 }
 
 /// The plan's and the perimeter's lengths of `f` in feet (the sections' slices stay in metres:
-/// their plots scale as they draw). 1 ft = 0.3048 m exactly.
+/// their plots scale as they draw), by the outputs' conversion ([`crate::files::us::figure`]).
 fn in_feet(f: &ThreeDFile) -> ThreeDFile {
-    let ft = |m: f64| m / 0.3048;
+    let ft = |m: f64| crate::files::us::figure(Units::Us, "m", m, 0).1;
     let mut g = f.clone();
     g.a_m = ft(f.a_m);
     g.b_m = ft(f.b_m);

@@ -43,10 +43,12 @@ fn shown(f: &SizingFile) -> Vec<&Design> {
     v
 }
 
-/// The sizing's lengths in feet and energies in kBtu (1 ft = 0.3048 m; 1 kWh = 3.412 142 kBtu,
-/// NIST SP 811 B.9), for the plot of a run in US units.
+/// The sizing's lengths in feet and energies in kBtu, for the plot of a run in US units, by the
+/// outputs' conversion ([`crate::files::us::figure`]).
 fn in_us(f: &SizingFile) -> SizingFile {
-    let (ft, kbtu) = (|m: f64| m / 0.3048, |kwh: f64| kwh * 3.412_142);
+    use crate::files::us::{figure, Units};
+    let ft = |m: f64| figure(Units::Us, "m", m, 0).1;
+    let kbtu = |kwh: f64| figure(Units::Us, "kWh", kwh, 0).1;
     let conv = |d: &Design| Design {
         values: d.values.iter().map(|&v| ft(v)).collect(),
         frost_margin_m: ft(d.frost_margin_m),

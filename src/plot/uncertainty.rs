@@ -2,7 +2,7 @@
 //! histogram over the samples and its empirical distribution function, the protected zone's edge
 //! at 0 marked) and `uncertainty_tornado.png/svg` (each input's rank correlation with the frost
 //! margin and with the annual heat loss, largest first).
-use super::charts::SIZE;
+use super::charts::{legend, SIZE};
 use super::{out_err, register_fonts, Target};
 use crate::error::Result;
 use crate::files::uncertainty::UncertaintyFile;
@@ -77,13 +77,7 @@ fn draw_margin<DB: DrawingBackend>(
     .map_err(out_err)?
     .label("margin 0: frost reaches the protected zone")
     .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], ZONE.stroke_width(2)));
-    c.configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 12))
-        .position(SeriesLabelPosition::UpperRight)
-        .draw()
-        .map_err(out_err)?;
+    legend(&mut c, SeriesLabelPosition::UpperRight)?;
     let mut sorted = margins.to_vec();
     sorted.sort_by(f64::total_cmp);
     let n = sorted.len().max(1) as f64;
@@ -186,13 +180,7 @@ fn draw_tornado<DB: DrawingBackend>(
         .map_err(out_err)?
         .label("with the annual heat loss")
         .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 18, y + 5)], HEAT.filled()));
-    c.configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 12))
-        .position(SeriesLabelPosition::LowerRight)
-        .draw()
-        .map_err(out_err)?;
+    legend(&mut c, SeriesLabelPosition::LowerRight)?;
     root.present().map_err(out_err)
 }
 

@@ -391,25 +391,33 @@ fn properties(m: &[files::summary::MaterialInfo]) -> String {
     if m.is_empty() {
         return String::new();
     }
-    // In US units: k in Btu·in/(h·ft²·°F) (1 = 0.144 227 9 W/(m·K)), C in Btu/(ft³·°F)
-    // (1 = 67 066.11 J/(m³·K)), L in Btu/ft³ (1 = 37 258.95 J/m³), NIST SP 811 B.9; the
-    // interval in °F.
+    // In US units through the outputs' conversion of keys (files::us::convert: k in
+    // Btu·in/(h·ft²·°F), C in Btu/(ft³·°F), L in Btu/ft³, NIST SP 811 B.9); the interval in °F.
     let us = super::current() == crate::files::us::Units::Us;
     let (k_u, c_u, l_u, t_u) = if us {
         (
-            ("Btu·in/(h·ft²·°F)", 0.144_227_9, 3),
-            ("Btu/(ft³·°F)", 67_066.11, 2),
-            ("Btu/ft³", 37_258.95, 0),
+            ("Btu·in/(h·ft²·°F)", "k_w_per_mk", 3),
+            ("Btu/(ft³·°F)", "c_j_per_m3k", 2),
+            ("Btu/ft³", "l_j_per_m3", 0),
             "°F",
         )
     } else {
         (
-            ("W/(m·K)", 1.0, 3),
-            ("MJ/(m³·K)", 1e6, 3),
-            ("MJ/m³", 1e6, 1),
+            ("W/(m·K)", "", 3),
+            ("MJ/(m³·K)", "", 3),
+            ("MJ/m³", "", 1),
             "°C",
         )
     };
+    // SI figures as shown: MJ for the capacities, the key's US value in US units.
+    let shown =
+        |(_, key, _): (&str, &str, usize), v: f64, mega: bool| match crate::files::us::convert(
+            key, v,
+        ) {
+            Some((_, x)) if us => x,
+            _ if mega => v / 1e6,
+            _ => v,
+        };
     let temp = |c: f64| if us { c * 1.8 + 32.0 } else { c };
     let mut h = format!(
         "<h2 id=\"properties\">Properties used</h2>\n<p>As derived from the case (library soils, \
@@ -435,11 +443,11 @@ fn properties(m: &[files::summary::MaterialInfo]) -> String {
              <td class=\"n\">{}</td><td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td></tr>\n",
             escape(&x.role),
             escape(&x.name),
-            f(x.k_unfrozen_w_per_mk / k_u.1, k_u.2),
-            f(x.k_frozen_w_per_mk / k_u.1, k_u.2),
-            f(x.c_unfrozen_j_per_m3k / c_u.1, c_u.2),
-            f(x.c_frozen_j_per_m3k / c_u.1, c_u.2),
-            f(x.latent_heat_j_per_m3 / l_u.1, l_u.2),
+            f(shown(k_u, x.k_unfrozen_w_per_mk, false), k_u.2),
+            f(shown(k_u, x.k_frozen_w_per_mk, false), k_u.2),
+            f(shown(c_u, x.c_unfrozen_j_per_m3k, true), c_u.2),
+            f(shown(c_u, x.c_frozen_j_per_m3k, true), c_u.2),
+            f(shown(l_u, x.latent_heat_j_per_m3, true), l_u.2),
             escape(&interval)
         ));
     }

@@ -23,7 +23,7 @@
 //!   sampling for monotone responses, McKay et al. 1979); the sensitivity ranking is Spearman's
 //!   rank correlation of each input with the frost margin and with the annual heat loss (ties by
 //!   mid-ranks).
-use crate::case::uncertainty::lookup;
+use crate::case::uncertainty::{lookup, path_part};
 use crate::case::{parse_case, Case, Distribution, Uncertainty};
 use crate::error::{Error, Result};
 use crate::run;
@@ -152,9 +152,8 @@ fn set_path(doc: &mut toml::Table, path: &str, x: f64) {
     let parts: Vec<&str> = path.split('.').collect();
     let mut cur: &mut toml::Table = doc;
     for (n, part) in parts.iter().enumerate() {
-        let (name, index) = match part.split_once('[') {
-            Some((name, rest)) => (name, rest.trim_end_matches(']').parse::<usize>().ok()),
-            None => (*part, None),
+        let Some((name, index)) = path_part(part) else {
+            return;
         };
         let last = n + 1 == parts.len();
         if last && index.is_none() {
