@@ -965,13 +965,20 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     )
     .ok_or_else(|| Error::Output("no [uncertainty] design".into()))?;
     write_uncertainty(&out, &f, &samples)?;
-    // Nothing to estimate from: every sample refused or failed (a shard may be empty by design).
-    if f.stats.samples_run == 0 && shard.count == 1 {
-        return Ok(vec![
-            "no sample ran: every sample was refused by the case rules or failed (samples.csv, refused_because)".into(),
-        ]);
+    Ok(uncertainty_unmet(&f.stats, shard.count == 1))
+}
+
+/// The criteria an uncertainty run or merge did not meet: no sample ran (for the whole design: a
+/// shard may be empty by design), samples not periodic.
+fn uncertainty_unmet(st: &frostline::uncertainty::Stats, whole: bool) -> Vec<String> {
+    let mut unmet = Vec::new();
+    if st.samples_run == 0 && whole {
+        unmet.push("no sample ran: every sample was refused by the case rules or failed (samples.csv, refused_because)".into());
     }
-    Ok(Vec::new())
+    if st.samples_not_periodic > 0 {
+        unmet.push(report::uncertainty::not_periodic(st));
+    }
+    unmet
 }
 
 /// The files of an uncertainty run or merge (samples, statistics, plots, report, manifest) and
@@ -1039,9 +1046,8 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
             samples.len()
         )));
     }
-    let keys: Vec<String> = first.design.inputs.iter().map(|i| i.key.clone()).collect();
     let f = files::uncertainty::UncertaintyFile {
-        stats: frostline::uncertainty::Stats::of(&samples, &keys),
+        stats: frostline::uncertainty::Stats::of(&samples, &first.design.inputs),
         shard: frostline::uncertainty::Shard::WHOLE,
         median_sample_s: files::uncertainty::median_run_s(&samples),
         wall_time_s: start.elapsed().as_secs_f64()
@@ -1051,7 +1057,7 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
     };
     let _lock = files::check_writable(&a.out)?;
     write_uncertainty(&a.out, &f, &samples)?;
-    Ok(Vec::new())
+    Ok(uncertainty_unmet(&f.stats, true))
 }
 
 /// List the files written in `dir`, by name.

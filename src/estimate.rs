@@ -133,12 +133,16 @@ fn floor_resistance_and_edges(case: &Case) -> (f64, Vec<(methods::EdgeInsulation
 /// Open-ground frost by the published formulas for the top stratum: (surface freezing index
 /// °C·d, freezing season d, Stefan depth m, modified-Berggren depth m). The surface index is the
 /// n-factor times the air index of the design winter (or of the sinusoid without one), or of the
-/// coldest winter of a series.
+/// coldest winter of a series (or of its chosen season).
 fn frost_depths(case: &Case) -> (f64, f64, f64, f64) {
     let soil = &case.strata[0].material;
     let (fi_air, season) =
         methods::sinusoid_freezing_index(case.climate.mean_c, design_amplitude(case));
     let fi_air = match &case.climate.source {
+        ClimateSource::Series(s) if case.climate.season.is_some() => {
+            crate::physics::climate::season_freezing_index(s, case.climate.season.unwrap_or(0))
+                .unwrap_or(0.0)
+        }
         ClimateSource::Series(s) => crate::physics::climate::freezing_indices(s)
             .iter()
             .map(|w| w.value)

@@ -39,6 +39,21 @@ fn spread(dir: &Path, name: &str, src: &str, extra: &[&str]) -> PathBuf {
     out
 }
 
+/// `frostline run CASE --out OUT --mesh coarse` (no plots): its summary.json.
+fn single_run(case: &Path, out: &Path) -> Value {
+    run_ok(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+        "--quiet".as_ref(),
+        "--no-plots".as_ref(),
+    ]);
+    read_json(&out.join("summary.json"))
+}
+
 /// samples.csv without its wall-time column (the only figure that differs between runs).
 fn samples_without_times(dir: &Path) -> String {
     let text = std::fs::read_to_string(dir.join("samples.csv")).unwrap();
@@ -69,18 +84,7 @@ fn no_spread_reproduces_the_single_run() {
     );
     let out = spread(&dir, "zero", &src, &[]);
     let case = dir.join("zero.toml");
-    let single = dir.join("single");
-    run_ok(&[
-        "run".as_ref(),
-        case.as_os_str(),
-        "--out".as_ref(),
-        single.as_os_str(),
-        "--mesh".as_ref(),
-        "coarse".as_ref(),
-        "--quiet".as_ref(),
-        "--no-plots".as_ref(),
-    ]);
-    let s = read_json(&single.join("summary.json"));
+    let s = single_run(&case, &dir.join("single"));
     let u = read_json(&out.join("uncertainty.json"));
     let st = &u["stats"];
     for (k, sk) in [
@@ -321,4 +325,131 @@ fn failed_samples_are_recorded_and_bound_p() {
     assert_eq!(st["samples_run"].as_u64().unwrap() as usize, 8 - failed);
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("counting the") && report.contains("as frost in the zone"));
+}
+
+/// The first four calendar years of the invented Kettle Hollow series (complete seasons 1990,
+/// 1991, 1992) beside the series demo case (at most 30 spin-up years: the fitted normal year of
+/// this house needs 14), in `dir`; returns the case
+/// text (its series `short.csv`).
+fn short_series_case(dir: &Path) -> String {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let full = std::fs::read_to_string(root.join("climate/kettle-hollow.csv")).unwrap();
+    let short: String = full
+        .lines()
+        .take_while(|l| !l.starts_with("1994-"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    std::fs::write(dir.join("short.csv"), short).unwrap();
+    let src = std::fs::read_to_string(root.join("examples/kettle-hollow-series.toml")).unwrap();
+    assert!(src.contains("series = \"../climate/kettle-hollow.csv\""));
+    src.replace("../climate/kettle-hollow.csv", "short.csv")
+        .replace("max_spin_up_years = 10", "max_spin_up_years = 30")
+}
+
+/// Freezing index of the season from 1 July `y`, by ISO 13793 Annex A's definition computed here
+/// on its own: the largest rise over the season of the cumulative sum of (0 °C − daily mean).
+fn iso13793_freezing_index(csv: &str, y: i64) -> f64 {
+    let (from, to) = (format!("{y}-07-01"), format!("{}-06-30", y + 1));
+    let days: Vec<f64> = csv
+        .lines()
+        .filter(|l| l.starts_with(char::is_numeric))
+        .filter_map(|l| l.split_once(','))
+        .filter(|(d, _)| *d >= from.as_str() && *d <= to.as_str())
+        .map(|(_, t)| t.trim().parse::<f64>().unwrap())
+        .collect();
+    assert_eq!(days.len(), if (y + 1) % 4 == 0 { 366 } else { 365 });
+    let mut best = 0.0f64;
+    for i in 0..days.len() {
+        let mut s = 0.0;
+        for t in &days[i..] {
+            s -= t;
+            best = best.max(s);
+        }
+    }
+    best
+}
+
+/// The winter drawn from a measured series (`climate.season`, distribution `seasons`): with as
+/// many samples as seasons a one-input Latin hypercube runs each season exactly once (McKay et
+/// al. 1979: one sample per equal-probability stratum); a sample equals `frostline run` of the
+/// case with that `season` to the last digit; that run's freezing index is n × the season's index
+/// by ISO 13793 Annex A's definition; the season is ranked by its freezing index; a season
+/// outside the series, a season without a series and the seasons distribution on another key are
+/// refused.
+#[test]
+fn winter_drawn_from_the_series() {
+    let dir = scratch("spread-seasons");
+    let case = short_series_case(&dir);
+    let src = format!(
+        "{case}\n[uncertainty]\nsamples = 3\nseed = 2\n[[uncertainty.input]]\nkey = \"climate.season\"\ndistribution = \"seasons\"\n"
+    );
+    let out = spread(&dir, "seasons", &src, &[]);
+    let text = std::fs::read_to_string(out.join("samples.csv")).unwrap();
+    let head: Vec<&str> = text.lines().next().unwrap().split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    let rows: Vec<Vec<String>> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').map(String::from).collect())
+        .collect();
+    let mut seasons: Vec<i64> = rows
+        .iter()
+        .map(|r| r[col("climate.season")].parse().unwrap())
+        .collect();
+    seasons.sort();
+    assert_eq!(seasons, [1990, 1991, 1992]);
+    assert!(rows.iter().all(|r| r[col("periodic")] == "true"));
+    let u = read_json(&out.join("uncertainty.json"));
+    assert_eq!(
+        u["stats"]["sensitivity"][0]["ranked_by"].as_str(),
+        Some("freezing index")
+    );
+
+    // The sample of season 1991 against the single run of that season.
+    let row = rows
+        .iter()
+        .find(|r| r[col("climate.season")] == "1991")
+        .unwrap();
+    let one = dir.join("one.toml");
+    std::fs::write(
+        &one,
+        case.replace(
+            "series = \"short.csv\"",
+            "series = \"short.csv\"\nseason = 1991",
+        ),
+    )
+    .unwrap();
+    let s = single_run(&one, &dir.join("single"));
+    for k in ["frost_margin_m", "annual_heat_loss_kwh", "peak_heat_loss_w"] {
+        let sample: f64 = row[col(k)].parse().unwrap();
+        assert_eq!(sample, s[k].as_f64().unwrap(), "{k}");
+    }
+    assert_eq!(s["climate"]["season"], 1991);
+    let csv = std::fs::read_to_string(dir.join("short.csv")).unwrap();
+    let fi = 0.9 * iso13793_freezing_index(&csv, 1991);
+    let got = s["cross_check"]["freezing_index_c_days"].as_f64().unwrap();
+    assert!((got - fi).abs() < 1e-9 * fi, "{got} {fi}");
+
+    let bad = |text: &str, want: &str| {
+        let e = parse_case(dir.join("bad.toml").to_str().unwrap(), text)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains(want), "{want}: {e}");
+    };
+    bad(
+        &case.replace("series = \"short.csv\"", "series = \"short.csv\"\nseason = 1993"),
+        "climate.season: 1993 is not a complete season of the series (1 July 1993 to 30 June 1994); allowed: 1990 to 1992",
+    );
+    bad(
+        &with_table("[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.season\"\ndistribution = \"seasons\"\n"),
+        "climate.season needs a measured series",
+    );
+    bad(
+        &with_table("[uncertainty]\n[[uncertainty.input]]\nkey = \"climate.mean_c\"\ndistribution = \"seasons\"\n"),
+        "\"climate.mean_c\" cannot take the seasons distribution",
+    );
+    bad(
+        &demo().replace("[climate]", "[climate]\nseason = 1991"),
+        "climate.season: only used with series",
+    );
 }

@@ -13,6 +13,7 @@ struct Source {
     coldest_day: f64,
     source: ClimateSource,
     design_winter: Option<DesignWinter>,
+    season: Option<i64>,
 }
 
 /// `[climate]`.
@@ -25,6 +26,13 @@ pub fn climate(c: &Ctx, cl: &RawClimate) -> Result<Climate> {
         3,
     )?;
     let s = source(c, cl, gap)?;
+    if cl.series.is_none() {
+        c.unused(
+            &cl.season,
+            "climate.season",
+            "only used with series (one season of a measured series)",
+        )?;
+    }
     if cl.design_from_series.is_none() {
         c.unused(
             &cl.return_period_years,
@@ -38,6 +46,7 @@ pub fn climate(c: &Ctx, cl: &RawClimate) -> Result<Climate> {
         coldest_day: s.coldest_day,
         source: s.source,
         design_winter: s.design_winter,
+        season: s.season,
         r_se: c.opt(
             &cl.surface_resistance_m2k_per_w,
             "climate.surface_resistance_m2k_per_w",
@@ -109,7 +118,8 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
     }
     let coldest_day = d.clamp(1.0, 365.0);
     if cl.series.is_some() {
-        if pc::seasons(series.first_day, series.values.len()).is_empty() {
+        let seasons = pc::seasons(series.first_day, series.values.len());
+        if seasons.is_empty() {
             return Err(c.err(
                 v.span(),
                 key,
@@ -117,12 +127,31 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
                 "no complete season (1 July to 30 June) in the series; allowed: at least one",
             ));
         }
+        let season = match &cl.season {
+            Some(y) if !seasons.iter().any(|s| s.0 == *y.get_ref()) => {
+                let (a, b) = (seasons[0].0, seasons[seasons.len() - 1].0);
+                return Err(c.err(
+                    y.span(),
+                    "climate.season",
+                    InputKind::OutOfRange,
+                    format!(
+                        "{} is not a complete season of the series (1 July {} to 30 June {}); allowed: {a} to {b} (the year of the season's 1 July)",
+                        y.get_ref(),
+                        y.get_ref(),
+                        y.get_ref() + 1
+                    ),
+                ));
+            }
+            Some(y) => Some(*y.get_ref()),
+            None => None,
+        };
         return Ok(Source {
             mean_c: m,
             amplitude_k: a,
             coldest_day,
             source: ClimateSource::Series(series),
             design_winter: None,
+            season,
         });
     }
     let design = design_year(c, cl, v, key, &series)?;
@@ -140,6 +169,7 @@ fn source(c: &Ctx, cl: &RawClimate, max_gap_days: usize) -> Result<Source> {
         coldest_day,
         source: ClimateSource::Sinusoid,
         design_winter: Some(design_winter),
+        season: None,
     })
 }
 
@@ -213,6 +243,7 @@ fn sinusoid(c: &Ctx, cl: &RawClimate) -> Result<Source> {
         },
         source: ClimateSource::Sinusoid,
         design_winter,
+        season: None,
     })
 }
 

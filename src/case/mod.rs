@@ -231,7 +231,7 @@ fn validate(c: &Ctx, raw: RawCase) -> Result<Case> {
         _ => None,
     };
     let spread = match &raw.uncertainty {
-        Some(u) => g.take(uncertainty::uncertainty(c, u)).map(Some),
+        Some(u) => g.take(uncertainty::uncertainty(c, u, &climate)).map(Some),
         None => Some(None),
     };
     g.finish()?;

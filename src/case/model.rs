@@ -274,6 +274,9 @@ pub struct Climate {
     pub source: ClimateSource,
     /// The design winter run once after the spin-up on the normal climate, if any.
     pub design_winter: Option<DesignWinter>,
+    /// One season of a measured series (named by the year of its 1 July), run once after a
+    /// spin-up on the series' normal year (its fitted sinusoid), instead of every season.
+    pub season: Option<i64>,
     /// n-factor for freezing (surface / air freezing index). Default 1.
     pub n_freezing: f64,
     /// n-factor for thawing. Default 1.
@@ -545,7 +548,7 @@ fn upper_bound<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> 
 }
 
 /// A distribution of an input, optionally truncated to [min, max].
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 #[serde(tag = "kind", rename_all = "snake_case")]
 pub enum Distribution {
     /// Normal (mean, standard deviation), truncated to [min, max] (±∞ when not given).
@@ -590,6 +593,37 @@ pub enum Distribution {
         /// Upper end.
         max: f64,
     },
+    /// One complete season of the case's measured series (`climate.season`), each season
+    /// equally likely: the winter drawn from the record.
+    Seasons {
+        /// The seasons, each named by the year of its 1 July.
+        years: Vec<i64>,
+        /// Each season's air freezing index, °C·d (what the sensitivity ranking orders the
+        /// seasons by).
+        freezing_index_c_days: Vec<f64>,
+    },
+}
+
+impl Distribution {
+    /// The value the sensitivity ranking uses for sampled value `x`: `x` itself, or for a season
+    /// its air freezing index (a season's year says nothing about its severity).
+    pub fn rank_value(&self, x: f64) -> f64 {
+        match self {
+            Distribution::Seasons {
+                years,
+                freezing_index_c_days,
+            } => years
+                .iter()
+                .position(|&y| y as f64 == x)
+                .map_or(f64::NAN, |k| freezing_index_c_days[k]),
+            _ => x,
+        }
+    }
+
+    /// Whether sampled values are whole numbers (written to the case as integers).
+    pub fn is_integer(&self) -> bool {
+        matches!(self, Distribution::Seasons { .. })
+    }
 }
 
 impl Case {

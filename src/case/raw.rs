@@ -303,6 +303,7 @@ pub struct RawClimate {
     pub series: Option<S<String>>,
     pub design_from_series: Option<S<String>>,
     pub return_period_years: Option<S<f64>>,
+    pub season: Option<S<i64>>,
     pub fit: Option<S<String>>,
     pub max_gap_days: Option<S<i64>>,
     pub surface_resistance_m2k_per_w: Option<S<f64>>,

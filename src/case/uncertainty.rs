@@ -2,7 +2,7 @@
 //! `[[uncertainty.input]]` a key of the case (given in the file, with a number) and a
 //! distribution with sound parameters, in the key's own unit.
 use super::ctx::Ctx;
-use super::model::{Distribution, UncertainInput, Uncertainty};
+use super::model::{Climate, ClimateSource, Distribution, UncertainInput, Uncertainty};
 use super::raw::{RawInput, RawUncertainty, S};
 use crate::error::{InputKind, Result};
 
@@ -10,7 +10,7 @@ use crate::error::{InputKind, Result};
 pub const MAX_SAMPLES: i64 = 100_000;
 
 /// `[uncertainty]`.
-pub fn uncertainty(c: &Ctx, u: &S<RawUncertainty>) -> Result<Uncertainty> {
+pub fn uncertainty(c: &Ctx, u: &S<RawUncertainty>, climate: &Climate) -> Result<Uncertainty> {
     let r = u.get_ref();
     let samples = match &r.samples {
         Some(n) if !(2..=MAX_SAMPLES).contains(n.get_ref()) => {
@@ -51,7 +51,7 @@ pub fn uncertainty(c: &Ctx, u: &S<RawUncertainty>) -> Result<Uncertainty> {
     let mut inputs = Vec::new();
     for (k, i) in r.input.iter().enumerate() {
         let key = format!("uncertainty.input[{k}]");
-        let input = input(c, i, &key, &doc)?;
+        let input = input(c, i, &key, &doc, climate)?;
         if inputs.iter().any(|x: &UncertainInput| x.key == input.key) {
             return Err(c.err(
                 i.get_ref().key.span(),
@@ -96,9 +96,18 @@ pub fn lookup<'a>(doc: &'a toml::Table, path: &str) -> Option<&'a toml::Value> {
 }
 
 /// One `[[uncertainty.input]]`.
-fn input(c: &Ctx, i: &S<RawInput>, key: &str, doc: &toml::Table) -> Result<UncertainInput> {
+fn input(
+    c: &Ctx,
+    i: &S<RawInput>,
+    key: &str,
+    doc: &toml::Table,
+    climate: &Climate,
+) -> Result<UncertainInput> {
     let r = i.get_ref();
     let path = r.key.get_ref().trim().to_string();
+    if r.distribution.get_ref() == "seasons" || path == "climate.season" {
+        return seasons(c, i, key, &path, climate);
+    }
     let nominal =
         lookup(doc, &path).and_then(|v| v.as_float().or_else(|| v.as_integer().map(|x| x as f64)));
     if nominal.is_none() || path.starts_with("uncertainty") || path.starts_with("sizing") {
@@ -209,7 +218,7 @@ fn input(c: &Ctx, i: &S<RawInput>, key: &str, doc: &toml::Table) -> Result<Uncer
                 &format!("{key}.distribution"),
                 InputKind::UnknownName,
                 format!(
-                    "\"{other}\" is not a distribution; allowed: normal, lognormal, uniform, triangular"
+                    "\"{other}\" is not a distribution; allowed: normal, lognormal, uniform, triangular (or seasons, with key climate.season)"
                 ),
             ))
         }
@@ -217,5 +226,81 @@ fn input(c: &Ctx, i: &S<RawInput>, key: &str, doc: &toml::Table) -> Result<Uncer
     Ok(UncertainInput {
         key: path,
         distribution,
+    })
+}
+
+/// A `[[uncertainty.input]]` drawing the winter from the measured series: key `climate.season`,
+/// distribution `seasons`, the case's climate a `series`; every complete season equally likely.
+fn seasons(
+    c: &Ctx,
+    i: &S<RawInput>,
+    key: &str,
+    path: &str,
+    climate: &Climate,
+) -> Result<UncertainInput> {
+    let r = i.get_ref();
+    if path != "climate.season" {
+        return Err(c.err(
+            r.key.span(),
+            &format!("{key}.key"),
+            InputKind::Conflict,
+            format!("\"{path}\" cannot take the seasons distribution; allowed: key = \"climate.season\""),
+        ));
+    }
+    if r.distribution.get_ref() != "seasons" {
+        return Err(c.err(
+            r.distribution.span(),
+            &format!("{key}.distribution"),
+            InputKind::Conflict,
+            format!(
+                "\"{}\" for climate.season; allowed: \"seasons\" (each complete season of the series equally likely)",
+                r.distribution.get_ref()
+            ),
+        ));
+    }
+    for (v, name) in [
+        (&r.mean, "mean"),
+        (&r.sd, "sd"),
+        (&r.min, "min"),
+        (&r.max, "max"),
+        (&r.mode, "mode"),
+    ] {
+        if let Some(v) = v {
+            return Err(c.err(
+                v.span(),
+                &format!("{key}.{name}"),
+                InputKind::Conflict,
+                "not used; remove it (seasons distribution: the series' complete seasons, equally likely)",
+            ));
+        }
+    }
+    let series =
+        match &climate.source {
+            ClimateSource::Series(s) => s,
+            ClimateSource::Sinusoid => return Err(c.err(
+                r.key.span(),
+                &format!("{key}.key"),
+                InputKind::Conflict,
+                "climate.season needs a measured series; allowed: [climate] series = \"file.csv\"",
+            )),
+        };
+    let fi = crate::physics::climate::freezing_indices(series);
+    if fi.len() < 2 {
+        return Err(c.err(
+            r.key.span(),
+            &format!("{key}.key"),
+            InputKind::OutOfRange,
+            format!(
+                "the series has {} complete season(s); allowed: at least 2 to draw from",
+                fi.len()
+            ),
+        ));
+    }
+    Ok(UncertainInput {
+        key: path.into(),
+        distribution: Distribution::Seasons {
+            years: fi.iter().map(|w| w.winter).collect(),
+            freezing_index_c_days: fi.iter().map(|w| w.value).collect(),
+        },
     })
 }

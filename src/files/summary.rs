@@ -82,6 +82,7 @@ pub const HEAT_DEFINITION: &str = "ground heat loss = the heat from the indoor a
 /// What the reported periods are, by climate.
 pub fn periods(case: &Case) -> &'static str {
     match (&case.climate.source, &case.climate.design_winter) {
+        (ClimateSource::Series(_), _) if case.climate.season.is_some() => "a spin-up on the series' normal year (its fitted sinusoid) to a periodic year, then the chosen measured season once: frost figures and the peak heat loss from that season, annual and monthly heat loss from the normal year",
         (ClimateSource::Series(_), _) => "a measured series run season by season after a spin-up on its first season; frost and heat figures from the worst season (least frost margin, then deepest open-ground frost)",
         (_, Some(_)) => "a spin-up on the normal climate to a periodic year, then the design winter once: frost figures and the peak heat loss from the design winter's year, annual and monthly heat loss from the periodic normal year",
         _ => "a spin-up on the sinusoidal year to a periodic year, which is reported",
@@ -91,6 +92,7 @@ pub fn periods(case: &Case) -> &'static str {
 /// The spin-up criterion in words.
 pub fn spin_up_criterion(case: &Case) -> String {
     let heat = match case.climate.source {
+        ClimateSource::Series(_) if case.climate.season.is_some() => "the normal year's heat loss is within 0.5 % of the periodic year's by the periodicity estimate",
         ClimateSource::Series(_) => "the season's heat loss changed less than 0.5 % from the previous season's",
         ClimateSource::Sinusoid => "the year's heat loss is within 0.5 % of the periodic year's by the periodicity estimate",
     };
@@ -123,6 +125,9 @@ pub struct ClimateInfo {
     pub n_factor_thawing: f64,
     /// Snow depth per calendar month, m.
     pub snow_depth_m: [f64; 12],
+    /// The measured season run (the year of its 1 July), when one season of a series was chosen.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub season: Option<i64>,
 }
 
 /// A heated basement's results (ISO 13370 definitions).
@@ -479,6 +484,9 @@ impl Summary {
 fn climate_info(case: &Case) -> ClimateInfo {
     let cl = &case.climate;
     let kind = match (&cl.source, &cl.design_winter) {
+        (ClimateSource::Series(_), _) if cl.season.is_some() => {
+            "normal sinusoid of a series with one of its measured seasons"
+        }
         (ClimateSource::Series(_), _) => "measured series",
         (_, Some(d)) if d.from_series.is_some() => {
             "normal sinusoid of a series with its return-period design winter"
@@ -494,6 +502,7 @@ fn climate_info(case: &Case) -> ClimateInfo {
         n_factor_freezing: cl.n_freezing,
         n_factor_thawing: cl.n_thawing,
         snow_depth_m: cl.snow_depth_m,
+        season: cl.season,
     }
 }
 

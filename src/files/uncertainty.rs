@@ -2,20 +2,21 @@
 //! inputs and results, numbers in full precision so that they read back exactly) and
 //! `uncertainty.json` (the design, the shard, the statistics).
 use super::{bad_file, write_atomic, CAUTION};
-use crate::case::{Case, UncertainInput, Uncertainty};
+use crate::case::{Case, Distribution, UncertainInput, Uncertainty};
 use crate::error::{Error, Result};
 use crate::uncertainty::{SampleResult, Shard, Stats};
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
 /// The result columns of `samples.csv`, after `sample` and the inputs' keys.
-pub const RESULT_COLUMNS: [&str; 8] = [
+pub const RESULT_COLUMNS: [&str; 9] = [
     "frost_margin_m",
     "frost_depth_under_footing_m",
     "frost_depth_at_footing_face_m",
     "annual_heat_loss_kwh",
     "peak_heat_loss_w",
     "frost_in_zone",
+    "periodic",
     "run_s",
     "refused_because",
 ];
@@ -47,14 +48,26 @@ pub struct UncertaintyFile {
     pub threads: usize,
 }
 
-/// What the statistics mean (printed and saved).
-pub fn notes() -> Vec<String> {
+/// What the statistics mean (printed and saved), for the sampled inputs `design`.
+pub fn notes(design: &Uncertainty) -> Vec<String> {
+    let seasons = design
+        .inputs
+        .iter()
+        .any(|i| matches!(i.distribution, Distribution::Seasons { .. }));
     vec![
         "Samples: Latin hypercube (McKay, Beckman & Conover 1979) of the [uncertainty] inputs, SplitMix64 random numbers from the seed; each sample is the case with the sampled values, run like `frostline run`.".into(),
         "Percentiles: linear between order statistics (Hyndman & Fan 1996, definition 7).".into(),
         "P(frost in the protected zone) = samples with a negative frost margin / samples run, with the 95 % Wilson score interval (for independent draws: conservative for a Latin hypercube).".into(),
-        "Sensitivity: Spearman rank correlation of each input with the frost margin (negative: more of the input, less margin) and with the annual heat loss.".into(),
-        "The spread covers only the sampled inputs' variation under this model; model error, other inputs and the climate's own variability are not in it.".into(),
+        if seasons {
+            "Sensitivity: Spearman rank correlation of each input with the frost margin (negative: more of the input, less margin) and with the annual heat loss; a season is ranked by its air freezing index.".into()
+        } else {
+            "Sensitivity: Spearman rank correlation of each input with the frost margin (negative: more of the input, less margin) and with the annual heat loss.".into()
+        },
+        if seasons {
+            "The spread covers the sampled inputs' variation under this model, the climate's as the measured seasons (each run once after the series' normal year, so a run of cold winters is not in it); model error and other inputs are not in it.".into()
+        } else {
+            "The spread covers only the sampled inputs' variation under this model; model error, other inputs and the climate's own variability are not in it.".into()
+        },
     ]
 }
 
@@ -88,6 +101,7 @@ pub fn samples_csv(inputs: &[UncertainInput], samples: &[SampleResult]) -> Resul
             exact(r.annual_heat_loss_kwh),
             exact(r.peak_heat_loss_w),
             r.frost_in_zone().map_or(String::new(), |b| b.to_string()),
+            r.periodic.map_or(String::new(), |b| b.to_string()),
             format!("{:.3}", r.run_s),
             r.error.clone().unwrap_or_default(),
         ]);
@@ -146,8 +160,20 @@ pub fn read_samples(dir: &Path, inputs: &[UncertainInput]) -> Result<Vec<SampleR
             frost_depth_at_footing_face_m: num(g[2])?,
             annual_heat_loss_kwh: num(g[3])?,
             peak_heat_loss_w: num(g[4])?,
-            run_s: num(g[6])?,
-            error: (!g[7].is_empty()).then(|| g[7].to_string()),
+            periodic: match g[6] {
+                "" => None,
+                "true" => Some(true),
+                "false" => Some(false),
+                other => {
+                    return Err(bad_file(
+                        dir,
+                        "samples.csv",
+                        format!("periodic \"{other}\"; allowed: true, false or empty"),
+                    ))
+                }
+            },
+            run_s: num(g[7])?,
+            error: (!g[8].is_empty()).then(|| g[8].to_string()),
         });
     }
     Ok(out)
@@ -189,16 +215,15 @@ pub fn new_file(
     (mesh, wall_time_s, threads): (&str, f64, usize),
 ) -> Option<UncertaintyFile> {
     let design = case.uncertainty.clone()?;
-    let keys: Vec<String> = design.inputs.iter().map(|i| i.key.clone()).collect();
     Some(UncertaintyFile {
+        notes: notes(&design),
         case_name: case.name.clone(),
         caution: CAUTION.into(),
         case_file: case.file.clone(),
-        stats: Stats::of(samples, &keys),
+        stats: Stats::of(samples, &design.inputs),
         design,
         mesh: mesh.into(),
         shard,
-        notes: notes(),
         median_sample_s: median_run_s(samples),
         wall_time_s,
         threads,

@@ -135,7 +135,7 @@ fn draw_tornado<DB: DrawingBackend>(
     let label = |y: &f64| {
         let k = y.floor() as usize;
         if (y - y.floor() - 0.5).abs() < 1e-6 && k < n {
-            s[n - 1 - k].key.clone()
+            s[n - 1 - k].label()
         } else {
             String::new()
         }

@@ -67,7 +67,7 @@ fn table(s: &Summary) -> String {
     t += &heat_rows(s);
     t += &frost_rows(s);
     t += &basement_rows(s);
-    if s.design_winter.is_some() {
+    if s.design_winter.is_some() || s.climate.season.is_some() {
         t += &format!("\n  Periods: {}.\n", s.periods);
     }
     t += &numerics_line(s);
@@ -213,11 +213,13 @@ fn heat_rows(s: &Summary) -> String {
     t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
     t += &row("mean", "W", 1, &[s.mean_heat_loss_w]);
     let peak = if s.design_winter.is_some() {
-        "peak (daily mean, design winter)"
+        "peak (daily mean, design winter)".to_string()
+    } else if let Some(y) = s.climate.season {
+        format!("peak (daily mean, season {y}–{:02})", (y + 1) % 100)
     } else {
-        "peak (daily mean)"
+        "peak (daily mean)".to_string()
     };
-    t += &row(peak, "W", 1, &[s.peak_heat_loss_w]);
+    t += &row(&peak, "W", 1, &[s.peak_heat_loss_w]);
     t += &row(
         "per metre of exposed perimeter",
         "W/m",
@@ -472,7 +474,10 @@ pub fn check_text(case: &Case) -> Result<String> {
     s += &format!("  soil (top stratum): k {:.3}/{:.3} W/(m·K) unfrozen/frozen, C {:.2}/{:.2} MJ/(m³·K), L {:.1} MJ/m³\n",
         m.k_unfrozen, m.k_frozen, m.c_unfrozen / 1e6, m.c_frozen / 1e6, m.latent / 1e6);
     let kind = match (&case.climate.source, &case.climate.design_winter) {
-        (ClimateSource::Series(sr), _) => format!("measured series {} ({} days)", sr.source, sr.values.len()),
+        (ClimateSource::Series(sr), _) => match case.climate.season {
+            Some(y) => format!("normal year of {} and its measured season {y}–{:02} ({:.0} °C·d)", sr.source, (y + 1) % 100, crate::physics::climate::season_freezing_index(sr, y).unwrap_or(f64::NAN)),
+            None => format!("measured series {} ({} days)", sr.source, sr.values.len()),
+        },
         (_, Some(d)) => match &d.from_series {
             Some(y) => format!("normal year of {} and its {:.0}-year design winter ({:.0} °C·d, colder half's amplitude {:.2} K)", y.series, y.return_period_years, d.freezing_index_c_days, d.amplitude_k),
             None => format!("normal year and a design winter ({:.0} °C·d, colder half's amplitude {:.2} K)", d.freezing_index_c_days, d.amplitude_k),

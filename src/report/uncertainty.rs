@@ -12,6 +12,12 @@ pub fn describe(d: &crate::case::Distribution) -> String {
         (true, true) => format!(", truncated to [{lo}, {hi}]"),
     };
     match *d {
+        D::Seasons { ref years, .. } => format!(
+            "each of the series' {} complete seasons ({}–{}) equally likely, run once after the normal year",
+            years.len(),
+            years.first().copied().unwrap_or(0),
+            years.last().copied().unwrap_or(0)
+        ),
         D::Normal { mean, sd, min, max } => {
             format!("normal, mean {mean}, sd {sd}{}", cut(min, max))
         }
@@ -32,6 +38,14 @@ fn row(label: &str, unit: &str, s: &Option<Spread>, d: usize) -> String {
         ),
         None => format!("    {label:<34}{unit:>5}  (no sample ran)\n"),
     }
+}
+
+/// The warning for samples whose spin-up did not reach a periodic year.
+pub fn not_periodic(st: &crate::uncertainty::Stats) -> String {
+    format!(
+        "{} of the {} samples run did not reach a periodic year within simulation.max_spin_up_years (samples.csv: periodic = false): their results still drift from year to year; raise simulation.max_spin_up_years",
+        st.samples_not_periodic, st.samples_run
+    )
 }
 
 /// The bound that samples which did not run put on P: counted as frost in the zone (they are
@@ -68,6 +82,9 @@ pub fn text(f: &UncertaintyFile) -> String {
             "\n  {} sample(s) refused by the case rules or failed in their run (samples.csv: refused_because)\n",
             st.samples_refused
         );
+    }
+    if st.samples_not_periodic > 0 {
+        t += &format!("\n  {}\n", not_periodic(st));
     }
     let head = format!("Results of {} samples run", st.samples_run);
     t += &format!(
@@ -115,7 +132,7 @@ pub fn text(f: &UncertaintyFile) -> String {
     for s in &st.sensitivity {
         t += &format!(
             "    {:<40} {:>12} {:>16}\n",
-            s.key,
+            s.label(),
             c(s.rank_correlation_margin),
             c(s.rank_correlation_heat_loss)
         );
@@ -212,12 +229,15 @@ pub fn html(dir: &std::path::Path, f: &UncertaintyFile) -> crate::error::Result<
     if st.samples_refused > 0 {
         h += &format!("<p class=\"caution\">{}</p>\n", escape(&not_run(st)));
     }
+    if st.samples_not_periodic > 0 {
+        h += &format!("<p class=\"caution\">{}</p>\n", escape(&not_periodic(st)));
+    }
     h += "<h2>Sensitivity</h2>\n<table>\n<tr><th>input</th><th>rank correlation with the frost margin</th><th>with the annual heat loss</th></tr>\n";
     let c = |v: Option<f64>| v.map_or("–".to_string(), |x| format!("{x:+.3}"));
     for s in &st.sensitivity {
         h += &format!(
             "<tr><td>{}</td><td class=n>{}</td><td class=n>{}</td></tr>\n",
-            escape(&s.key),
+            escape(&s.label()),
             c(s.rank_correlation_margin),
             c(s.rank_correlation_heat_loss)
         );

@@ -150,7 +150,8 @@ pub fn series_seasons(s: &DailySeries) -> Vec<(i64, Vec<DayIn>)> {
 pub struct Schedule {
     /// The year repeated in the spin-up: the normal sinusoidal year, or a series' first season.
     pub spin: Vec<DayIn>,
-    /// The design year run once after the spin-up, if the climate has a design winter.
+    /// The design year run once after the spin-up, if the climate has a design winter (or the
+    /// chosen season of a measured series).
     pub design: Option<Vec<DayIn>>,
     /// Every season of a measured series, run in order after the spin-up.
     pub seasons: Vec<(i64, Vec<DayIn>)>,
@@ -166,6 +167,16 @@ pub fn schedule(case: &Case) -> Schedule {
                 .design_winter
                 .as_ref()
                 .map(|dw| sinusoid_year_days(cl, dw.amplitude_k)),
+            seasons: Vec::new(),
+        },
+        ClimateSource::Series(s) if cl.season.is_some() => Schedule {
+            // One measured season once, after the series' normal year is periodic: like a
+            // design winter, it is not repeated.
+            spin: sinusoid_year_days(cl, cl.amplitude_k),
+            design: series_seasons(s)
+                .into_iter()
+                .find(|x| Some(x.0) == cl.season)
+                .map(|x| x.1),
             seasons: Vec::new(),
         },
         ClimateSource::Series(s) => {
@@ -187,6 +198,7 @@ mod tests {
         Climate {
             source: ClimateSource::Sinusoid,
             design_winter: None,
+            season: None,
             n_freezing: 0.8,
             n_thawing: 1.2,
             snow_depth_m: [0.2; 12],

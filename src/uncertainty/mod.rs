@@ -24,7 +24,7 @@
 //!   rank correlation of each input with the frost margin and with the annual heat loss (ties by
 //!   mid-ranks).
 use crate::case::uncertainty::{lookup, path_part};
-use crate::case::{parse_case, Case, Distribution, Uncertainty};
+use crate::case::{parse_case, Case, Distribution, UncertainInput, Uncertainty};
 use crate::error::{Error, Result};
 use crate::run;
 use rayon::prelude::*;
@@ -94,6 +94,10 @@ pub fn quantile(dist: &Distribution, u: f64) -> f64 {
         inv((a + u * (b - a)).clamp(1e-15, 1.0 - 1e-15)).clamp(lo, hi)
     };
     match *dist {
+        Distribution::Seasons { ref years, .. } => {
+            let k = ((u * years.len() as f64) as usize).min(years.len().saturating_sub(1));
+            years.get(k).map_or(f64::NAN, |&y| y as f64)
+        }
         Distribution::Normal { mean, sd, min, max } => {
             if sd == 0.0 {
                 return mean;
@@ -138,17 +142,18 @@ pub fn design(u: &Uncertainty) -> Vec<Vec<f64>> {
 }
 
 /// The TOML value of sampled value `x` for a key whose nominal value is `nominal`: an integer
-/// key (e.g. a count of years) gets the nearest integer.
-fn value_like(nominal: Option<&toml::Value>, x: f64) -> toml::Value {
+/// key (e.g. a count of years, or a season) gets the nearest integer.
+fn value_like(nominal: Option<&toml::Value>, x: f64, integer: bool) -> toml::Value {
     match nominal {
         Some(toml::Value::Integer(_)) => toml::Value::Integer(x.round() as i64),
+        _ if integer => toml::Value::Integer(x.round() as i64),
         _ => toml::Value::Float(x),
     }
 }
 
-/// Set the value at key path `path` of `doc` (the key must exist: validated).
-fn set_path(doc: &mut toml::Table, path: &str, x: f64) {
-    let x = value_like(lookup(doc, path), x);
+/// Set the value at key path `path` of `doc` (the key must exist, or its table: validated).
+fn set_path(doc: &mut toml::Table, path: &str, x: f64, integer: bool) {
+    let x = value_like(lookup(doc, path), x, integer);
     let parts: Vec<&str> = path.split('.').collect();
     let mut cur: &mut toml::Table = doc;
     for (n, part) in parts.iter().enumerate() {
@@ -183,8 +188,8 @@ pub fn sample_text(case: &Case, u: &Uncertainty, values: &[f64]) -> Result<Strin
     let mut doc: toml::Table =
         toml::from_str(&case.source).map_err(|e| Error::Output(e.to_string()))?;
     for (i, &x) in u.inputs.iter().zip(values) {
-        debug_assert!(lookup(&doc, &i.key).is_some());
-        set_path(&mut doc, &i.key, x);
+        debug_assert!(lookup(&doc, &i.key).is_some() || i.distribution.is_integer());
+        set_path(&mut doc, &i.key, x, i.distribution.is_integer());
     }
     doc.remove("uncertainty");
     doc.remove("sizing");
@@ -208,6 +213,8 @@ pub struct SampleResult {
     pub annual_heat_loss_kwh: f64,
     /// Peak (design-day) ground heat loss, W.
     pub peak_heat_loss_w: f64,
+    /// Whether the run's spin-up reached a periodic year (None: not run).
+    pub periodic: Option<bool>,
     /// Wall time of the run, s.
     pub run_s: f64,
     /// Why the sample was not run (the case rules refused it), if so.
@@ -273,6 +280,7 @@ pub fn run_samples(
                 frost_depth_at_footing_face_m: f64::NAN,
                 annual_heat_loss_kwh: f64::NAN,
                 peak_heat_loss_w: f64::NAN,
+                periodic: None,
                 run_s: 0.0,
                 error: None,
             };
@@ -296,6 +304,7 @@ pub fn run_samples(
                             r.frost_depth_at_footing_face_m = h.frost_depth_at_footing_face_m;
                             r.annual_heat_loss_kwh = h.annual_heat_loss_kwh;
                             r.peak_heat_loss_w = h.peak_heat_loss_w;
+                            r.periodic = Some(run.spin_up_converged);
                         }
                     }
                 }
@@ -431,6 +440,19 @@ pub struct Sensitivity {
     pub rank_correlation_margin: Option<f64>,
     /// Spearman rank correlation with the annual heat loss.
     pub rank_correlation_heat_loss: Option<f64>,
+    /// What the input is ranked by when not its own value (a season: its air freezing index).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ranked_by: Option<String>,
+}
+
+impl Sensitivity {
+    /// The input as labelled in tables and plots: its key, and what it is ranked by.
+    pub fn label(&self) -> String {
+        match &self.ranked_by {
+            Some(b) => format!("{} (by {b})", self.key),
+            None => self.key.clone(),
+        }
+    }
 }
 
 /// The statistics of a set of samples: every number follows from the samples (in index order),
@@ -441,6 +463,10 @@ pub struct Stats {
     pub samples_run: usize,
     /// Samples the case rules refused (not run).
     pub samples_refused: usize,
+    /// Samples run whose spin-up did not reach a periodic year within
+    /// `simulation.max_spin_up_years`.
+    #[serde(default)]
+    pub samples_not_periodic: usize,
     /// Frost margin to the protected zone, m.
     pub frost_margin_m: Option<Spread>,
     /// Frost depth below the footing's bearing level, m.
@@ -462,8 +488,8 @@ pub struct Stats {
 }
 
 impl Stats {
-    /// The statistics of `samples` (any order: sorted by index here) for the inputs `keys`.
-    pub fn of(samples: &[SampleResult], keys: &[String]) -> Stats {
+    /// The statistics of `samples` (any order: sorted by index here) for the sampled `inputs`.
+    pub fn of(samples: &[SampleResult], inputs: &[UncertainInput]) -> Stats {
         let mut s: Vec<&SampleResult> = samples.iter().collect();
         s.sort_by_key(|r| r.index);
         let run: Vec<&SampleResult> = s.iter().copied().filter(|r| r.error.is_none()).collect();
@@ -477,13 +503,18 @@ impl Stats {
         let margin: Vec<f64> = run.iter().map(|r| r.frost_margin_m).collect();
         let heat: Vec<f64> = run.iter().map(|r| r.annual_heat_loss_kwh).collect();
         let fin = |x: f64| x.is_finite().then_some(x);
-        let mut sensitivity: Vec<Sensitivity> = keys
+        let mut sensitivity: Vec<Sensitivity> = inputs
             .iter()
             .enumerate()
-            .map(|(j, key)| {
-                let x: Vec<f64> = run.iter().map(|r| r.values[j]).collect();
+            .map(|(j, input)| {
+                let x: Vec<f64> = run
+                    .iter()
+                    .map(|r| input.distribution.rank_value(r.values[j]))
+                    .collect();
                 Sensitivity {
-                    key: key.clone(),
+                    key: input.key.clone(),
+                    ranked_by: matches!(input.distribution, Distribution::Seasons { .. })
+                        .then(|| "freezing index".to_string()),
                     rank_correlation_margin: fin(spearman(&x, &margin)),
                     rank_correlation_heat_loss: fin(spearman(&x, &heat)),
                 }
@@ -496,6 +527,7 @@ impl Stats {
         Stats {
             samples_run: n,
             samples_refused: s.len() - n,
+            samples_not_periodic: run.iter().filter(|r| r.periodic == Some(false)).count(),
             frost_margin_m: col(|r| r.frost_margin_m),
             frost_depth_under_footing_m: col(|r| r.frost_depth_under_footing_m),
             frost_depth_at_footing_face_m: col(|r| r.frost_depth_at_footing_face_m),

@@ -7,6 +7,7 @@ pub mod stats;
 pub use calendar::{civil_from_days, day_of_year, days_from_civil, iso_date, month_of, seasons};
 pub use series::{read_series, read_series_from, DailySeries, ReadOptions};
 pub use stats::{
-    amplitude_for_freezing_index, annual_sinusoid, freezing_indices, max_rise, summarize,
-    thawing_indices, ClimateSummary, FitMethod, Gumbel, WinterIndex,
+    amplitude_for_freezing_index, annual_sinusoid, freezing_indices, max_rise,
+    season_freezing_index, summarize, thawing_indices, ClimateSummary, FitMethod, Gumbel,
+    WinterIndex,
 };

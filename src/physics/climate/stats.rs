@@ -40,6 +40,15 @@ pub fn freezing_indices(s: &DailySeries) -> Vec<WinterIndex> {
         .collect()
 }
 
+/// Freezing index of the season starting 1 July of `year`, °C·d (None: not a complete season of
+/// the series).
+pub fn season_freezing_index(s: &DailySeries, year: i64) -> Option<f64> {
+    freezing_indices(s)
+        .into_iter()
+        .find(|w| w.winter == year)
+        .map(|w| w.value)
+}
+
 /// Thawing index of every complete calendar year: the largest rise of the cumulative sum of the
 /// daily mean (above 0 °C counts positive), °C·d.
 pub fn thawing_indices(s: &DailySeries) -> Vec<WinterIndex> {
