@@ -24,7 +24,7 @@
 //!   rank correlation of each input with the frost margin and with the annual heat loss (ties by
 //!   mid-ranks).
 use crate::case::uncertainty::{lookup, path_part};
-use crate::case::{parse_case, Case, Distribution, UncertainInput, Uncertainty};
+use crate::case::{parse_case, Case, Distribution, ModelKind, UncertainInput, Uncertainty};
 use crate::error::{Error, Result};
 use crate::run;
 use rayon::prelude::*;
@@ -290,21 +290,29 @@ pub fn run_samples(
                 Err(e) => return Err(e),
                 Ok(mut c) => {
                     c.simulation.mesh = case.simulation.mesh;
-                    match run::run(&c, &mut |_| {}) {
+                    // A 3D case runs in 3D (its headline: the whole building, the least margin
+                    // anywhere round it), as `frostline run` would.
+                    let ran = if c.simulation.model == ModelKind::ThreeD {
+                        run::three::run3(&c, &run::RunOptions::default(), &mut |_| {})
+                            .map(|r3| (r3.headline(&c), r3.sim.converged))
+                    } else {
+                        run::run(&c, &mut |_| {})
+                            .map(|run| (run::headline(&c, &run), run.spin_up_converged))
+                    };
+                    match ran {
                         // A sample whose run stops on its own terms (e.g. frost at the domain's
                         // bottom) is recorded, not the end of the other samples.
                         Err(e) if e.is_input() => {
                             r.error = Some(format!("failed: {}", refusal(&e)))
                         }
                         Err(e) => return Err(e),
-                        Ok(run) => {
-                            let h = run::headline(&c, &run);
+                        Ok((h, periodic)) => {
                             r.frost_margin_m = h.frost_margin_m;
                             r.frost_depth_under_footing_m = h.frost_depth_under_footing_m;
                             r.frost_depth_at_footing_face_m = h.frost_depth_at_footing_face_m;
                             r.annual_heat_loss_kwh = h.annual_heat_loss_kwh;
                             r.peak_heat_loss_w = h.peak_heat_loss_w;
-                            r.periodic = Some(run.spin_up_converged);
+                            r.periodic = Some(periodic);
                         }
                     }
                 }
