@@ -12,13 +12,18 @@
 #SBATCH --cpus-per-task=4
 #SBATCH --time=02:00:00
 #SBATCH --output=spread-%A_%a.log
-set -euo pipefail
+set -uo pipefail
 CASE="${1:?usage: sbatch docs/slurm-uncertainty.sh CASE.toml}"
 # (Outside such an array, or to run the whole design inside one, pass --shard 1/1.)
+# Exit code 3 means the shard's results were written but a criterion was not met (e.g. samples
+# not periodic): its work is done, so the array goes on; the merge reports it again.
 frostline uncertainty "$CASE" --out out/spread -j "${SLURM_CPUS_PER_TASK:-1}" --quiet
+code=$?
+if [ "$code" != 0 ] && [ "$code" != 3 ]; then exit "$code"; fi
 # The last task to finish is not known in advance: submit the merge once, from task 1, as a job
 # that starts after the whole array has ended successfully.
 if [ "${SLURM_ARRAY_TASK_ID}" = "${SLURM_ARRAY_TASK_MIN}" ]; then
   sbatch --dependency="afterok:${SLURM_ARRAY_JOB_ID}" --job-name=frostline-merge \
-    --wrap="frostline merge out/spread/shard-*-of-${SLURM_ARRAY_TASK_COUNT} --out out/spread-all"
+    --wrap="frostline merge out/spread/shard-*-of-${SLURM_ARRAY_TASK_COUNT} --out out/spread-all || [ \$? = 3 ]"
 fi
+exit 0

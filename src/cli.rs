@@ -84,10 +84,23 @@ pub enum Command {
         array task, into OUT/shard-K-of-N; see docs/slurm-uncertainty.sh."
     )]
     Uncertainty(UncertaintyArgs),
-    /// Merge the shard directories of one `frostline uncertainty` design into one result (the
-    /// same samples.csv and statistics as an unsharded run).
+    /// Run a list of cases (many sites, or variants of a design) in parallel, each like
+    /// `frostline run` into its own directory, with one table of their design answers.
     #[command(
-        after_help = "Example:\n  frostline merge out/spread/shard-*-of-10 --out out/spread-all"
+        after_help = "Examples:\n  frostline batch sites.txt --out out/sites --mesh coarse\n  \
+        frostline batch sites.txt --out out/sites --shard 2/10   (one shard of ten, e.g. a Slurm array task)\n  \
+        frostline merge out/sites/shard-*-of-10 --out out/sites-all\n\n\
+        The list holds one case file per line (relative to the list), # comments. Writes batch.csv\n\
+        (each case's frost margin, frost depths, heat loss, U and status), batch.json and\n\
+        cases/NNN-NAME/ (each case's full results). Under Slurm the shard defaults to the array\n\
+        task, into OUT/shard-K-of-N; see docs/slurm-batch.sh."
+    )]
+    Batch(BatchArgs),
+    /// Merge the shard directories of one `frostline uncertainty` design or one `frostline batch`
+    /// into one result (the same files and statistics as an unsharded run).
+    #[command(
+        after_help = "Examples:\n  frostline merge out/spread/shard-*-of-10 --out out/spread-all\n  \
+        frostline merge out/sites/shard-*-of-10 --out out/sites-all"
     )]
     Merge(MergeArgs),
     /// Validate a case and print the mesh size and derived quantities, without solving.
@@ -275,41 +288,65 @@ pub struct SizeArgs {
     pub units: UnitsArg,
 }
 
-/// Arguments of `uncertainty`.
+/// The arguments of the commands that split their runs into shards (`uncertainty`, `batch`).
 #[derive(Args, Debug)]
-pub struct UncertaintyArgs {
-    /// The case file with an [uncertainty] table.
-    pub case: PathBuf,
+pub struct SplitArgs {
     /// Output directory (a shard writes into OUT/shard-K-of-N).
     #[arg(long, short)]
     pub out: PathBuf,
-    /// Run only shard K of N (1-based), e.g. 3/10: the samples i with i mod N = K − 1. Default:
-    /// the Slurm array task (task (ID − MIN)/STEP + 1 of COUNT, from SLURM_ARRAY_TASK_ID, _MIN,
-    /// _STEP and _COUNT) when set, else the whole design; `--shard 1/1` runs the whole design
-    /// inside an array job.
+    /// Run only shard K of N (1-based), e.g. 3/10: the samples (or listed cases) i, counted from
+    /// 0, with i mod N = K − 1. Default: the Slurm array task (task (ID − MIN)/STEP + 1 of COUNT,
+    /// from SLURM_ARRAY_TASK_ID, _MIN, _STEP and _COUNT) when set, else all of them;
+    /// `--shard 1/1` runs all inside an array job.
     #[arg(long)]
     pub shard: Option<String>,
     /// Worker threads (default: all cores).
     #[arg(short = 'j', long)]
     pub jobs: Option<usize>,
-    /// Override the case's mesh fineness.
+    /// Override the case's (every case's) mesh fineness.
     #[arg(long, value_enum)]
     pub mesh: Option<MeshArg>,
+    /// No progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+/// Arguments of `uncertainty`.
+#[derive(Args, Debug)]
+pub struct UncertaintyArgs {
+    /// The case file with an [uncertainty] table.
+    pub case: PathBuf,
+    #[command(flatten)]
+    pub split: SplitArgs,
     /// Override the number of samples.
     #[arg(long)]
     pub samples: Option<usize>,
     /// Override the seed.
     #[arg(long)]
     pub seed: Option<u64>,
-    /// No progress bar.
-    #[arg(long, short)]
-    pub quiet: bool,
+}
+
+/// Arguments of `batch`.
+#[derive(Args, Debug)]
+pub struct BatchArgs {
+    /// The list of case files: one per line, relative to the list file; # starts a comment.
+    pub list: PathBuf,
+    #[command(flatten)]
+    pub split: SplitArgs,
+    /// Do not write each case's plots and report.html.
+    #[arg(long)]
+    pub no_plots: bool,
+    /// Units of each case's result table, report and extra US files (the data files and
+    /// batch.csv stay in SI).
+    #[arg(long, value_enum, default_value_t = UnitsArg::Si)]
+    pub units: UnitsArg,
 }
 
 /// Arguments of `merge`.
 #[derive(Args, Debug)]
 pub struct MergeArgs {
-    /// The shard directories (each with samples.csv and uncertainty.json).
+    /// The shard directories (each with samples.csv and uncertainty.json, or batch.csv and
+    /// batch.json).
     #[arg(required = true)]
     pub dirs: Vec<PathBuf>,
     /// Output directory.
@@ -492,6 +529,7 @@ fn execute(cli: Cli) -> Result<Vec<String>, Error> {
         }
         Command::Size(a) => size(a),
         Command::Uncertainty(a) => uncertainty(a),
+        Command::Batch(a) => batch(a),
         Command::Merge(a) => merge(a),
         Command::Soil(a) => {
             say!("{}", soil(&a)?);
@@ -628,24 +666,16 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
     if three {
         bar.set_message("2D section, then 3D");
     }
-    let cc = estimate::cross_check(&case);
-    let mut written = if three {
-        let r3 = run::three::run3(&case, &run::RunOptions::default(), &mut cb);
-        bar.finish_and_clear();
-        let r3 = r3?;
-        files::remove_previous(&a.out)?;
-        files::write_run3(&case, &r3, &cc, &a.out, a.units.into())?
-    } else {
-        let result = run::run(&case, &mut cb);
-        bar.finish_and_clear();
-        let result = result?;
-        files::remove_previous(&a.out)?;
-        files::write_run(&case, &result, &cc, &a.out, a.units.into())?
+    let opts = frostline::batch::RunInto {
+        mesh: None,
+        units: a.units.into(),
+        plots: !a.no_plots,
+        animate: a.animate,
+        dpi: a.image.dpi,
     };
-    if !a.no_plots {
-        written.extend(render(&a.out, a.animate, a.image.dpi)?);
-    }
-    written.push(files::write_manifest(&a.out, &written, false)?);
+    let written = frostline::batch::run_into(&case, &a.out, &opts, &mut cb);
+    bar.finish_and_clear();
+    let written = written?;
     let summary = files::read_summary(&a.out)?;
     if a.format == FormatArg::Json {
         say!("{}", files::read_text(&a.out, "summary.json")?);
@@ -909,6 +939,27 @@ fn shard_of(flag: Option<&str>) -> Result<frostline::uncertainty::Shard, Error> 
     }
 }
 
+/// The shard of a split command, its output directory (OUT, or OUT/shard-K-of-N) locked for
+/// writing, and the worker pool's size set.
+fn split_start(
+    s: &SplitArgs,
+) -> Result<(frostline::uncertainty::Shard, PathBuf, std::fs::File), Error> {
+    let shard = shard_of(s.shard.as_deref())?;
+    if let Some(j) = s.jobs {
+        let _ = rayon::ThreadPoolBuilder::new()
+            .num_threads(j.max(1))
+            .build_global();
+    }
+    let out = if shard.count > 1 {
+        s.out
+            .join(format!("shard-{}-of-{}", shard.index, shard.count))
+    } else {
+        s.out.clone()
+    };
+    let lock = files::check_writable(&out)?;
+    Ok((shard, out, lock))
+}
+
 fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     let start = std::time::Instant::now();
     let mut case: Case = load_case(&a.case)?;
@@ -926,27 +977,15 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     if let Some(s) = a.seed {
         u.seed = s;
     }
-    if let Some(m) = a.mesh {
+    if let Some(m) = a.split.mesh {
         case.simulation.mesh = m.into();
     }
-    let shard = shard_of(a.shard.as_deref())?;
-    if let Some(j) = a.jobs {
-        let _ = rayon::ThreadPoolBuilder::new()
-            .num_threads(j.max(1))
-            .build_global();
-    }
-    let out = if shard.count > 1 {
-        a.out
-            .join(format!("shard-{}-of-{}", shard.index, shard.count))
-    } else {
-        a.out.clone()
-    };
-    let _lock = files::check_writable(&out)?;
+    let (shard, out, _lock) = split_start(&a.split)?;
     let total = case
         .uncertainty
         .as_ref()
         .map_or(0, |u| (0..u.samples).filter(|&i| shard.has(i)).count());
-    let bar = bar(a.quiet, None);
+    let bar = bar(a.split.quiet, None);
     bar.set_message(format!("0 of {total} samples"));
     let cb = |n: usize| bar.set_message(format!("{n} of {total} samples"));
     let samples = frostline::uncertainty::run_samples(&case, shard, &cb);
@@ -1002,7 +1041,157 @@ fn write_uncertainty(
     Ok(())
 }
 
+fn batch(a: BatchArgs) -> Result<Vec<String>, Error> {
+    use frostline::batch;
+    let start = std::time::Instant::now();
+    let list = batch::read_list(&a.list)?;
+    let (shard, out, _lock) = split_start(&a.split)?;
+    let opts = batch::RunInto {
+        mesh: a.split.mesh.map(Into::into),
+        units: a.units.into(),
+        plots: !a.no_plots,
+        animate: false,
+        dpi: None,
+    };
+    let total = (0..list.paths.len()).filter(|&i| shard.has(i)).count();
+    let bar = bar(a.split.quiet, None);
+    bar.set_message(format!("0 of {total} cases"));
+    let cb = |n: usize| bar.set_message(format!("{n} of {total} cases"));
+    let rows = batch::run_batch(&list, shard, &out, &opts, &cb);
+    bar.finish_and_clear();
+    let rows = rows?;
+    let mesh = opts.mesh.map(|m| format!("{m:?}").to_lowercase());
+    let f = files::batch::BatchFile::new(
+        &list.file,
+        &list.entries,
+        (mesh, shard),
+        &rows,
+        (start.elapsed().as_secs_f64(), rayon::current_num_threads()),
+    );
+    write_batch(&out, &f, &rows)
+}
+
+/// The files of a batch or its merge (batch.csv, batch.json, manifest), the printed table, and
+/// the criteria not met (one line per case that did not run or did not meet one).
+fn write_batch(
+    out: &Path,
+    f: &files::batch::BatchFile,
+    rows: &[files::batch::CaseRow],
+) -> Result<Vec<String>, Error> {
+    let mut written = files::batch::write(out, f, rows)?;
+    written.push(files::write_manifest(out, &written, false)?);
+    say!("{}", report::batch::text(f, rows));
+    print_files(out, &written);
+    Ok(rows
+        .iter()
+        .filter(|r| r.status != "ok")
+        .map(|r| format!("case {} ({}): {}", r.case, r.case_file, r.status))
+        .collect())
+}
+
+/// Merge the shard directories of one batch: every shard once, the same list and mesh; the
+/// cases' directories copied into OUT/cases.
+fn merge_batch(a: &MergeArgs) -> Result<Vec<String>, Error> {
+    let start = std::time::Instant::now();
+    let parts: Vec<files::batch::BatchFile> = a
+        .dirs
+        .iter()
+        .map(|d| files::batch::read_file(d))
+        .collect::<Result<_, _>>()?;
+    let first = &parts[0];
+    let same: Vec<_> = parts
+        .iter()
+        .map(|p| (p.shard, p.cases == first.cases && p.mesh == first.mesh))
+        .collect();
+    let missing = check_shards(
+        &a.dirs,
+        &same,
+        "another batch (case list, mesh or shard count); allowed: shards of one `frostline batch`",
+    )?;
+    let (mut rows, mut copies) = (Vec::new(), Vec::new());
+    for d in &a.dirs {
+        for r in files::batch::read_rows(d)? {
+            copies.push((d.join(&r.dir), a.out.join(&r.dir)));
+            rows.push(r);
+        }
+    }
+    if !missing.is_empty() {
+        return Err(Error::command_line(
+            "merge",
+            InputKind::Missing,
+            format!(
+                "shards {missing:?} of {} missing; allowed: every shard of the batch",
+                first.shard.count
+            ),
+        ));
+    }
+    let _lock = files::check_writable(&a.out)?;
+    // A case refused before its run has no directory.
+    for (from, to) in copies.iter().filter(|c| c.0.is_dir()) {
+        copy_dir(from, to)?;
+    }
+    let f = files::batch::BatchFile {
+        shard: frostline::uncertainty::Shard::WHOLE,
+        cases_run: parts.iter().map(|p| p.cases_run).sum(),
+        cases_ok: parts.iter().map(|p| p.cases_ok).sum(),
+        cases_not_run: parts.iter().map(|p| p.cases_not_run).sum(),
+        wall_time_s: start.elapsed().as_secs_f64()
+            + parts.iter().map(|p| p.wall_time_s).sum::<f64>(),
+        threads: parts.iter().map(|p| p.threads).max().unwrap_or(1),
+        ..first.clone()
+    };
+    write_batch(&a.out, &f, &rows)
+}
+
+/// Copy directory `from` (files and subdirectories) to `to`.
+fn copy_dir(from: &Path, to: &Path) -> Result<(), Error> {
+    std::fs::create_dir_all(to).map_err(|e| Error::io(to, e))?;
+    for entry in std::fs::read_dir(from).map_err(|e| Error::io(from, e))? {
+        let entry = entry.map_err(|e| Error::io(from, e))?;
+        let (src, dst) = (entry.path(), to.join(entry.file_name()));
+        if src.is_dir() {
+            copy_dir(&src, &dst)?;
+        } else {
+            std::fs::copy(&src, &dst).map_err(|e| Error::io(&src, e))?;
+        }
+    }
+    Ok(())
+}
+
+/// Check the shards `parts` (each with whether it is of the same run as the first) read from
+/// `dirs`: all of the same run and shard count (else the error `other`), none twice. Returns the
+/// shards missing.
+fn check_shards(
+    dirs: &[PathBuf],
+    parts: &[(frostline::uncertainty::Shard, bool)],
+    other: &str,
+) -> Result<Vec<usize>, Error> {
+    let count = parts[0].0.count;
+    let mut seen = Vec::new();
+    for (d, (shard, same)) in dirs.iter().zip(parts) {
+        if !same || shard.count != count {
+            return Err(Error::command_line(
+                "merge",
+                InputKind::Conflict,
+                format!("{}: {other} than {}", d.display(), dirs[0].display()),
+            ));
+        }
+        if seen.contains(&shard.index) {
+            return Err(Error::command_line(
+                "merge",
+                InputKind::Conflict,
+                format!("{}: shard {} given twice", d.display(), shard.index),
+            ));
+        }
+        seen.push(shard.index);
+    }
+    Ok((1..=count).filter(|k| !seen.contains(k)).collect())
+}
+
 fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
+    if a.dirs[0].join("batch.json").is_file() {
+        return merge_batch(&a);
+    }
     let start = std::time::Instant::now();
     let parts: Vec<files::uncertainty::UncertaintyFile> = a
         .dirs
@@ -1010,37 +1199,27 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
         .map(|d| files::uncertainty::read_file(d))
         .collect::<Result<_, _>>()?;
     let first = &parts[0];
+    let same: Vec<_> = parts
+        .iter()
+        .map(|p| {
+            let same =
+                p.design == first.design && p.mesh == first.mesh && p.case_file == first.case_file;
+            (p.shard, same)
+        })
+        .collect();
+    let missing = check_shards(
+        &a.dirs,
+        &same,
+        "another design (case file, samples, seed, inputs, mesh or shard count); allowed: shards of one `frostline uncertainty` design",
+    )?;
     let mut samples = Vec::new();
-    let mut shards = Vec::new();
     for (d, p) in a.dirs.iter().zip(&parts) {
-        if p.design != first.design
-            || p.mesh != first.mesh
-            || p.shard.count != first.shard.count
-            || p.case_file != first.case_file
-        {
-            return Err(Error::command_line("merge", InputKind::Conflict, format!(
-                "{}: another design (case file, samples, seed, inputs, mesh or shard count) than {}; allowed: shards of one `frostline uncertainty` design",
-                d.display(),
-                a.dirs[0].display()
-            )));
-        }
-        if shards.contains(&p.shard.index) {
-            return Err(Error::command_line(
-                "merge",
-                InputKind::Conflict,
-                format!("{}: shard {} given twice", d.display(), p.shard.index),
-            ));
-        }
-        shards.push(p.shard.index);
         samples.extend(files::uncertainty::read_samples(d, &p.design.inputs)?);
     }
     let n = first.design.samples;
     samples.sort_by_key(|s| s.index);
     let complete = samples.len() == n && samples.iter().enumerate().all(|(i, s)| s.index == i);
     if !complete {
-        let missing: Vec<usize> = (1..=first.shard.count)
-            .filter(|k| !shards.contains(k))
-            .collect();
         return Err(Error::command_line("merge", InputKind::Missing, format!(
             "the shards hold {} of the design's {n} samples (missing shards: {missing:?}); allowed: every shard of the design",
             samples.len()

@@ -16,13 +16,15 @@
 //!
 //! Modules along the data flow, each depending only on those listed before it:
 //! [`numerics`] → [`methods`] → [`physics`] → [`case`] → [`mesh`] → [`geometry`] → [`solver`] →
-//! [`analysis`] → [`run`] → [`estimate`] → [`design`] → [`files`] → [`report`] → [`plot`]. The
+//! [`analysis`] → [`run`] → [`estimate`] → [`design`] → [`uncertainty`] → [`files`] → [`report`] →
+//! [`plot`] → [`batch`]. The
 //! library never prints; the `frostline` binary holds the command line.
 #![deny(missing_docs)]
 // Index loops over several arrays of the same length read closest to the discrete equations.
 #![allow(clippy::needless_range_loop)]
 
 pub mod analysis;
+pub mod batch;
 pub mod case;
 pub mod design;
 pub mod error;

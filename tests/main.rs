@@ -1,6 +1,7 @@
 //! The integration-test binary: verification against published references, the CLI, the bundled
 //! examples and regression checks.
 mod basement;
+mod batch;
 mod cli;
 mod climate;
 mod common;

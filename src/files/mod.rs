@@ -2,6 +2,7 @@
 //! here only ([`summary`], [`tables`], [`section`], [`sizing`]). Every file is written under a
 //! temporary name in the same directory and renamed, so a failed run never leaves a half-written
 //! file.
+pub mod batch;
 pub mod section;
 pub mod sizing;
 pub mod summary;

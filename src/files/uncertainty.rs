@@ -73,7 +73,7 @@ pub fn notes(design: &Uncertainty) -> Vec<String> {
 
 /// A number in full precision (Rust's shortest representation that reads back exactly); empty
 /// for NaN.
-fn exact(v: f64) -> String {
+pub(crate) fn exact(v: f64) -> String {
     if v.is_finite() {
         format!("{v}")
     } else {
