@@ -324,6 +324,10 @@ pub struct UncertaintyArgs {
     /// Override the seed.
     #[arg(long)]
     pub seed: Option<u64>,
+    /// Units of the printed summary, report.html and plots (uncertainty.json and samples.csv
+    /// stay in SI; the inputs stay in their keys' own units).
+    #[arg(long, value_enum, default_value_t = UnitsArg::Si)]
+    pub units: UnitsArg,
 }
 
 /// Arguments of `batch`.
@@ -352,6 +356,10 @@ pub struct MergeArgs {
     /// Output directory.
     #[arg(long, short)]
     pub out: PathBuf,
+    /// Units of an uncertainty merge's summary, report and plots (default: the first shard's).
+    /// A batch's cases keep the units they were run with.
+    #[arg(long, value_enum)]
+    pub units: Option<UnitsArg>,
 }
 
 /// Arguments of `soil`.
@@ -992,7 +1000,7 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
     bar.finish_and_clear();
     let samples = samples?;
     let mesh = format!("{:?}", case.simulation.mesh).to_lowercase();
-    let f = files::uncertainty::new_file(
+    let mut f = files::uncertainty::new_file(
         &case,
         shard,
         &samples,
@@ -1003,6 +1011,7 @@ fn uncertainty(a: UncertaintyArgs) -> Result<Vec<String>, Error> {
         ),
     )
     .ok_or_else(|| Error::Output("no [uncertainty] design".into()))?;
+    f.units = a.units.into();
     write_uncertainty(&out, &f, &samples)?;
     Ok(uncertainty_unmet(&f.stats, shard.count == 1))
 }
@@ -1232,6 +1241,7 @@ fn merge(a: MergeArgs) -> Result<Vec<String>, Error> {
         wall_time_s: start.elapsed().as_secs_f64()
             + parts.iter().map(|p| p.wall_time_s).sum::<f64>(),
         threads: parts.iter().map(|p| p.threads).max().unwrap_or(1),
+        units: a.units.map_or(first.units, Into::into),
         ..first.clone()
     };
     let _lock = files::check_writable(&a.out)?;

@@ -522,3 +522,53 @@ fn return_period_sampled() {
     rows.sort_by(|a, b| a.0.total_cmp(&b.0));
     assert!(rows.windows(2).all(|w| w[1].1 > w[0].1), "{rows:?}");
 }
+
+/// `--units us` (here on a merge of a whole run): the printed percentiles are the SI ones
+/// converted by NIST SP 811's factors (1 ft = 0.3048 m, 1 kWh = 3 412.142 Btu, 1 W =
+/// 3.412 142 Btu/h), the margin plot's axis is in feet, and uncertainty.json keeps SI.
+#[test]
+fn uncertainty_outputs_in_us_units() {
+    let dir = scratch("spread-us");
+    let src = with_table(
+        "[uncertainty]\nsamples = 3\n[[uncertainty.input]]\nkey = \"climate.amplitude_k\"\ndistribution = \"uniform\"\nmin = 13.0\nmax = 15.0\n",
+    );
+    let out = spread(&dir, "si", &src, &[]);
+    let us = dir.join("us");
+    let text = run_ok(&[
+        "merge".as_ref(),
+        out.as_os_str(),
+        "--out".as_ref(),
+        us.as_os_str(),
+        "--units".as_ref(),
+        "us".as_ref(),
+    ]);
+    let si = read_json(&out.join("uncertainty.json"))["stats"].clone();
+    assert_eq!(read_json(&us.join("uncertainty.json"))["stats"], si);
+    let printed = |label: &str, unit: &str| -> f64 {
+        let line = text
+            .lines()
+            .find(|l| l.trim_start().starts_with(label))
+            .unwrap_or_else(|| panic!("{label} not printed:\n{text}"));
+        let f: Vec<&str> = line[label.len() + 4..].split_whitespace().collect();
+        assert_eq!(f[0], unit, "{line}");
+        f[3].parse().unwrap()
+    };
+    let median = |k: &str| si[k]["p50"].as_f64().unwrap();
+    let m = printed("frost margin to the protected zone", "ft");
+    assert!(
+        (m - median("frost_margin_m") / 0.3048).abs() <= 0.0005,
+        "{m}"
+    );
+    let e = printed("annual ground heat loss", "kBtu");
+    assert!(
+        (e - median("annual_heat_loss_kwh") * 3.412_142).abs() <= 0.5,
+        "{e}"
+    );
+    let w = printed("peak ground heat loss", "Btu/h");
+    assert!(
+        (w - median("peak_heat_loss_w") * 3.412_142).abs() <= 0.05,
+        "{w}"
+    );
+    let svg = std::fs::read_to_string(us.join("uncertainty_margin.svg")).unwrap();
+    assert!(svg.contains("frost margin to the protected zone (ft)"));
+}

@@ -46,6 +46,9 @@ pub struct UncertaintyFile {
     pub wall_time_s: f64,
     /// Worker threads.
     pub threads: usize,
+    /// Units of the printed summary, report.html and plots (this file and samples.csv stay SI).
+    #[serde(default)]
+    pub units: super::us::Units,
 }
 
 /// What the statistics mean (printed and saved), for the sampled inputs `design`.
@@ -227,5 +230,6 @@ pub fn new_file(
         median_sample_s: median_run_s(samples),
         wall_time_s,
         threads,
+        units: super::us::Units::Si,
     })
 }

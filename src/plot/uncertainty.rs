@@ -40,11 +40,12 @@ fn draw_margin<DB: DrawingBackend>(
     let (lo, hi) = margins
         .iter()
         .fold((0.0f64, 0.0f64), |(a, b), &x| (a.min(x), b.max(x)));
-    let pad = 0.05 * (hi - lo).max(0.02);
+    let per = super::field::per_metre(f.units);
+    let pad = 0.05 * (hi - lo).max(0.02 * per);
     let (x0, x1) = (lo - pad, hi + pad);
     // Bins: about √n, at least 5, at most 40, over [lo, hi].
     let bins = ((margins.len() as f64).sqrt().round() as usize).clamp(5, 40);
-    let w = ((hi - lo) / bins as f64).max(1e-6);
+    let w = ((hi - lo) / bins as f64).max(1e-6 * per);
     let mut counts = vec![0usize; bins];
     for &m in margins {
         let k = (((m - lo) / w) as usize).min(bins - 1);
@@ -70,6 +71,18 @@ fn draw_margin<DB: DrawingBackend>(
         Rectangle::new([(a, 0.0), (a + w, n as f64)], BAR.mix(0.6).filled())
     }))
     .map_err(out_err)?;
+    // White edges, so that neighbouring bars of one height read as two bins.
+    c.draw_series(
+        counts
+            .iter()
+            .enumerate()
+            .filter(|(_, &n)| n > 0)
+            .map(|(k, &n)| {
+                let a = lo + k as f64 * w;
+                Rectangle::new([(a, 0.0), (a + w, n as f64)], WHITE.stroke_width(1))
+            }),
+    )
+    .map_err(out_err)?;
     c.draw_series(std::iter::once(PathElement::new(
         vec![(0.0, 0.0), (0.0, cmax as f64 * 1.1)],
         ZONE.stroke_width(2),
@@ -88,7 +101,10 @@ fn draw_margin<DB: DrawingBackend>(
         .build_cartesian_2d(x0..x1, 0.0..1.0)
         .map_err(out_err)?;
     e.configure_mesh()
-        .x_desc("frost margin to the protected zone (m)")
+        .x_desc(format!(
+            "frost margin to the protected zone ({})",
+            super::field::length_label(f.units)
+        ))
         .y_desc("fraction of samples ≤ margin")
         .label_style(("sans-serif", 13))
         .light_line_style(RGBColor(235, 235, 235))
@@ -193,10 +209,12 @@ pub fn uncertainty_plots(
     register_fonts();
     let target = Target { dir, scale: 1.0 };
     let mut files = Vec::new();
+    // In the report's units: metres or feet.
+    let per = super::field::per_metre(f.units);
     let margins: Vec<f64> = samples
         .iter()
         .filter(|s| s.error.is_none())
-        .map(|s| s.frost_margin_m)
+        .map(|s| s.frost_margin_m * per)
         .filter(|m| m.is_finite())
         .collect();
     if margins.is_empty() {

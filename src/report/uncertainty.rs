@@ -1,5 +1,6 @@
 //! The printed summary of `frostline uncertainty` and `frostline merge`, from `uncertainty.json`.
 use crate::files::uncertainty::UncertaintyFile;
+use crate::files::us::figure;
 use crate::uncertainty::Spread;
 
 /// A distribution in words: "normal, mean 0.15, sd 0.03, truncated to [0.05, 0.3]".
@@ -29,15 +30,46 @@ pub fn describe(d: &crate::case::Distribution) -> String {
     }
 }
 
-/// One result's row: percentiles with `d` decimals.
-fn row(label: &str, unit: &str, s: &Option<Spread>, d: usize) -> String {
-    match s {
-        Some(s) => format!(
-            "    {label:<34}{unit:>5}  {:>9.d$} {:>9.d$} {:>9.d$} {:>9.d$} {:>9.d$}\n",
-            s.p05, s.p25, s.p50, s.p75, s.p95
+/// The results' rows in the report's units: label, unit, the 5/25/50/75/95 % percentiles (None:
+/// no sample ran) and decimals.
+fn results(f: &UncertaintyFile) -> Vec<(&'static str, &'static str, Option<[f64; 5]>, usize)> {
+    let st = &f.stats;
+    [
+        (
+            "frost margin to the protected zone",
+            "m",
+            &st.frost_margin_m,
+            3,
         ),
-        None => format!("    {label:<34}{unit:>5}  (no sample ran)\n"),
-    }
+        (
+            "frost below the footing",
+            "m",
+            &st.frost_depth_under_footing_m,
+            3,
+        ),
+        (
+            "frost at the footing's outer face",
+            "m",
+            &st.frost_depth_at_footing_face_m,
+            3,
+        ),
+        (
+            "annual ground heat loss",
+            "kWh",
+            &st.annual_heat_loss_kwh,
+            0,
+        ),
+        ("peak ground heat loss", "W", &st.peak_heat_loss_w, 1),
+    ]
+    .into_iter()
+    .map(|(label, unit, s, d): (_, _, &Option<Spread>, _)| {
+        let (u, _, d) = figure(f.units, unit, 0.0, d);
+        let v = s
+            .as_ref()
+            .map(|s| [s.p05, s.p25, s.p50, s.p75, s.p95].map(|x| figure(f.units, unit, x, d).1));
+        (label, u, v, d)
+    })
+    .collect()
 }
 
 /// The warning for samples whose spin-up did not reach a periodic year.
@@ -91,31 +123,15 @@ pub fn text(f: &UncertaintyFile) -> String {
         "\n  {head:<43}{:>9} {:>9} {:>9} {:>9} {:>9}\n",
         "5 %", "25 %", "median", "75 %", "95 %"
     );
-    t += &row(
-        "frost margin to the protected zone",
-        "m",
-        &st.frost_margin_m,
-        3,
-    );
-    t += &row(
-        "frost below the footing",
-        "m",
-        &st.frost_depth_under_footing_m,
-        3,
-    );
-    t += &row(
-        "frost at the footing's outer face",
-        "m",
-        &st.frost_depth_at_footing_face_m,
-        3,
-    );
-    t += &row(
-        "annual ground heat loss",
-        "kWh",
-        &st.annual_heat_loss_kwh,
-        0,
-    );
-    t += &row("peak ground heat loss", "W", &st.peak_heat_loss_w, 1);
+    for (label, unit, v, d) in results(f) {
+        t += &match v {
+            Some(v) => format!(
+                "    {label:<34}{unit:>5}  {:>9.d$} {:>9.d$} {:>9.d$} {:>9.d$} {:>9.d$}\n",
+                v[0], v[1], v[2], v[3], v[4]
+            ),
+            None => format!("    {label:<34}{unit:>5}  (no sample ran)\n"),
+        };
+    }
     t += &format!(
         "\n  P(frost in the protected zone) = {} / {} = {:.3}, 95 % interval {:.3} to {:.3}\n",
         st.frost_in_zone_count,
@@ -183,42 +199,12 @@ pub fn html(dir: &std::path::Path, f: &UncertaintyFile) -> crate::error::Result<
         );
     }
     h += "</table>\n<h2>Results</h2>\n<table>\n<tr><th>result</th><th>unit</th><th>5 %</th><th>25 %</th><th>median</th><th>75 %</th><th>95 %</th></tr>\n";
-    let rows = [
-        (
-            "frost margin to the protected zone",
-            "m",
-            &st.frost_margin_m,
-            3,
-        ),
-        (
-            "frost below the footing",
-            "m",
-            &st.frost_depth_under_footing_m,
-            3,
-        ),
-        (
-            "frost at the footing's outer face",
-            "m",
-            &st.frost_depth_at_footing_face_m,
-            3,
-        ),
-        (
-            "annual ground heat loss",
-            "kWh",
-            &st.annual_heat_loss_kwh,
-            0,
-        ),
-        ("peak ground heat loss", "W", &st.peak_heat_loss_w, 1),
-    ];
-    for (label, unit, s, d) in rows {
-        let cells = s
-            .as_ref()
-            .map_or("<td colspan=5>no sample ran</td>".to_string(), |s| {
-                [s.p05, s.p25, s.p50, s.p75, s.p95]
-                    .iter()
-                    .map(|v| format!("<td class=n>{v:.d$}</td>"))
-                    .collect()
-            });
+    for (label, unit, v, d) in results(f) {
+        let cells = v.map_or("<td colspan=5>no sample ran</td>".to_string(), |v| {
+            v.iter()
+                .map(|v| format!("<td class=n>{v:.d$}</td>"))
+                .collect()
+        });
         h += &format!("<tr><td>{label}</td><td>{unit}</td>{cells}</tr>\n");
     }
     h += "</table>\n";
