@@ -63,6 +63,12 @@ fn in_us(f: &SizingFile) -> SizingFile {
         chosen: f.chosen.as_ref().map(conv),
         tradeoff: f.tradeoff.iter().map(conv).collect(),
         designs: f.designs.iter().map(conv).collect(),
+        // The varied keys as a US case names them (wing.width_ft).
+        dimensions: f
+            .dimensions
+            .iter()
+            .map(|d| crate::files::us::convert(d, 0.0).map_or(d.clone(), |(k, _)| k))
+            .collect(),
         ..f.clone()
     }
 }

@@ -41,6 +41,15 @@ pub(crate) fn per_length(name: &str) -> String {
     }
 }
 
+/// A case key as shown: in US units its SI unit part replaced by the US one
+/// (`wing.width_m` → `wing.width_ft`), as a US case file would name it.
+pub(crate) fn key_shown(key: &str) -> String {
+    match current() {
+        Units::Si => key.to_string(),
+        Units::Us => crate::files::us::convert(key, 0.0).map_or(key.to_string(), |(k, _)| k),
+    }
+}
+
 /// An SI figure as shown: unit label, value and decimals in the units being rendered.
 pub(crate) fn shown(label: &str, v: f64, prec: usize) -> (&str, f64, usize) {
     figure(current(), label, v, prec)

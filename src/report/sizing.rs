@@ -107,12 +107,10 @@ pub fn text(f: &SizingFile) -> String {
     if let Some(why) = &f.no_insulation_needed {
         s += &format!("\n  No insulation needed: {}.\n", lengths_shown(why));
     } else {
-        let last = f.dimensions.last().cloned().unwrap_or_default();
-        s += &if f.dimensions.len() == 2 {
-            format!(
-                "\n  Trade-off (least {last} for each {}):\n",
-                f.dimensions[0]
-            )
+        let dims: Vec<String> = f.dimensions.iter().map(|d| super::key_shown(d)).collect();
+        let last = dims.last().cloned().unwrap_or_default();
+        s += &if dims.len() == 2 {
+            format!("\n  Trade-off (least {last} for each {}):\n", dims[0])
         } else {
             format!("\n  Least {last} that meets the margin:\n")
         };
@@ -136,7 +134,7 @@ pub fn text(f: &SizingFile) -> String {
         }
         match &f.chosen {
             Some(d) => {
-                s += &format!("\n  Chosen (least cost): {} = {}\n", f.dimensions.join(", "), values(&d.values, ", ", &format!(" {}", lu())));
+                s += &format!("\n  Chosen (least cost): {} = {}\n", dims.join(", "), values(&d.values, ", ", &format!(" {}", lu())));
                 s += &format!("    frost margin {} {}{}\n", len(d.frost_margin_m, 2), lu(), heat(d.annual_heat_loss_kwh, Some(d.heat_loss_change_kwh)));
             }
             None => s += "\n  No design within the bounds meets the margin: widen the bounds or deepen the footing.\n",
@@ -158,7 +156,7 @@ pub fn text(f: &SizingFile) -> String {
         let u = lu();
         s += &format!(
             "\n  Corner check in 3D ({}, {} to {} {u} by {} {u}):\n",
-            c.dimension,
+            super::key_shown(&c.dimension),
             len(c.range_m[0], 2),
             len(c.range_m[1], 2),
             len(c.range_m[2], 2)
@@ -215,7 +213,11 @@ pub fn html(f: &SizingFile) -> String {
             escape(&lengths_shown(why))
         );
     }
-    let dims: Vec<String> = f.dimensions.iter().map(|d| escape(d)).collect();
+    let dims: Vec<String> = f
+        .dimensions
+        .iter()
+        .map(|d| escape(&super::key_shown(d)))
+        .collect();
     let (u, eu) = (lu(), energy(0.0).1);
     let heat_heads = if f.unheated {
         String::new()
@@ -257,7 +259,7 @@ pub fn html(f: &SizingFile) -> String {
         } else {
             format!("<th>annual heat loss ({eu})</th>")
         };
-        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} ({u})</th><th>least margin ({u})</th><th>corner margin ({u})</th><th>corner frost at the face ({u})</th>{heat_head}<th>passes</th></tr>\n", escape(&c.dimension));
+        h += &format!("<h3>Corner check in 3D</h3>\n<table>\n<tr><th>{} ({u})</th><th>least margin ({u})</th><th>corner margin ({u})</th><th>corner frost at the face ({u})</th>{heat_head}<th>passes</th></tr>\n", escape(&super::key_shown(&c.dimension)));
         for d in &c.designs {
             let heat = if f.unheated {
                 String::new()
@@ -301,5 +303,17 @@ mod tests {
             "frost depth of 0.30 ft, above the footing base (1.31 ft); 2 m² and 5 mm stay, -0.98 ft too"
         );
         assert_eq!(crate::report::in_units(Units::Si, || lengths_shown(s)), s);
+    }
+
+    /// A varied key is named as a US case file names it (its value is shown in feet beside it).
+    #[test]
+    fn dimension_names_in_us_units() {
+        let us = |k: &str| crate::report::in_units(Units::Us, || crate::report::key_shown(k));
+        assert_eq!(us("wing.width_m"), "wing.width_ft");
+        assert_eq!(us("corner[0].length_m"), "corner[0].length_ft");
+        assert_eq!(
+            crate::report::in_units(Units::Si, || crate::report::key_shown("wing.width_m")),
+            "wing.width_m"
+        );
     }
 }
