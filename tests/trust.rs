@@ -506,6 +506,9 @@ fn footing_on_a_board_keeps_the_zone_below_the_board() {
     let margin = num(&s, "frost_margin_m");
     assert!((0.0..0.10).contains(&margin), "margin {margin}");
     assert!(!s["frost_in_protected_zone"].as_bool().unwrap());
+    // The frost chart marks the bearing level under the board beside the footing base.
+    let svg = std::fs::read_to_string(out.join("frost_depth.svg")).unwrap();
+    assert!(svg.contains("bearing level, under the board (0.50 m)"));
     let open = num(&s, "frost_depth_open_ground_m");
     let mb = s["cross_check"]["modified_berggren_frost_depth_m"]
         .as_f64()

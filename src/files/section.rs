@@ -44,6 +44,10 @@ pub struct SectionFile {
     pub parts: Vec<PartOutline>,
     /// Footing base depth, m.
     pub footing_base_depth_m: f64,
+    /// Depth of the bearing soil's top, m: the footing base, or the underside of the insulation
+    /// board the footing bears on (0 in files written before it was recorded: read as the base).
+    #[serde(default)]
+    pub bearing_depth_m: f64,
     /// Footing x range, m.
     pub footing_x_m: (f64, f64),
     /// Frost-line temperature, °C.
@@ -95,6 +99,7 @@ impl SectionFile {
             ze: g.ze.clone(),
             parts,
             footing_base_depth_m: case.footing.base_depth_m,
+            bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
             footing_x_m: case.footing_x(),
             frost_line_c: crate::run::frost_line_c(case),
             field_day_of_year: r.field.day_of_year,

@@ -51,6 +51,38 @@ pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
     Ok(())
 }
 
+/// Under a footing that bears on an insulation board: the dashed bearing level (the board's
+/// underside, the top of the protected zone) from x0 to x1, with its legend entry.
+fn bearing_line<'a, DB: DrawingBackend + 'a>(
+    chart: &mut ChartContext<
+        'a,
+        DB,
+        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+    >,
+    x0: f64,
+    x1: f64,
+    d: &PlotData,
+) -> Result<()> {
+    let (base, bearing) = (d.footing_base_depth_m, d.bearing_depth_m);
+    if bearing <= base + 1e-9 {
+        return Ok(());
+    }
+    let unit = d.unit("m");
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(x0, bearing), (x1, bearing)],
+            3,
+            4,
+            FOOT.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label(format!(
+            "bearing level, under the board ({bearing:.2} {unit})"
+        ))
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(2)));
+    Ok(())
+}
+
 fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {
     move |x: &f64| {
         let k = (x.round().max(0.0) as usize).min(d.days.len().saturating_sub(1));
@@ -72,7 +104,7 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         .days
         .iter()
         .map(|x| x.frost_open_m.max(x.frost_footing_m))
-        .fold(d.footing_base_depth_m, f64::max);
+        .fold(d.bearing_depth_m, f64::max);
     let zmax = (deepest * 1.15).max(if d.units == crate::files::us::Units::Si {
         0.5
     } else {
@@ -139,8 +171,9 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
             }
         }
     }
-    // Frost below the footing base, where there is any.
-    let under = frozen_runs(d, |x| (d.footing_base_depth_m, x.frost_footing_m));
+    // Frost below the footing's bearing level (its base, or the board's underside), where there
+    // is any.
+    let under = frozen_runs(d, |x| (d.bearing_depth_m, x.frost_footing_m));
     for (r, run) in under.iter().enumerate() {
         let s = chart
             .draw_series(LineSeries::new(
@@ -149,11 +182,16 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
             ))
             .map_err(out_err)?;
         if r == 0 {
-            s.label("under the footing (below its base)")
-                .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
+            s.label(if d.bearing_depth_m > d.footing_base_depth_m + 1e-9 {
+                "under the footing (below the board)"
+            } else {
+                "under the footing (below its base)"
+            })
+            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
         }
     }
     footing_base_line(&mut chart, 0.0, n, (d.footing_base_depth_m, d.unit("m")))?;
+    bearing_line(&mut chart, 0.0, n, d)?;
     legend(&mut chart, SeriesLabelPosition::LowerLeft)?;
     root.present().map_err(out_err)
 }
@@ -367,7 +405,7 @@ fn draw_winters<DB: DrawingBackend>(
     let zmax = w
         .iter()
         .map(|x| x.1.max(x.2))
-        .fold(d.footing_base_depth_m, f64::max)
+        .fold(d.bearing_depth_m, f64::max)
         * 1.15;
     let (y0, y1) = (w[0].0 as f64 - 0.5, w[w.len() - 1].0 as f64 + 0.5);
     let mut chart = ChartBuilder::on(root)
@@ -411,6 +449,7 @@ fn draw_winters<DB: DrawingBackend>(
         .label("under the footing")
         .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], FOOT.filled()));
     footing_base_line(&mut chart, y0, y1, (d.footing_base_depth_m, d.unit("m")))?;
+    bearing_line(&mut chart, y0, y1, d)?;
     legend(&mut chart, SeriesLabelPosition::LowerRight)?;
     root.present().map_err(out_err)
 }

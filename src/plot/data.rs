@@ -24,6 +24,8 @@ pub struct PlotData {
     pub parts: Vec<PartOutline>,
     /// Footing base depth, m.
     pub footing_base_depth_m: f64,
+    /// Bearing level: the footing base, or the underside of the board it bears on, m.
+    pub bearing_depth_m: f64,
     /// Footing x range, m.
     pub footing_x: (f64, f64),
     /// Frost-line temperature, °C.
@@ -113,6 +115,7 @@ impl PlotData {
             ze: sec.ze,
             parts: sec.parts,
             footing_base_depth_m: sec.footing_base_depth_m,
+            bearing_depth_m: sec.bearing_depth_m.max(sec.footing_base_depth_m),
             footing_x: sec.footing_x_m,
             frost_line_c: sec.frost_line_c,
             days,
@@ -174,6 +177,7 @@ impl PlotData {
             }
         }
         cv("footing_base_depth_m", &mut self.footing_base_depth_m);
+        cv("bearing_depth_m", &mut self.bearing_depth_m);
         self.units = units;
     }
 
