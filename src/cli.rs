@@ -675,7 +675,6 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         bar.set_message("2D section, then 3D");
     }
     let opts = frostline::batch::RunInto {
-        mesh: None,
         units: a.units.into(),
         plots: !a.no_plots,
         animate: a.animate,
@@ -692,18 +691,6 @@ fn run_case(a: RunArgs) -> Result<Vec<String>, Error> {
         print_files(&a.out, &written);
     }
     Ok(unmet(&summary))
-}
-
-/// Plots and report.html of the run in `dir`.
-fn render(dir: &Path, animate: bool, dpi: Option<u32>) -> Result<Vec<PathBuf>, Error> {
-    let opts = PlotOptions {
-        animate,
-        dpi,
-        ..Default::default()
-    };
-    let mut written = frostline::plot::render_dir(dir, &opts)?;
-    written.push(report::html::write_report(dir)?);
-    Ok(written)
 }
 
 fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
@@ -747,7 +734,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &a.out,
             a.units.into(),
         )?);
-        written.extend(render(&a.out, false, a.image.dpi)?);
+        written.extend(frostline::batch::render(&a.out, false, a.image.dpi)?);
     } else if let Some((chosen, r)) = &result.chosen_run {
         written.extend(files::write_run(
             chosen,
@@ -756,7 +743,7 @@ fn size(a: SizeArgs) -> Result<Vec<String>, Error> {
             &a.out,
             a.units.into(),
         )?);
-        written.extend(render(&a.out, false, a.image.dpi)?);
+        written.extend(frostline::batch::render(&a.out, false, a.image.dpi)?);
     }
     written.push(files::write_manifest(&a.out, &written, false)?);
     say!(
@@ -1055,8 +1042,8 @@ fn batch(a: BatchArgs) -> Result<Vec<String>, Error> {
     let start = std::time::Instant::now();
     let list = batch::read_list(&a.list)?;
     let (shard, out, _lock) = split_start(&a.split)?;
+    let mesh = a.split.mesh.map(Into::into);
     let opts = batch::RunInto {
-        mesh: a.split.mesh.map(Into::into),
         units: a.units.into(),
         plots: !a.no_plots,
         animate: false,
@@ -1066,17 +1053,18 @@ fn batch(a: BatchArgs) -> Result<Vec<String>, Error> {
     let bar = bar(a.split.quiet, None);
     bar.set_message(format!("0 of {total} cases"));
     let cb = |n: usize| bar.set_message(format!("{n} of {total} cases"));
-    let rows = batch::run_batch(&list, shard, &out, &opts, &cb);
+    let rows = batch::run_batch(&list, (shard, mesh), &out, &opts, &cb);
     bar.finish_and_clear();
     let rows = rows?;
-    let mesh = opts.mesh.map(|m| format!("{m:?}").to_lowercase());
-    let f = files::batch::BatchFile::new(
+    let mesh = mesh.map(|m: Fineness| format!("{m:?}").to_lowercase());
+    let mut f = files::batch::BatchFile::new(
         &list.file,
         &list.entries,
         (mesh, shard),
         &rows,
         (start.elapsed().as_secs_f64(), rayon::current_num_threads()),
     );
+    f.units = a.units.into();
     write_batch(&out, &f, &rows)
 }
 
@@ -1120,7 +1108,20 @@ fn merge_batch(a: &MergeArgs) -> Result<Vec<String>, Error> {
     let (mut rows, mut copies) = (Vec::new(), Vec::new());
     for d in &a.dirs {
         for r in files::batch::read_rows(d)? {
-            copies.push((d.join(&r.dir), a.out.join(&r.dir)));
+            // The directory a batch gives the case, nothing else (no path out of OUT).
+            let entry = first.cases.get(r.case.wrapping_sub(1));
+            if entry.map(|e| frostline::batch::case_dir(r.case - 1, Path::new(e)))
+                != Some(r.dir.clone())
+            {
+                return Err(files::bad_file(
+                    d,
+                    "batch.csv",
+                    format!("case {} with directory \"{}\"; allowed: the batch's own (cases/NNN-NAME of the listed case)", r.case, r.dir),
+                ));
+            }
+            if r.error.is_none() {
+                copies.push((d.join(&r.dir), a.out.join(&r.dir)));
+            }
             rows.push(r);
         }
     }
@@ -1135,9 +1136,13 @@ fn merge_batch(a: &MergeArgs) -> Result<Vec<String>, Error> {
         ));
     }
     let _lock = files::check_writable(&a.out)?;
-    // A case refused before its run has no directory.
-    for (from, to) in copies.iter().filter(|c| c.0.is_dir()) {
+    // Only the cases that ran have results; an earlier run's files in OUT are cleared first.
+    for (from, to) in &copies {
+        files::clear_run(to)?;
         copy_dir(from, to)?;
+    }
+    for r in rows.iter().filter(|r| r.error.is_some()) {
+        files::clear_run(&a.out.join(&r.dir))?;
     }
     let f = files::batch::BatchFile {
         shard: frostline::uncertainty::Shard::WHOLE,
@@ -1147,6 +1152,7 @@ fn merge_batch(a: &MergeArgs) -> Result<Vec<String>, Error> {
         wall_time_s: start.elapsed().as_secs_f64()
             + parts.iter().map(|p| p.wall_time_s).sum::<f64>(),
         threads: parts.iter().map(|p| p.threads).max().unwrap_or(1),
+        units: a.units.map_or(first.units, Into::into),
         ..first.clone()
     };
     write_batch(&a.out, &f, &rows)

@@ -48,9 +48,11 @@ fn table(dir: &Path) -> String {
         .join("\n")
 }
 
-/// Three cases (a heated house, an unheated storehouse, a case the rules refuse): the batch
+/// Four cases (a heated house, an unheated storehouse, a case the rules refuse, one whose run
+/// fails: frost to the bottom of its domain), listed with a byte-order mark: the batch
 /// writes a row per case and each case's full results; a row's figures equal its directory's
-/// summary.json to the last digit; the refused case is recorded and the batch exits 3 (a case
+/// summary.json to the last digit; the refused and failed cases are recorded (the failed one
+/// leaves no results) and the batch exits 3 (a case
 /// did not run); shards 1/2 (flag) and 2/2 (Slurm variables) merged give the same batch.csv (run
 /// times aside) and the same case files as the unsharded batch.
 #[test]
@@ -60,24 +62,41 @@ fn batch_sharded_and_merged_equals_unsharded() {
     let bad = std::fs::read_to_string(root.join("examples/kettle-hollow-house.toml"))
         .unwrap()
         .replace("width_m = 0.40", "width_m = 0.10");
-    std::fs::write(dir.join("narrow.toml"), bad).unwrap();
+    std::fs::write(dir.join("narrow.toml"), &bad).unwrap();
+    // A case whose run stops on its own terms: frost down to the bottom of a 2 m deep domain.
+    let shallow = bad
+        .replace("width_m = 0.10", "width_m = 0.40")
+        .replace("[simulation]", "[simulation]\ndomain_depth_m = 2.0");
+    // First a run in which it succeeds (the default 10 m deep domain), then the failing one.
+    std::fs::write(
+        dir.join("shallow.toml"),
+        shallow.replace("domain_depth_m = 2.0", ""),
+    )
+    .unwrap();
     let list = dir.join("sites.txt");
+    // With a byte-order mark, as some editors write.
     std::fs::write(
         &list,
         format!(
-            "# three invented sites\n{}\n\n{}   # unheated\nnarrow.toml\n",
+            "\u{feff}# four invented sites\n{}\n\n{}   # unheated\nnarrow.toml\nshallow.toml\n",
             root.join("examples/kettle-hollow-house.toml").display(),
             root.join("examples/sedge-point-storehouse.toml").display()
         ),
     )
     .unwrap();
     let whole = dir.join("whole");
+    batch(&list, &whole, &[], &[]);
+    assert!(whole.join("cases/004-shallow/summary.json").exists());
+    std::fs::write(dir.join("shallow.toml"), shallow).unwrap();
     let (code, stdout, _) = batch(&list, &whole, &[], &[]);
     assert_eq!(code, 3, "{stdout}");
     assert!(stdout.contains("Caution:"));
     let rows = table(&whole);
     let lines: Vec<&str> = rows.lines().collect();
-    assert_eq!(lines.len(), 4, "{rows}");
+    assert_eq!(lines.len(), 5, "{rows}");
+    assert!(lines[4].contains(",failed,"), "{}", lines[4]);
+    // A failed case leaves no results behind (not even of an earlier run into the same place).
+    assert!(!whole.join("cases/004-shallow/summary.json").exists());
     assert!(
         lines[1].contains(",cases/001-kettle-hollow-house,ok,"),
         "{}",
@@ -102,7 +121,7 @@ fn batch_sharded_and_merged_equals_unsharded() {
         ("SLURM_ARRAY_TASK_MIN", "1"),
         ("SLURM_ARRAY_TASK_COUNT", "2"),
     ];
-    assert_eq!(batch(&list, &parts, &[], &slurm).0, 0);
+    assert_eq!(batch(&list, &parts, &[], &slurm).0, 3);
     let merged = dir.join("merged");
     let o = bin()
         .arg("merge")
@@ -136,7 +155,7 @@ fn batch_sharded_and_merged_equals_unsharded() {
             b["cases_ok"].as_u64(),
             b["cases_not_run"].as_u64()
         ),
-        (Some(2), Some(2), Some(1))
+        (Some(2), Some(2), Some(2))
     );
 
     // A merge with a shard missing is refused.

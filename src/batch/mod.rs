@@ -33,7 +33,8 @@ pub fn read_list(path: &Path) -> Result<CaseList> {
     let base = path.parent().unwrap_or(Path::new("."));
     let file = path.display().to_string();
     let mut entries = Vec::new();
-    for (n, line) in text.lines().enumerate() {
+    // A byte-order mark (as some editors write) is not part of the first path.
+    for (n, line) in text.trim_start_matches('\u{feff}').lines().enumerate() {
         let entry = line.split('#').next().unwrap_or("").trim();
         if entry.is_empty() {
             continue;
@@ -69,11 +70,9 @@ pub fn read_list(path: &Path) -> Result<CaseList> {
     })
 }
 
-/// How the cases of a batch (or one `frostline run`) are run and written.
+/// How the cases of a batch (or one `frostline run`) are written.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct RunInto {
-    /// Mesh fineness instead of the case's.
-    pub mesh: Option<Fineness>,
     /// Units of the report and the extra US files.
     pub units: Units,
     /// Write the plots and report.html.
@@ -103,15 +102,22 @@ pub fn run_into(
         files::write_run(case, &r, &cc, out, opts.units)?
     };
     if opts.plots {
-        let p = PlotOptions {
-            animate: opts.animate,
-            dpi: opts.dpi,
-            ..Default::default()
-        };
-        written.extend(crate::plot::render_dir(out, &p)?);
-        written.push(crate::report::html::write_report(out)?);
+        written.extend(render(out, opts.animate, opts.dpi)?);
     }
     written.push(files::write_manifest(out, &written, false)?);
+    Ok(written)
+}
+
+/// The plots and report.html of the run in `dir` (the year's animation with `animate`, images
+/// at `dpi`).
+pub fn render(dir: &Path, animate: bool, dpi: Option<u32>) -> Result<Vec<PathBuf>> {
+    let p = PlotOptions {
+        animate,
+        dpi,
+        ..Default::default()
+    };
+    let mut written = crate::plot::render_dir(dir, &p)?;
+    written.push(crate::report::html::write_report(dir)?);
     Ok(written)
 }
 
@@ -123,13 +129,14 @@ pub fn case_dir(index: usize, path: &Path) -> String {
     format!("cases/{:03}-{stem}", index + 1)
 }
 
-/// Run the cases of `shard` in parallel (rayon's pool), each into `out/cases/NNN-STEM`;
-/// `progress` is called after each case with the count done. A case the rules refuse, or whose
-/// run stops on its own terms, is recorded in its row and the others go on; a failure to write
-/// ends the batch.
+/// Run the cases of `shard` in parallel (rayon's pool), each into `out/cases/NNN-STEM`, on the
+/// `mesh` given (else each case's own); `progress` is called after each case with the count
+/// done. A case the rules refuse ("refused"), or whose run stops on its own terms ("failed"), is
+/// recorded in its row, its directory cleared of an earlier run's files, and the others go on; a
+/// failure to write ends the batch.
 pub fn run_batch(
     list: &CaseList,
-    shard: Shard,
+    (shard, mesh): (Shard, Option<Fineness>),
     out: &Path,
     opts: &RunInto,
     progress: &(dyn Fn(usize) + Sync),
@@ -142,24 +149,35 @@ pub fn run_batch(
             let t0 = std::time::Instant::now();
             let dir = case_dir(i, &list.paths[i]);
             let mut row = CaseRow::new(i, &list.entries[i], &dir);
-            let ran = load_case(&list.paths[i]).and_then(|mut case| {
-                if let Some(m) = opts.mesh {
-                    case.simulation.mesh = m;
+            let d = out.join(&dir);
+            match load_case(&list.paths[i]) {
+                Err(e) if e.is_input() => {
+                    row.error = Some(e.to_string());
+                    files::clear_run(&d)?;
                 }
-                row.case_name = case.name.clone();
-                row.model = match case.simulation.model {
-                    ModelKind::ThreeD => "3d",
-                    ModelKind::TwoD => "2d",
-                }
-                .into();
-                std::fs::create_dir_all(out.join(&dir))
-                    .map_err(|e| Error::io(out.join(&dir), e))?;
-                run_into(&case, &out.join(&dir), opts, &mut |_| {})
-            });
-            match ran {
-                Err(e) if e.is_input() => row.error = Some(e.to_string()),
                 Err(e) => return Err(e),
-                Ok(_) => row.fill(&files::read_summary(&out.join(&dir))?),
+                Ok(mut case) => {
+                    if let Some(m) = mesh {
+                        case.simulation.mesh = m;
+                    }
+                    row.case_name = case.name.clone();
+                    row.model = match case.simulation.model {
+                        ModelKind::ThreeD => "3d",
+                        ModelKind::TwoD => "2d",
+                    }
+                    .into();
+                    std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
+                    match run_into(&case, &d, opts, &mut |_| {}) {
+                        // A run that stops on its own terms (e.g. frost at the domain's bottom).
+                        Err(e) if e.is_input() => {
+                            row.status = "failed".into();
+                            row.error = Some(e.to_string());
+                            files::clear_run(&d)?;
+                        }
+                        Err(e) => return Err(e),
+                        Ok(_) => row.fill(&files::read_summary(&d)?),
+                    }
+                }
             }
             row.run_s = t0.elapsed().as_secs_f64();
             progress(done.fetch_add(1, std::sync::atomic::Ordering::SeqCst) + 1);

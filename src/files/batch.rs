@@ -8,7 +8,8 @@ use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
 /// One case of a batch: what it gave (a 3D case: its whole-building headline, the least margin
-/// anywhere round the building), or why it did not run.
+/// anywhere round the building; its status also counts the 2D section's checks, as
+/// `frostline run` does), or why it did not run.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct CaseRow {
     /// The case's number in the list, 1-based (its directory's number).
@@ -35,7 +36,8 @@ pub struct CaseRow {
     pub annual_heat_loss_kwh: f64,
     /// Peak (daily mean) ground heat loss, W.
     pub peak_heat_loss_w: f64,
-    /// Ground U-value with the junction, H_g/A, W/(m²·K) (NaN: a basement).
+    /// Ground U-value with the junction, H_g/A, W/(m²·K) (NaN: not given, e.g. an unheated
+    /// building).
     pub ground_u_value_w_per_m2k: f64,
     /// Wall time, s.
     pub run_s: f64,
@@ -96,7 +98,8 @@ impl CaseRow {
                     t.headline.annual_heat_loss_kwh,
                     t.headline.peak_heat_loss_w,
                     t.headline.ground_u_value_incl_junction_w_per_m2k,
-                    t.headline.frost_in_protected_zone,
+                    // As `frostline run` judges a 3D run: the 2D section's check too.
+                    t.headline.frost_in_protected_zone || s.frost_in_protected_zone,
                 ),
                 t.spin_up_converged && s.spin_up_converged,
             ),
@@ -159,6 +162,9 @@ pub struct BatchFile {
     pub wall_time_s: f64,
     /// Worker threads.
     pub threads: usize,
+    /// Units of the printed table and of each case's report (this file and batch.csv stay SI).
+    #[serde(default)]
+    pub units: super::us::Units,
 }
 
 impl BatchFile {
@@ -182,6 +188,7 @@ impl BatchFile {
             cases_not_run: not_run,
             wall_time_s,
             threads,
+            units: super::us::Units::Si,
         }
     }
 }

@@ -228,6 +228,17 @@ pub fn remove_previous(dir: &Path) -> Result<Vec<String>> {
     Ok(removed)
 }
 
+/// Remove an earlier run's files from `dir` (as [`remove_previous`]) and its manifest: a case
+/// that did not run this time leaves no results of the last time behind.
+pub fn clear_run(dir: &Path) -> Result<()> {
+    remove_previous(dir)?;
+    let m = dir.join(MANIFEST);
+    if std::fs::symlink_metadata(&m).is_ok_and(|md| md.file_type().is_file()) {
+        std::fs::remove_file(&m).map_err(|e| Error::io(&m, e))?;
+    }
+    Ok(())
+}
+
 /// Record `written` (paths in `dir`) in `dir`'s manifest, with the names already there when
 /// `append` (a re-plot adds to its run's files).
 pub fn write_manifest(dir: &Path, written: &[PathBuf], append: bool) -> Result<PathBuf> {

@@ -1,5 +1,6 @@
 //! The terminal summary of a batch: one line per case with its status and design answers.
 use crate::files::batch::{BatchFile, CaseRow};
+use crate::files::us::figure;
 use crate::files::CAUTION;
 
 /// The batch's table.
@@ -21,13 +22,21 @@ pub fn text(f: &BatchFile, rows: &[CaseRow]) -> String {
         "  {:>4}  {:<28} {:>5} {:>9} {:>9} {:>9} {:>9}  {}\n",
         "case", "name", "model", "margin", "frost", "annual", "U", "status"
     );
+    let unit = |si: &'static str| figure(f.units, si, 0.0, 0).0;
     t += &format!(
         "  {:>4}  {:<28} {:>5} {:>9} {:>9} {:>9} {:>9}\n",
-        "", "", "", "m", "footing m", "kWh", "W/(m²K)"
+        "",
+        "",
+        "",
+        unit("m"),
+        format!("footing {}", unit("m")),
+        unit("kWh"),
+        unit("W/(m²K)")
     );
     let mut rows: Vec<&CaseRow> = rows.iter().collect();
     rows.sort_by_key(|r| r.case);
-    let num = |v: f64, d: usize| {
+    let num = |si: &str, v: f64, d: usize| {
+        let (_, v, d) = figure(f.units, si, v, d);
         if v.is_finite() {
             format!("{v:.d$}")
         } else {
@@ -48,10 +57,10 @@ pub fn text(f: &BatchFile, rows: &[CaseRow]) -> String {
             "  {:>4}  {name:<28} {:>5} {:>9} {:>9} {:>9} {:>9}  {status}\n",
             r.case,
             r.model,
-            num(r.frost_margin_m, 2),
-            num(r.frost_depth_under_footing_m, 2),
-            num(r.annual_heat_loss_kwh, 0),
-            num(r.ground_u_value_w_per_m2k, 3),
+            num("m", r.frost_margin_m, 2),
+            num("m", r.frost_depth_under_footing_m, 2),
+            num("kWh", r.annual_heat_loss_kwh, 0),
+            num("W/(m²K)", r.ground_u_value_w_per_m2k, 3),
         );
     }
     t += "\n  margin: frost margin to the protected zone (3D cases: the least anywhere round the building); frost footing: frost depth below the footing's bearing level; annual: ground heat loss; U: H_g/A with the junction. Each case's full results are in its directory (batch.csv: dir).\n";

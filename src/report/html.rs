@@ -119,9 +119,12 @@ fn report(dir: &Path, out: &Path, s: files::Summary) -> Result<PathBuf> {
         escape(&s.note)
     ));
     if let Some(s3) = &s.three_d {
-        h.push_str(&super::three::html(s3, out)?);
+        h.push_str(&super::three::html(s3, out, &super::peak_label(&s))?);
     }
     h.push_str(&results(&s));
+    if s.design_winter.is_some() || s.climate.season.is_some() {
+        h.push_str(&format!("<p>Periods: {}.</p>\n", escape(&s.periods)));
+    }
     if let Some(z) = &sizing {
         h.push_str(&super::sizing::html(z));
     }
@@ -222,7 +225,7 @@ fn heat_rows(s: &Summary) -> Vec<Row> {
             "W",
             raw(s.peak_heat_loss_w, 1),
             "–".into(),
-            "the design winter's when there is one",
+            "the design winter's, or the chosen measured season's, when the case runs one",
         ),
         (
             "ground heat loss per metre of exposed perimeter",

@@ -41,6 +41,18 @@ pub(crate) fn per_length(name: &str) -> String {
     }
 }
 
+/// The peak heat-loss row's name: of the design winter, of the measured season run, or of the
+/// reported year.
+pub(crate) fn peak_label(s: &crate::files::Summary) -> String {
+    if s.design_winter.is_some() {
+        "peak (daily mean, design winter)".into()
+    } else if let Some(y) = s.climate.season {
+        format!("peak (daily mean, season {y}–{:02})", (y + 1) % 100)
+    } else {
+        "peak (daily mean)".into()
+    }
+}
+
 /// A case key as shown: in US units its SI unit part replaced by the US one
 /// (`wing.width_m` → `wing.width_ft`), as a US case file would name it.
 pub(crate) fn key_shown(key: &str) -> String {

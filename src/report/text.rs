@@ -54,7 +54,7 @@ pub fn result_table(s: &Summary) -> String {
 fn table(s: &Summary) -> String {
     let mut t = format!("{}\n", s.case_name);
     if let Some(three) = &s.three_d {
-        t += &three_rows(three);
+        t += &three_rows(three, &super::peak_label(s));
         t += "\n  2D section (ISO 13370 equivalent strip) of the same case:\n";
     }
     t += &format!(
@@ -77,7 +77,7 @@ fn table(s: &Summary) -> String {
 
 /// The 3D block: whole-building heat loss and the frost along the perimeter, with the 2D strip
 /// beside.
-fn three_rows(s: &Summary3) -> String {
+fn three_rows(s: &Summary3, peak: &str) -> String {
     let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
     let nan = f64::NAN;
     let mut t = format!(
@@ -101,12 +101,7 @@ fn three_rows(s: &Summary3) -> String {
         &[h.annual_heat_loss_kwh, two.annual_heat_loss_kwh],
     );
     t += &row("mean", "W", 1, &[h.mean_heat_loss_w, two.mean_heat_loss_w]);
-    t += &row(
-        "peak (daily mean)",
-        "W",
-        1,
-        &[h.peak_heat_loss_w, two.peak_heat_loss_w],
-    );
+    t += &row(peak, "W", 1, &[h.peak_heat_loss_w, two.peak_heat_loss_w]);
     t += &row(
         "floor U-value (no junction)",
         "W/(m²K)",
@@ -212,14 +207,7 @@ fn heat_rows(s: &Summary) -> String {
     );
     t += &row("annual", "kWh", 0, &[s.annual_heat_loss_kwh]);
     t += &row("mean", "W", 1, &[s.mean_heat_loss_w]);
-    let peak = if s.design_winter.is_some() {
-        "peak (daily mean, design winter)".to_string()
-    } else if let Some(y) = s.climate.season {
-        format!("peak (daily mean, season {y}–{:02})", (y + 1) % 100)
-    } else {
-        "peak (daily mean)".to_string()
-    };
-    t += &row(&peak, "W", 1, &[s.peak_heat_loss_w]);
+    t += &row(&super::peak_label(s), "W", 1, &[s.peak_heat_loss_w]);
     t += &row(
         "per metre of exposed perimeter",
         "W/m",

@@ -14,7 +14,7 @@ pub const FIGURES_3D: &[(&str, &str)] = &[
 ];
 
 /// The 3D section's HTML.
-pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
+pub fn html(s: &Summary3, dir: &Path, peak: &str) -> crate::error::Result<String> {
     let (h, two, c) = (&s.headline, &s.section_2d, &s.coupling);
     let mut t = format!(
         "<h2 id=\"three-d\">3D model</h2>\n<p>{}</p>\n<p>Quarter of a {} × {} plan (between the wall's exterior faces), corners included; {} corner insulation piece(s).</p>\n",
@@ -36,13 +36,7 @@ pub fn html(s: &Summary3, dir: &Path) -> crate::error::Result<String> {
             0,
         ),
         ("mean", "W", h.mean_heat_loss_w, two.mean_heat_loss_w, 1),
-        (
-            "peak (daily mean)",
-            "W",
-            h.peak_heat_loss_w,
-            two.peak_heat_loss_w,
-            1,
-        ),
+        (peak, "W", h.peak_heat_loss_w, two.peak_heat_loss_w, 1),
         (
             "floor U-value (no junction)",
             "W/(m²K)",

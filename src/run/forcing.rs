@@ -109,7 +109,15 @@ pub fn zone_temps(case: &Case, indoor: f64, outdoor: f64) -> Vec<f64> {
 /// The 365 days of a sinusoidal year, from the start of the day holding the warmest time, with
 /// the colder half's amplitude `a_cold` (K).
 pub fn sinusoid_year_days(cl: &Climate, a_cold: f64) -> Vec<DayIn> {
-    let day0 = (cl.coldest_day - 0.5 + 182.5).rem_euclid(365.0).floor();
+    sinusoid_year_from(
+        a_cold,
+        (cl.coldest_day - 0.5 + 182.5).rem_euclid(365.0).floor(),
+    )
+}
+
+/// The 365 days of a sinusoidal year from calendar day `day0` (0 = 1 January), with the colder
+/// half's amplitude `a_cold` (K).
+pub fn sinusoid_year_from(a_cold: f64, day0: f64) -> Vec<DayIn> {
     (0..365)
         .map(|d| {
             let cal = day0 + d as f64;
@@ -171,8 +179,9 @@ pub fn schedule(case: &Case) -> Schedule {
         },
         ClimateSource::Series(s) if cl.season.is_some() => Schedule {
             // One measured season once, after the series' normal year is periodic: like a
-            // design winter, it is not repeated.
-            spin: sinusoid_year_days(cl, cl.amplitude_k),
+            // design winter, it is not repeated. The normal year runs from 1 July (calendar day
+            // 181), so the season starts from the ground of its own date.
+            spin: sinusoid_year_from(cl.amplitude_k, 181.0),
             design: series_seasons(s)
                 .into_iter()
                 .find(|x| Some(x.0) == cl.season)
@@ -219,6 +228,17 @@ mod tests {
         assert_eq!(surface(&cl, -10.0), -8.0);
         assert!((surface(&cl, 10.0) - 12.0).abs() < 1e-12);
         assert!((snow_r(&cl, 0) - 1.0).abs() < 1e-12);
+    }
+
+    /// The normal year before a measured season runs 1 July – 30 June (days of year 182 … 181 of
+    /// a common year), so the season's 1 July follows its 30 June.
+    #[test]
+    fn normal_year_before_a_season_ends_on_30_june() {
+        let y = sinusoid_year_from(14.0, 181.0);
+        assert_eq!(
+            (y[0].doy, y[364].doy, y[0].month, y[364].month),
+            (182, 181, 6, 5)
+        );
     }
 
     /// A design winter's year: continuous at the mean crossings, its mean over the colder half is

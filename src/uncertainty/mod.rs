@@ -13,7 +13,9 @@
 //! - **Distributions** (the key's own unit): normal (mean, sd), lognormal (the value's mean and
 //!   sd: σ² = ln(1 + sd²/mean²), μ = ln mean − σ²/2), each optionally truncated to [min, max] by
 //!   sampling u on [F(min), F(max)]; uniform [min, max]; triangular (min, mode, max), inverted in
-//!   closed form.
+//!   closed form; the seasons of a measured series, each equally likely, ordered by their air
+//!   freezing index (the inverse of their empirical distribution: the strata run from the mildest
+//!   winter to the most severe).
 //! - **A sample** is the case file's text with the sampled keys set (parsed and validated like
 //!   any case; a sample the case rules refuse is recorded with its error, not run).
 //! - **Results**: percentiles of each result (linear interpolation between order statistics,
@@ -94,9 +96,20 @@ pub fn quantile(dist: &Distribution, u: f64) -> f64 {
         inv((a + u * (b - a)).clamp(1e-15, 1.0 - 1e-15)).clamp(lo, hi)
     };
     match *dist {
-        Distribution::Seasons { ref years, .. } => {
+        Distribution::Seasons {
+            ref years,
+            ref freezing_index_c_days,
+        } => {
+            // The seasons ordered by severity (air freezing index, ties by year): the empirical
+            // distribution's inverse, so the strata spread the draws over mild to severe winters.
+            let mut order: Vec<usize> = (0..years.len()).collect();
+            order.sort_by(|&a, &b| {
+                freezing_index_c_days[a]
+                    .total_cmp(&freezing_index_c_days[b])
+                    .then(years[a].cmp(&years[b]))
+            });
             let k = ((u * years.len() as f64) as usize).min(years.len().saturating_sub(1));
-            years.get(k).map_or(f64::NAN, |&y| y as f64)
+            order.get(k).map_or(f64::NAN, |&j| years[j] as f64)
         }
         Distribution::Normal { mean, sd, min, max } => {
             if sd == 0.0 {
@@ -293,8 +306,12 @@ pub fn run_samples(
                     // A 3D case runs in 3D (its headline: the whole building, the least margin
                     // anywhere round it), as `frostline run` would.
                     let ran = if c.simulation.model == ModelKind::ThreeD {
-                        run::three::run3(&c, &run::RunOptions::default(), &mut |_| {})
-                            .map(|r3| (r3.headline(&c), r3.sim.converged))
+                        run::three::run3(&c, &run::RunOptions::default(), &mut |_| {}).map(|r3| {
+                            (
+                                r3.headline(&c),
+                                r3.sim.converged && r3.two.spin_up_converged,
+                            )
+                        })
                     } else {
                         run::run(&c, &mut |_| {})
                             .map(|run| (run::headline(&c, &run), run.spin_up_converged))
@@ -630,6 +647,17 @@ mod tests {
         }
         // Truncation symmetric about the mean: the median stays at the mean.
         assert!(quantile(&tn, 0.5).abs() < 1e-9);
+        // Seasons: each of m equally likely, in order of severity (the empirical distribution's
+        // inverse): u in [k/m, (k+1)/m) gives the (k+1)-th mildest.
+        let s = Distribution::Seasons {
+            years: vec![1990, 1991, 1992, 1993],
+            freezing_index_c_days: vec![800.0, 300.0, 1200.0, 300.0],
+        };
+        let got: Vec<f64> = [0.0, 0.3, 0.5, 0.99]
+            .iter()
+            .map(|&u| quantile(&s, u))
+            .collect();
+        assert_eq!(got, [1991.0, 1993.0, 1990.0, 1992.0]);
     }
 
     /// The Wilson interval is honest: over 4,000 repetitions of n = 100 Bernoulli(0.2) draws the
