@@ -92,3 +92,18 @@ coldest_day = 20
 "#
     )
 }
+
+/// `frostline run CASE --out OUT --mesh coarse` (no plots): its summary.json.
+pub fn single_run(case: &std::path::Path, out: &std::path::Path) -> serde_json::Value {
+    run_ok(&[
+        "run".as_ref(),
+        case.as_os_str(),
+        "--out".as_ref(),
+        out.as_os_str(),
+        "--mesh".as_ref(),
+        "coarse".as_ref(),
+        "--quiet".as_ref(),
+        "--no-plots".as_ref(),
+    ]);
+    read_json(&out.join("summary.json"))
+}

@@ -3,7 +3,7 @@
 //! bisection on that input; sharded and merged equals unsharded exactly; the case's
 //! `[uncertainty]` table is validated.
 use crate::cli::{bin, scratch};
-use crate::common::{read_json, run_ok};
+use crate::common::{read_json, run_ok, single_run};
 use frostline::case::parse_case;
 use serde_json::Value;
 use std::path::{Path, PathBuf};
@@ -37,21 +37,6 @@ fn spread(dir: &Path, name: &str, src: &str, extra: &[&str]) -> PathBuf {
     args.extend(extra.iter().map(std::ffi::OsString::from));
     run_ok(&args);
     out
-}
-
-/// `frostline run CASE --out OUT --mesh coarse` (no plots): its summary.json.
-fn single_run(case: &Path, out: &Path) -> Value {
-    run_ok(&[
-        "run".as_ref(),
-        case.as_os_str(),
-        "--out".as_ref(),
-        out.as_os_str(),
-        "--mesh".as_ref(),
-        "coarse".as_ref(),
-        "--quiet".as_ref(),
-        "--no-plots".as_ref(),
-    ]);
-    read_json(&out.join("summary.json"))
 }
 
 /// samples.csv without its wall-time column (the only figure that differs between runs).

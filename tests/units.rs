@@ -53,17 +53,7 @@ fn us_and_si_examples_give_the_same_results() {
         let out = crate::cli::scratch(&format!("units-{f}"));
         let case = Path::new(env!("CARGO_MANIFEST_DIR"))
             .join(format!("examples/tamarack-flats-house-{f}.toml"));
-        crate::common::run_ok(&[
-            "run".as_ref(),
-            case.as_os_str(),
-            "--out".as_ref(),
-            out.as_os_str(),
-            "--mesh".as_ref(),
-            "coarse".as_ref(),
-            "--quiet".as_ref(),
-            "--no-plots".as_ref(),
-        ]);
-        summaries.push(crate::common::read_json(&out.join("summary.json")));
+        summaries.push(crate::common::single_run(&case, &out));
         dailies.push(std::fs::read_to_string(out.join("daily.csv")).unwrap());
     }
     let mut diffs = Vec::new();

@@ -596,10 +596,11 @@ pub enum Distribution {
     /// One complete season of the case's measured series (`climate.season`), each season
     /// equally likely: the winter drawn from the record.
     Seasons {
-        /// The seasons, each named by the year of its 1 July.
+        /// The seasons, each named by the year of its 1 July, from the mildest to the most
+        /// severe (by air freezing index, ties by year).
         years: Vec<i64>,
-        /// Each season's air freezing index, °C·d (what the sensitivity ranking orders the
-        /// seasons by).
+        /// Each season's air freezing index, °C·d (ascending; what the sensitivity ranking orders
+        /// the seasons by).
         freezing_index_c_days: Vec<f64>,
     },
 }

@@ -284,7 +284,9 @@ fn seasons(
                 "climate.season needs a measured series; allowed: [climate] series = \"file.csv\"",
             )),
         };
-    let fi = crate::physics::climate::freezing_indices(series);
+    let mut fi = crate::physics::climate::freezing_indices(series);
+    // In order of severity (ties by year): the order the strata draw them in.
+    fi.sort_by(|a, b| a.value.total_cmp(&b.value).then(a.winter.cmp(&b.winter)));
     if fi.len() < 2 {
         return Err(c.err(
             r.key.span(),

@@ -86,46 +86,32 @@ impl CaseRow {
         }
     }
 
-    /// Fill the results from the case's summary.json (a 3D run's whole-building headline).
+    /// Fill the results from the case's summary.json (a 3D run's whole-building headline; its
+    /// status, as `frostline run` judges a 3D run, counts the 2D section's checks too).
     pub fn fill(&mut self, s: &Summary) {
-        let (h, periodic) = match &s.three_d {
-            Some(t) => (
-                (
-                    t.headline.frost_margin_m,
-                    t.headline.frost_depth_under_footing_m,
-                    t.headline.frost_depth_at_footing_face_m,
-                    t.headline.frost_depth_open_ground_m,
-                    t.headline.annual_heat_loss_kwh,
-                    t.headline.peak_heat_loss_w,
-                    t.headline.ground_u_value_incl_junction_w_per_m2k,
-                    // As `frostline run` judges a 3D run: the 2D section's check too.
-                    t.headline.frost_in_protected_zone || s.frost_in_protected_zone,
-                ),
-                t.spin_up_converged && s.spin_up_converged,
-            ),
-            None => (
-                (
-                    s.frost_margin_m,
-                    s.frost_depth_under_footing_m,
-                    s.frost_depth_at_footing_face_m,
-                    s.frost_depth_open_ground_m,
-                    s.annual_heat_loss_kwh,
-                    s.peak_heat_loss_w,
-                    s.ground_u_value_incl_junction_w_per_m2k,
-                    s.frost_in_protected_zone,
-                ),
-                s.spin_up_converged,
-            ),
-        };
-        self.frost_margin_m = h.0;
-        self.frost_depth_under_footing_m = h.1;
-        self.frost_depth_at_footing_face_m = h.2;
-        self.frost_depth_open_ground_m = h.3;
-        self.annual_heat_loss_kwh = h.4;
-        self.peak_heat_loss_w = h.5;
-        self.ground_u_value_w_per_m2k = h.6.unwrap_or(f64::NAN);
+        let h3 = s.three_d.as_ref().map(|t| &t.headline);
+        self.frost_margin_m = h3.map_or(s.frost_margin_m, |h| h.frost_margin_m);
+        self.frost_depth_under_footing_m = h3.map_or(s.frost_depth_under_footing_m, |h| {
+            h.frost_depth_under_footing_m
+        });
+        self.frost_depth_at_footing_face_m = h3.map_or(s.frost_depth_at_footing_face_m, |h| {
+            h.frost_depth_at_footing_face_m
+        });
+        self.frost_depth_open_ground_m =
+            h3.map_or(s.frost_depth_open_ground_m, |h| h.frost_depth_open_ground_m);
+        self.annual_heat_loss_kwh = h3.map_or(s.annual_heat_loss_kwh, |h| h.annual_heat_loss_kwh);
+        self.peak_heat_loss_w = h3.map_or(s.peak_heat_loss_w, |h| h.peak_heat_loss_w);
+        self.ground_u_value_w_per_m2k = h3
+            .map_or(s.ground_u_value_incl_junction_w_per_m2k, |h| {
+                h.ground_u_value_incl_junction_w_per_m2k
+            })
+            .unwrap_or(f64::NAN);
+        let frost_in_zone =
+            s.frost_in_protected_zone || h3.is_some_and(|h| h.frost_in_protected_zone);
+        let periodic =
+            s.spin_up_converged && s.three_d.as_ref().is_none_or(|t| t.spin_up_converged);
         let mut unmet = Vec::new();
-        if h.7 {
+        if frost_in_zone {
             unmet.push("frost in zone");
         }
         if !periodic {

@@ -27,38 +27,53 @@ pub(super) fn legend<'a, DB: DrawingBackend + 'a, CT: plotters::coord::CoordTran
         .map_err(out_err)
 }
 
+/// A chart whose axes are two f64 ranges.
+type Chart2<'a, DB> = ChartContext<
+    'a,
+    DB,
+    Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+>;
+
+/// A dashed horizontal reference line from x0 to x1 at depth `z`, dashes (`dash`, `gap`) px, in
+/// `colour`, with its legend entry `label`.
+fn reference_line<'a, DB: DrawingBackend + 'a>(
+    chart: &mut Chart2<'a, DB>,
+    (x0, x1, z): (f64, f64, f64),
+    (dash, gap, colour): (u32, u32, RGBColor),
+    label: String,
+) -> Result<()> {
+    chart
+        .draw_series(DashedLineSeries::new(
+            vec![(x0, z), (x1, z)],
+            dash,
+            gap,
+            colour.stroke_width(2),
+        ))
+        .map_err(out_err)?
+        .label(label)
+        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], colour.stroke_width(2)));
+    Ok(())
+}
+
 /// The dashed footing-base reference line from x0 to x1 at depth `base` (m), with its legend entry.
 pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
-    chart: &mut ChartContext<
-        'a,
-        DB,
-        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
-    >,
+    chart: &mut Chart2<'a, DB>,
     x0: f64,
     x1: f64,
     (base, unit): (f64, &str),
 ) -> Result<()> {
-    chart
-        .draw_series(DashedLineSeries::new(
-            vec![(x0, base), (x1, base)],
-            8,
-            6,
-            BLACK.stroke_width(2),
-        ))
-        .map_err(out_err)?
-        .label(format!("footing base ({base:.2} {unit})"))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(2)));
-    Ok(())
+    reference_line(
+        chart,
+        (x0, x1, base),
+        (8, 6, BLACK),
+        format!("footing base ({base:.2} {unit})"),
+    )
 }
 
 /// Under a footing that bears on an insulation board: the dashed bearing level (the board's
 /// underside, the top of the protected zone) from x0 to x1, with its legend entry.
 fn bearing_line<'a, DB: DrawingBackend + 'a>(
-    chart: &mut ChartContext<
-        'a,
-        DB,
-        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
-    >,
+    chart: &mut Chart2<'a, DB>,
     x0: f64,
     x1: f64,
     d: &PlotData,
@@ -68,19 +83,12 @@ fn bearing_line<'a, DB: DrawingBackend + 'a>(
         return Ok(());
     }
     let unit = d.unit("m");
-    chart
-        .draw_series(DashedLineSeries::new(
-            vec![(x0, bearing), (x1, bearing)],
-            3,
-            4,
-            FOOT.stroke_width(2),
-        ))
-        .map_err(out_err)?
-        .label(format!(
-            "bearing level, under the board ({bearing:.2} {unit})"
-        ))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(2)));
-    Ok(())
+    reference_line(
+        chart,
+        (x0, x1, bearing),
+        (3, 4, FOOT),
+        format!("bearing level, under the board ({bearing:.2} {unit})"),
+    )
 }
 
 fn doy_label(d: &PlotData) -> impl Fn(&f64) -> String + '_ {

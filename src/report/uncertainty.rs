@@ -16,8 +16,8 @@ pub fn describe(d: &crate::case::Distribution) -> String {
         D::Seasons { ref years, .. } => format!(
             "each of the series' {} complete seasons ({}–{}) equally likely, run once after the normal year",
             years.len(),
-            years.first().copied().unwrap_or(0),
-            years.last().copied().unwrap_or(0)
+            years.iter().min().copied().unwrap_or(0),
+            years.iter().max().copied().unwrap_or(0)
         ),
         D::Normal { mean, sd, min, max } => {
             format!("normal, mean {mean}, sd {sd}{}", cut(min, max))

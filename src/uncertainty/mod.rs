@@ -96,20 +96,11 @@ pub fn quantile(dist: &Distribution, u: f64) -> f64 {
         inv((a + u * (b - a)).clamp(1e-15, 1.0 - 1e-15)).clamp(lo, hi)
     };
     match *dist {
-        Distribution::Seasons {
-            ref years,
-            ref freezing_index_c_days,
-        } => {
-            // The seasons ordered by severity (air freezing index, ties by year): the empirical
-            // distribution's inverse, so the strata spread the draws over mild to severe winters.
-            let mut order: Vec<usize> = (0..years.len()).collect();
-            order.sort_by(|&a, &b| {
-                freezing_index_c_days[a]
-                    .total_cmp(&freezing_index_c_days[b])
-                    .then(years[a].cmp(&years[b]))
-            });
+        Distribution::Seasons { ref years, .. } => {
+            // The seasons are held in order of severity (validation), so this is the empirical
+            // distribution's inverse: the strata spread the draws over mild to severe winters.
             let k = ((u * years.len() as f64) as usize).min(years.len().saturating_sub(1));
-            order.get(k).map_or(f64::NAN, |&j| years[j] as f64)
+            years.get(k).map_or(f64::NAN, |&y| y as f64)
         }
         Distribution::Normal { mean, sd, min, max } => {
             if sd == 0.0 {
@@ -650,8 +641,8 @@ mod tests {
         // Seasons: each of m equally likely, in order of severity (the empirical distribution's
         // inverse): u in [k/m, (k+1)/m) gives the (k+1)-th mildest.
         let s = Distribution::Seasons {
-            years: vec![1990, 1991, 1992, 1993],
-            freezing_index_c_days: vec![800.0, 300.0, 1200.0, 300.0],
+            years: vec![1991, 1993, 1990, 1992],
+            freezing_index_c_days: vec![300.0, 300.0, 800.0, 1200.0],
         };
         let got: Vec<f64> = [0.0, 0.3, 0.5, 0.99]
             .iter()
