@@ -91,7 +91,13 @@ fn main() {
             let zt = forcing::zone_temps(&case, 20.0, case.climate.mean_c);
             let t1 = std::time::Instant::now();
             let st = solver.steady(&zt, None).expect("steady");
-            println!("steady: {:.2} s", t1.elapsed().as_secs_f64());
+            let s0 = solver.stats();
+            println!(
+                "steady: {:.2} s, {} Picard, {:.1} CG/solve",
+                t1.elapsed().as_secs_f64(),
+                st.iterations,
+                s0.cg_iterations as f64 / s0.solves.max(1) as f64
+            );
             if mode == Some("days") {
                 let n: usize = args.get(2).and_then(|v| v.parse().ok()).unwrap_or(20);
                 let mut h = net.enthalpies(&st.t);

@@ -85,6 +85,13 @@ impl Lin {
             Lin::Multigrid(s) => s.solve(vals, rhs),
         }
     }
+    /// A steady matrix's solve (the incomplete factor's ω for matrices without a capacity term).
+    fn solve_steady(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
+        match self {
+            Lin::Iterative(s) => s.solve_steady(vals, rhs),
+            other => other.solve(vals, rhs),
+        }
+    }
     fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
         match self {
             Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
@@ -337,7 +344,7 @@ impl<'a> Solver<'a> {
         for (b, bf) in self.net.bfaces.iter().enumerate() {
             rhs[bf.p] += self.gb[b] * zone_t[bf.zone];
         }
-        self.lin.solve(&self.vals, &mut rhs)?;
+        self.lin.solve_steady(&self.vals, &mut rhs)?;
         Ok(rhs)
     }
 
