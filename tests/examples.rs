@@ -476,4 +476,33 @@ fn alder_bend_house_3d_coarse() {
     }
     let html = std::fs::read_to_string(us.join("report.html")).unwrap();
     assert!(html.contains("<td>ft</td>") && html.contains("Btu/(h·°F)"));
+
+    // The bearing level: the footing base here (no board under the footing). A footing bearing
+    // on a board is drawn at the board's underside (the top of the protected zone, as the 3D
+    // margin measures it): re-rendered from the saved files with a 0.10 m board recorded.
+    let tj = std::fs::read_to_string(out.join("three_d.json")).unwrap();
+    let v: Value = serde_json::from_str(&tj).unwrap();
+    let base = num(&s, "footing_base_depth_m");
+    assert_eq!(v["bearing_depth_m"].as_f64(), Some(base));
+    let plan = std::fs::read_to_string(out.join("plan_frost.svg")).unwrap();
+    assert!(plan.contains(&format!("frost as deep as the footing base ({base:.2} m)")));
+    let board = crate::cli::scratch("alder-3d-board");
+    for e in std::fs::read_dir(&out).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_file() {
+            std::fs::copy(&p, board.join(p.file_name().unwrap())).unwrap();
+        }
+    }
+    let mut v = v;
+    v["bearing_depth_m"] = (base + 0.10).into();
+    std::fs::write(board.join("three_d.json"), v.to_string()).unwrap();
+    crate::common::run_ok(&["plot".as_ref(), board.as_os_str()]);
+    let level = format!("({:.2} m)", base + 0.10);
+    let plan = std::fs::read_to_string(board.join("plan_frost.svg")).unwrap();
+    assert!(plan.contains(&format!(
+        "frost as deep as the bearing level, under the board {level}"
+    )));
+    let per = std::fs::read_to_string(board.join("perimeter_frost.svg")).unwrap();
+    assert!(per.contains(&format!("bearing level, under the board {level}")));
+    assert!(per.contains(&format!("footing base ({base:.2} m)")));
 }

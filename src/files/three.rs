@@ -185,6 +185,11 @@ pub struct ThreeDFile {
     pub frost_line_c: f64,
     /// Footing base depth, m.
     pub footing_base_depth_m: f64,
+    /// Depth of the bearing soil's top, m: the footing base, or the underside of the board the
+    /// footing bears on (the top of the protected zone). Files written before it read as 0: use
+    /// [`ThreeDFile::bearing_m`].
+    #[serde(default)]
+    pub bearing_depth_m: f64,
     /// Day of year of the design (least-margin) field.
     pub design_day: usize,
     /// The sections at mid-wall (long wall) and along the corner's diagonal.
@@ -196,6 +201,13 @@ pub struct ThreeDFile {
     pub corner_at_m: f64,
     /// The 2D section's face depth and margin, m.
     pub section_2d: [f64; 2],
+}
+
+impl ThreeDFile {
+    /// The bearing level, m (the footing base in files written before it was recorded).
+    pub fn bearing_m(&self) -> f64 {
+        self.bearing_depth_m.max(self.footing_base_depth_m)
+    }
 }
 
 /// Perimeter rows: the long wall (Y = b) from its middle to the corner, the corner, the short
@@ -387,6 +399,7 @@ pub fn three_d_file(case: &Case, r: &Run3Result) -> ThreeDFile {
         plan_bands: plan_bands(case),
         frost_line_c: frost_line_c(case),
         footing_base_depth_m: case.footing.base_depth_m,
+        bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
         design_day: y.design_day,
         slices: slices(case, r),
         perimeter: rows

@@ -72,17 +72,15 @@ pub(super) fn footing_base_line<'a, DB: DrawingBackend + 'a>(
 
 /// Under a footing that bears on an insulation board: the dashed bearing level (the board's
 /// underside, the top of the protected zone) from x0 to x1, with its legend entry.
-fn bearing_line<'a, DB: DrawingBackend + 'a>(
+pub(super) fn bearing_line<'a, DB: DrawingBackend + 'a>(
     chart: &mut Chart2<'a, DB>,
     x0: f64,
     x1: f64,
-    d: &PlotData,
+    (base, bearing, unit): (f64, f64, &str),
 ) -> Result<()> {
-    let (base, bearing) = (d.footing_base_depth_m, d.bearing_depth_m);
     if bearing <= base + 1e-9 {
         return Ok(());
     }
-    let unit = d.unit("m");
     reference_line(
         chart,
         (x0, x1, bearing),
@@ -199,7 +197,8 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
         }
     }
     footing_base_line(&mut chart, 0.0, n, (d.footing_base_depth_m, d.unit("m")))?;
-    bearing_line(&mut chart, 0.0, n, d)?;
+    let levels = (d.footing_base_depth_m, d.bearing_depth_m, d.unit("m"));
+    bearing_line(&mut chart, 0.0, n, levels)?;
     legend(&mut chart, SeriesLabelPosition::LowerLeft)?;
     root.present().map_err(out_err)
 }
@@ -457,7 +456,8 @@ fn draw_winters<DB: DrawingBackend>(
         .label("under the footing")
         .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 15, y + 5)], FOOT.filled()));
     footing_base_line(&mut chart, y0, y1, (d.footing_base_depth_m, d.unit("m")))?;
-    bearing_line(&mut chart, y0, y1, d)?;
+    let levels = (d.footing_base_depth_m, d.bearing_depth_m, d.unit("m"));
+    bearing_line(&mut chart, y0, y1, levels)?;
     legend(&mut chart, SeriesLabelPosition::LowerRight)?;
     root.present().map_err(out_err)
 }

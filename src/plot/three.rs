@@ -132,7 +132,7 @@ fn draw_plan<DB: DrawingBackend>(
 ) -> Result<()> {
     root.fill(&WHITE).map_err(out_err)?;
     let (xe, ye, field) = whole_plan(f);
-    let max = field.iter().copied().fold(f.footing_base_depth_m, f64::max);
+    let max = field.iter().copied().fold(f.bearing_m(), f64::max);
     let (w, _) = root.dim_in_pixel();
     let (left, right) = root.split_horizontally(w.saturating_sub(110));
     let mut chart = ChartBuilder::on(&left)
@@ -207,7 +207,14 @@ fn draw_plan<DB: DrawingBackend>(
         }
         level += step;
     }
-    let base = f.footing_base_depth_m;
+    // The contour of the bearing level: the footing base, or the underside of the board the
+    // footing bears on.
+    let base = f.bearing_m();
+    let what = if base > f.footing_base_depth_m + 1e-9 {
+        "the bearing level, under the board"
+    } else {
+        "the footing base"
+    };
     let mut labelled = false;
     for pts in isolines(&xs, &ys, &field, base)
         .iter()
@@ -219,7 +226,7 @@ fn draw_plan<DB: DrawingBackend>(
             .map_err(out_err)?;
         if !labelled {
             labelled = true;
-            s.label(format!("frost as deep as the footing base ({base:.2} {u})"))
+            s.label(format!("frost as deep as {what} ({base:.2} {u})"))
                 .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], RED.stroke_width(3)));
         }
     }
@@ -355,7 +362,7 @@ fn section_view(f: &ThreeDFile) -> View {
                 (v.is_some_and(|v| v < f.frost_line_c) && s.xe[i] < x1).then(|| s.ze[k + 1])
             })
         }))
-        .fold(f.footing_base_depth_m, f64::max);
+        .fold(f.bearing_m(), f64::max);
     let (lo, hi) = f
         .slices
         .iter()
@@ -393,6 +400,7 @@ fn in_feet(f: &ThreeDFile) -> ThreeDFile {
         b.length_m = b.length_m.map(ft);
     }
     g.footing_base_depth_m = ft(f.footing_base_depth_m);
+    g.bearing_depth_m = ft(f.bearing_m());
     g.perimeter = f.perimeter.iter().map(|p| p.map(ft)).collect();
     g.corner_at_m = ft(f.corner_at_m);
     g.section_2d = f.section_2d.map(ft);
@@ -472,7 +480,7 @@ fn draw_perimeter<DB: DrawingBackend>(
         .perimeter
         .iter()
         .map(|p| p[1])
-        .fold(base.max(f.section_2d[0]), f64::max)
+        .fold(f.bearing_m().max(f.section_2d[0]), f64::max)
         * 1.2;
     let corner = f.corner_at_m;
     let mut c = ChartBuilder::on(&top)
@@ -521,6 +529,7 @@ fn draw_perimeter<DB: DrawingBackend>(
     .label(format!("2D section ({:.2} {u})", f.section_2d[0]))
     .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], grey.stroke_width(2)));
     super::charts::footing_base_line(&mut c, 0.0, dmax, (base, u))?;
+    super::charts::bearing_line(&mut c, 0.0, dmax, (base, f.bearing_m(), u))?;
     corner_line(&mut c, corner, (0.0, zmax))?;
     c.configure_series_labels()
         .background_style(WHITE.mix(0.9))
