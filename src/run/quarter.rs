@@ -243,6 +243,25 @@ impl<'a> Quarter3<'a> {
         Some(z.max(z_from))
     }
 
+    /// Shallowest frozen point of plan column `col` (the top of the frozen layer, below ground
+    /// thawed from the surface in spring), m: the 2D rule of `analysis::frost_top_column` on the
+    /// frost scalar.
+    fn top(&self, col: usize) -> Option<f64> {
+        let g = &self.mesh.grid;
+        let layer = g.nx() * g.ny();
+        let s = |k: usize| {
+            let v = self.scalar[k * layer + col];
+            (!v.is_nan()).then_some(v)
+        };
+        let k = (0..g.nz()).find(|&k| s(k).is_some_and(|v| v <= self.t_line))?;
+        let b = s(k)?;
+        let zc = |k: usize| Grid3::centre(&g.ze, k);
+        Some(match (k > 0).then(|| s(k - 1)).flatten() {
+            Some(a) if a > b => zc(k - 1) + (a - self.t_line) / (a - b) * (zc(k) - zc(k - 1)),
+            _ => g.ze[k],
+        })
+    }
+
     /// The frost measures of one station's columns; `plan` holds every column's frost depth from
     /// the surface (0: none), so only the footing's columns are measured again, from the base.
     fn station(&self, c: &Columns, plan: &[f64]) -> (f64, f64, f64) {
@@ -398,11 +417,19 @@ impl Observer for Quarter3<'_> {
             .iter()
             .chain(&today.north)
             .chain(std::iter::once(&today.corner));
+        // The frozen layer's top in open ground and at the station of deepest frost at the face.
+        let deepest_face = self
+            .east
+            .iter()
+            .chain(&self.north)
+            .chain(std::iter::once(&self.corner))
+            .map(|c| c.face)
+            .max_by(|&a, &b| cols[a].total_cmp(&cols[b]));
         let mut fm = FrostMeasures {
             open_m: open,
-            open_top_m: f64::NAN,
+            open_top_m: self.top(self.open).unwrap_or(f64::NAN),
             at_face_m: 0.0,
-            at_face_top_m: f64::NAN,
+            at_face_top_m: deepest_face.and_then(|c| self.top(c)).unwrap_or(f64::NAN),
             under_footing_m: 0.0,
             beside_wall_m: 0.0,
             corner_distance_m: corner_dist,
