@@ -8,7 +8,8 @@
 //! Add `coarse` or `fine` for another mesh, `amg` for the multigrid-preconditioned solver instead
 //! of the incomplete factor (environment AMG_THETA, AMG_DOM, AMG_PASSES set its strength
 //! threshold, dominance and aggregation passes; PCG_TOL the incomplete-factor solver's relative
-//! tolerance). Run with
+//! tolerance; `omega X` and `omega_steady X` the incomplete factor's modification for steps and
+//! for steady solves). Run with
 //! `cargo run --release --example bench3d -- days 20 coarse` and take medians of repeated runs
 //! (the machine is noisy).
 use frostline::case::{load_case, Fineness};
@@ -38,13 +39,17 @@ fn main() {
         net.n,
         t0.elapsed().as_secs_f64()
     );
-    // `omega X`: the preconditioner's modification (default PcgParams's).
-    let omega = args
-        .iter()
-        .position(|a| a == "omega")
-        .and_then(|k| args.get(k + 1))
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(PcgParams::default().omega);
+    // `omega X`, `omega_steady X`: the preconditioner's modification for steps and for steady
+    // solves (default PcgParams's).
+    let value = |key: &str, default: f64| {
+        args.iter()
+            .position(|a| a == key)
+            .and_then(|k| args.get(k + 1))
+            .and_then(|v| v.parse().ok())
+            .unwrap_or(default)
+    };
+    let omega = value("omega", PcgParams::default().omega);
+    let omega_steady = value("omega_steady", PcgParams::default().omega_steady);
     let linear = if args.iter().any(|a| a == "amg") {
         let env = |k: &str, d: f64| {
             std::env::var(k)
@@ -61,6 +66,7 @@ fn main() {
     } else {
         Linear::Pcg(PcgParams {
             omega,
+            omega_steady,
             rel_tol: std::env::var("PCG_TOL")
                 .ok()
                 .and_then(|v| v.parse().ok())

@@ -533,6 +533,8 @@ fn alder_bend_house_3d_coarse() {
         }
     }
     let mut v = v;
+    // (The demo's deepest frost passes 0.10 m below its footing base, so the plan has this
+    // contour.)
     v["bearing_depth_m"] = (base + 0.10).into();
     std::fs::write(board.join("three_d.json"), v.to_string()).unwrap();
     crate::common::run_ok(&["plot".as_ref(), board.as_os_str()]);
@@ -544,4 +546,12 @@ fn alder_bend_house_3d_coarse() {
     let per = std::fs::read_to_string(board.join("perimeter_frost.svg")).unwrap();
     assert!(per.contains(&format!("bearing level, under the board {level}")));
     assert!(per.contains(&format!("footing base ({base:.2} m)")));
+    // A three_d.json written before the bearing level was recorded reads as the footing base.
+    v.as_object_mut().unwrap().remove("bearing_depth_m");
+    std::fs::write(board.join("three_d.json"), v.to_string()).unwrap();
+    crate::common::run_ok(&["plot".as_ref(), board.as_os_str()]);
+    let plan = std::fs::read_to_string(board.join("plan_frost.svg")).unwrap();
+    assert!(plan.contains(&format!("frost as deep as the footing base ({base:.2} m)")));
+    let per = std::fs::read_to_string(board.join("perimeter_frost.svg")).unwrap();
+    assert!(!per.contains("bearing level"));
 }

@@ -335,19 +335,24 @@ fn frost_line_in_insulation_is_the_isotherm() {
         .collect();
     let z = frostline::analysis::frost_depth_column(&mesh, &net, &t, 0, 0.0, -0.25).unwrap();
     assert!((z - 0.4375).abs() < 1e-12, "{z}");
+    // The top of the frozen layer in the column, frost line −0.25 °C.
+    let top_of = |mesh: &Mesh, net: &Network, t: &[f64]| {
+        let s = frostline::analysis::column_scalar(mesh, net, t, 0);
+        frostline::analysis::column_top(&mesh.grid.ze, s, 0.0, -0.25).unwrap()
+    };
     // A frozen layer between a thawed top and unfrozen ground, T = 8 |z − 0.5| − 1.25 (°C,
     // piecewise linear with its kink between two centres): frozen (T ≤ −0.25) exactly from
     // 0.375 to 0.625 m (analytic); the layer's top and bottom are found there.
     let t: Vec<f64> = (0..10)
         .map(|j| 8.0 * (0.05 + 0.1 * j as f64 - 0.5).abs() - 1.25)
         .collect();
-    let top = frostline::analysis::frost_top_column(&mesh, &net, &t, 0, 0.0, -0.25).unwrap();
+    let top = top_of(&mesh, &net, &t);
     let bottom = frostline::analysis::frost_depth_column(&mesh, &net, &t, 0, 0.0, -0.25).unwrap();
     assert!((top - 0.375).abs() < 1e-12, "{top}");
     assert!((bottom - 0.625).abs() < 1e-12, "{bottom}");
     // Frozen up to the surface: the top is the surface.
     let t: Vec<f64> = (0..10).map(|j| -2.0 + 0.1 * j as f64).collect();
-    let top = frostline::analysis::frost_top_column(&mesh, &net, &t, 0, 0.0, -0.25).unwrap();
+    let top = top_of(&mesh, &net, &t);
     assert_eq!(top, 0.0);
 }
 

@@ -164,8 +164,9 @@ pub fn frost_scalar_field(mesh: &Mesh, net: &Network, t: &[f64]) -> Vec<f64> {
     f
 }
 
-/// The frost scalar of cell j of column `i` (None for air).
-fn column_scalar<'a>(
+/// The frost scalar of cell j of grid column `i` (None for air): the column [`column_depth`] and
+/// [`column_top`] read.
+pub fn column_scalar<'a>(
     mesh: &'a Mesh,
     net: &'a Network,
     t: &'a [f64],
@@ -177,40 +178,8 @@ fn column_scalar<'a>(
     }
 }
 
-/// Shallowest frozen point of column `i` at or below `z_from` (m), the top of the frozen layer
-/// (below a layer thawed from the surface in spring); `None` if nothing there is frozen. The
-/// mirror of [`frost_depth_column`]: above the shallowest cell j with s_j ≤ t_line the line lies
-/// at z = z_{j−1} + (s_{j−1} − t_line)/(s_{j−1} − s_j) (z_j − z_{j−1}); the face above j (or
-/// `z_from`) when there is no solid unfrozen cell j − 1 (frozen up to the surface).
-pub fn frost_top_column(
-    mesh: &Mesh,
-    net: &Network,
-    t: &[f64],
-    i: usize,
-    z_from: f64,
-    t_line: f64,
-) -> Option<f64> {
-    let g = &mesh.grid;
-    let s = column_scalar(mesh, net, t, i);
-    let j = (0..g.nz()).find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
-    let b = s(j)?;
-    let z = match (j > 0).then(|| s(j - 1)).flatten() {
-        Some(a) if a > b && g.zc(j - 1) >= z_from => {
-            g.zc(j - 1) + (a - t_line) / (a - b) * (g.zc(j) - g.zc(j - 1))
-        }
-        _ => g.ze[j],
-    };
-    Some(z.max(z_from))
-}
-
 /// Deepest frozen point of column `i` at or below `z_from` (m); `None` if nothing there is frozen.
-///
-/// The frost line is where the frost scalar s ([`frost_scalar`]) equals `t_line`. Below the
-/// deepest cell j with s_j ≤ t_line the line lies at
-/// z = z_j + (t_line − s_j)/(s_{j+1} − s_j) (z_{j+1} − z_j), by linear interpolation between cell
-/// centres (the face below j when there is no solid cell j + 1). For a sharp front this moves
-/// continuously from face to face as cells freeze (within about a tenth of a cell of the front's
-/// true position).
+/// See [`column_depth`].
 pub fn frost_depth_column(
     mesh: &Mesh,
     net: &Network,
@@ -219,15 +188,107 @@ pub fn frost_depth_column(
     z_from: f64,
     t_line: f64,
 ) -> Option<f64> {
-    let g = &mesh.grid;
-    let s = column_scalar(mesh, net, t, i);
-    let j = (0..g.nz())
-        .rev()
-        .find(|&j| g.ze[j + 1] > z_from && s(j).is_some_and(|v| v <= t_line))?;
-    let a = s(j)?;
-    let z = match (j + 1 < g.nz()).then(|| s(j + 1)).flatten() {
-        Some(b) if b > a => g.zc(j) + (t_line - a) / (b - a) * (g.zc(j + 1) - g.zc(j)),
-        _ => g.ze[j + 1],
+    column_depth(
+        &mesh.grid.ze,
+        column_scalar(mesh, net, t, i),
+        z_from,
+        t_line,
+    )
+}
+
+/// Deepest frozen point at or below `z_from` (m) of a vertical column of cells with edges `ze`
+/// (m, downward) and frost scalar `s(j)` ([`frost_scalar`]; `None` for air); `None` if nothing
+/// there is frozen. The rule of both models' columns (2D grid columns, 3D plan columns).
+///
+/// The frost line is where the frost scalar s equals `t_line`. Below the deepest cell j with
+/// s_j ≤ t_line the line lies at z = z_j + (t_line − s_j)/(s_{j+1} − s_j) (z_{j+1} − z_j), by
+/// linear interpolation between cell centres (the face below j when there is no solid cell
+/// j + 1). For a sharp front this moves continuously from face to face as cells freeze (within
+/// about a tenth of a cell of the front's true position).
+pub fn column_depth(
+    ze: &[f64],
+    s: impl Fn(usize) -> Option<f64>,
+    z_from: f64,
+    t_line: f64,
+) -> Option<f64> {
+    column_end(ze, s, z_from, t_line, false)
+}
+
+/// Shallowest frozen point at or below `z_from` (m) of a column as in [`column_depth`]: the top
+/// of the frozen layer (below ground thawed from the surface in spring). The mirror of
+/// [`column_depth`]: above the shallowest cell j with s_j ≤ t_line the line lies at
+/// z = z_j + (t_line − s_j)/(s_{j−1} − s_j) (z_{j−1} − z_j); the face above j (or `z_from`) when
+/// there is no solid unfrozen cell j − 1 with its centre at or below `z_from` (frozen up to the
+/// surface).
+pub fn column_top(
+    ze: &[f64],
+    s: impl Fn(usize) -> Option<f64>,
+    z_from: f64,
+    t_line: f64,
+) -> Option<f64> {
+    column_end(ze, s, z_from, t_line, true)
+}
+
+/// The frozen layer's bottom (`top` false) or top in a column: [`column_depth`], [`column_top`].
+fn column_end(
+    ze: &[f64],
+    s: impl Fn(usize) -> Option<f64>,
+    z_from: f64,
+    t_line: f64,
+    top: bool,
+) -> Option<f64> {
+    let n = ze.len() - 1;
+    let zc = |j: usize| 0.5 * (ze[j] + ze[j + 1]);
+    let frozen = |j: &usize| ze[j + 1] > z_from && s(*j).is_some_and(|v| v <= t_line);
+    let j = if top {
+        (0..n).find(frozen)
+    } else {
+        (0..n).rev().find(frozen)
+    }?;
+    let v = s(j)?;
+    // The cell beyond the frozen end (below the bottom; above the top, if in the ground) and
+    // the face between them.
+    let (beyond, face) = if top {
+        (j.checked_sub(1).filter(|&k| zc(k) >= z_from), ze[j])
+    } else {
+        ((j + 1 < n).then_some(j + 1), ze[j + 1])
+    };
+    let z = match beyond.and_then(|k| s(k).map(|w| (k, w))) {
+        Some((k, w)) if w > v => zc(j) + (t_line - v) / (w - v) * (zc(k) - zc(j)),
+        _ => face,
     };
     Some(z.max(z_from))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{column_depth, column_top};
+
+    /// The column rule on a column whose first cell lies above ground (the 3D grid starts at
+    /// the wall's top): edges −0.2, 0, 0.1, 0.2, 0.3, 0.4 m, frost line at 0 °C. The documented
+    /// interpolation between cell centres, and nothing above the ground surface (z_from = 0)
+    /// counts or is interpolated from.
+    #[test]
+    fn column_rule_ignores_cells_above_the_surface() {
+        let ze = [-0.2, 0.0, 0.1, 0.2, 0.3, 0.4];
+        let col = |v: [f64; 5]| move |k: usize| (!v[k].is_nan()).then_some(v[k]);
+        // A cold solid cell above ground (insulation standing proud): frozen from the surface,
+        // the bottom between the centres at 0.15 and 0.25 m.
+        let cold = col([-5.0, -1.0, -0.5, 1.0, 2.0]);
+        assert_eq!(column_top(&ze, cold, 0.0, 0.0), Some(0.0));
+        let d = column_depth(&ze, cold, 0.0, 0.0).unwrap();
+        assert!((d - (0.15 + 0.5 / 1.5 * 0.1)).abs() < 1e-12, "{d}");
+        // Frozen only above ground: no frost in the ground.
+        let proud = col([-5.0, 1.0, 1.0, 1.0, 2.0]);
+        assert_eq!(column_top(&ze, proud, 0.0, 0.0), None);
+        assert_eq!(column_depth(&ze, proud, 0.0, 0.0), None);
+        // A warm cell above ground over frozen ground: the top is the surface, not a point
+        // interpolated towards the cell above ground.
+        let warm = col([3.0, -1.0, -1.0, 1.0, 2.0]);
+        assert_eq!(column_top(&ze, warm, 0.0, 0.0), Some(0.0));
+        // Thawed from the surface (air above): the top between the centres at 0.05 and 0.15 m.
+        let spring = col([f64::NAN, 1.0, -1.0, -1.0, 2.0]);
+        let t = column_top(&ze, spring, 0.0, 0.0).unwrap();
+        assert!((t - 0.10).abs() < 1e-12, "{t}");
+    }
 }

@@ -641,6 +641,11 @@ impl Case {
         let x1 = self.footing.outer_projection_m;
         (x1 - self.footing.width_m, x1)
     }
+    /// Depth of the bearing soil's top, m: the footing base, or the underside of the board the
+    /// footing bears on (the top of the protected zone).
+    pub fn bearing_depth_m(&self) -> f64 {
+        self.footing.base_depth_m + self.board_under_footing_m()
+    }
     /// Thickness of the insulation board the footing bears on (`under_footing`), m; 0 without.
     pub fn board_under_footing_m(&self) -> f64 {
         self.insulation

@@ -99,7 +99,7 @@ impl SectionFile {
             ze: g.ze.clone(),
             parts,
             footing_base_depth_m: case.footing.base_depth_m,
-            bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
+            bearing_depth_m: case.bearing_depth_m(),
             footing_x_m: case.footing_x(),
             frost_line_c: crate::run::frost_line_c(case),
             field_day_of_year: r.field.day_of_year,

@@ -438,7 +438,7 @@ impl Summary {
             frost_distance_to_base_corner_m: h.frost_distance_to_base_corner_m,
             frost_in_protected_zone: h.frost_in_protected_zone,
             footing_base_depth_m: case.footing.base_depth_m,
-            bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
+            bearing_depth_m: case.bearing_depth_m(),
             protected_zone_angle_deg: case.footing.protected_zone_angle_deg,
             frost_margin_m: h.frost_margin_m,
             frost_margin_definition: MARGIN_DEFINITION.into(),

@@ -399,7 +399,7 @@ pub fn three_d_file(case: &Case, r: &Run3Result) -> ThreeDFile {
         plan_bands: plan_bands(case),
         frost_line_c: frost_line_c(case),
         footing_base_depth_m: case.footing.base_depth_m,
-        bearing_depth_m: case.footing.base_depth_m + case.board_under_footing_m(),
+        bearing_depth_m: case.bearing_depth_m(),
         design_day: y.design_day,
         slices: slices(case, r),
         perimeter: rows

@@ -169,8 +169,8 @@ fn draw_plan<DB: DrawingBackend>(
             })
         });
     chart.draw_series(cells).map_err(out_err)?;
-    // Contours of frost depth, labelled in the length unit; the footing base depth bold and
-    // dashed.
+    // Contours of frost depth, labelled in the length unit; the bearing level (footing base or
+    // board underside) bold and dashed.
     let (xs, ys) = (super::field::centres(&xe), super::field::centres(&ye));
     let inside = |&(x, y): &(f64, f64)| x >= v.x0 && x <= v.x1 && y >= v.z0 && y <= v.z1;
     let step = contour_step(max);

@@ -7,7 +7,7 @@ use std::path::Path;
 
 /// The 3D figures: (file stem, caption).
 pub const FIGURES_3D: &[(&str, &str)] = &[
-    ("plan_frost", "Deepest frost over the year round the whole building (the computed quarter mirrored), with the wall, footing and insulation outlines; dashed red: frost as deep as the footing base."),
+    ("plan_frost", "Deepest frost over the year round the whole building (the computed quarter mirrored), with the wall, footing and insulation outlines; dashed red: frost as deep as the footing base (or, for a footing bearing on a board, the board's underside)."),
     ("perimeter_frost", "Frost depth at the footing's outer face and frost margin along the perimeter, from the middle of the long wall through the corner to the middle of the short wall, with the 2D section's values."),
     ("section_mid_wall", "Soil temperature on the design day in the vertical section at the middle of the long wall; bold: frost line."),
     ("section_corner_diagonal", "The same day along the corner's diagonal (x along each axis from the exterior corner); bold: frost line."),

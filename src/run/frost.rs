@@ -111,7 +111,7 @@ impl ProtectedZone {
 pub struct FrostMeasures {
     /// Frost depth in open ground (the far edge of the domain).
     pub open_m: f64,
-    /// Top of the frozen layer in open ground (NaN: no frost, or not computed).
+    /// Top of the frozen layer in open ground (NaN: no frost).
     pub open_top_m: f64,
     /// Top of the frozen layer just outside the footing's outer face (NaN: none).
     pub at_face_top_m: f64,
@@ -170,7 +170,8 @@ impl FrostLines {
     pub fn measure(&self, mesh: &Mesh, net: &Network, t: &[f64]) -> FrostMeasures {
         let depth = |i: usize, from: f64| frost_depth_column(mesh, net, t, i, from, self.t_line);
         let top = |i: usize| {
-            crate::analysis::frost_top_column(mesh, net, t, i, 0.0, self.t_line).unwrap_or(f64::NAN)
+            let s = crate::analysis::column_scalar(mesh, net, t, i);
+            crate::analysis::column_top(&mesh.grid.ze, s, 0.0, self.t_line).unwrap_or(f64::NAN)
         };
         let deepest = |cols: &[usize], from: f64| {
             cols.iter()

@@ -22,7 +22,7 @@
 //! and z, linear in the frost scalar) and the frozen cell centres, as in 2D.
 use super::driver::Observer;
 use super::frost::{frost_line_c, FrostMeasures, ProtectedZone};
-use crate::analysis::frost_scalar;
+use crate::analysis::{column_depth, column_top, frost_scalar};
 use crate::case::Case;
 use crate::geometry3d::Quarter;
 use crate::mesh::Cell;
@@ -222,44 +222,25 @@ impl<'a> Quarter3<'a> {
         }
     }
 
-    /// Deepest frozen point of plan column `col` (j·nx + i) at or below `z_from`, m (the 2D
-    /// column rule of `analysis::frost_depth_column` on the frost scalar).
-    fn depth(&self, col: usize, z_from: f64) -> Option<f64> {
-        let g = &self.mesh.grid;
-        let layer = g.nx() * g.ny();
-        let s = |k: usize| {
+    /// The frost scalar of plan column `col` (j·nx + i) by layer k (None for air).
+    fn column(&self, col: usize) -> impl Fn(usize) -> Option<f64> + '_ {
+        let layer = self.mesh.grid.nx() * self.mesh.grid.ny();
+        move |k| {
             let v = self.scalar[k * layer + col];
             (!v.is_nan()).then_some(v)
-        };
-        let k = (0..g.nz())
-            .rev()
-            .find(|&k| g.ze[k + 1] > z_from && s(k).is_some_and(|v| v <= self.t_line))?;
-        let a = s(k)?;
-        let zc = |k: usize| Grid3::centre(&g.ze, k);
-        let z = match (k + 1 < g.nz()).then(|| s(k + 1)).flatten() {
-            Some(b) if b > a => zc(k) + (self.t_line - a) / (b - a) * (zc(k + 1) - zc(k)),
-            _ => g.ze[k + 1],
-        };
-        Some(z.max(z_from))
+        }
     }
 
-    /// Shallowest frozen point of plan column `col` (the top of the frozen layer, below ground
-    /// thawed from the surface in spring), m: the 2D rule of `analysis::frost_top_column` on the
-    /// frost scalar.
+    /// Deepest frozen point of plan column `col` at or below `z_from`, m (the 2D column rule,
+    /// [`crate::analysis::column_depth`]).
+    fn depth(&self, col: usize, z_from: f64) -> Option<f64> {
+        column_depth(&self.mesh.grid.ze, self.column(col), z_from, self.t_line)
+    }
+
+    /// Top of the frozen layer of plan column `col` below the ground surface, m (below ground
+    /// thawed from the surface in spring; [`crate::analysis::column_top`]).
     fn top(&self, col: usize) -> Option<f64> {
-        let g = &self.mesh.grid;
-        let layer = g.nx() * g.ny();
-        let s = |k: usize| {
-            let v = self.scalar[k * layer + col];
-            (!v.is_nan()).then_some(v)
-        };
-        let k = (0..g.nz()).find(|&k| s(k).is_some_and(|v| v <= self.t_line))?;
-        let b = s(k)?;
-        let zc = |k: usize| Grid3::centre(&g.ze, k);
-        Some(match (k > 0).then(|| s(k - 1)).flatten() {
-            Some(a) if a > b => zc(k - 1) + (a - self.t_line) / (a - b) * (zc(k) - zc(k - 1)),
-            _ => g.ze[k],
-        })
+        column_top(&self.mesh.grid.ze, self.column(col), 0.0, self.t_line)
     }
 
     /// The frost measures of one station's columns; `plan` holds every column's frost depth from

@@ -26,7 +26,8 @@ pub struct Day {
     pub heat_loss_w: f64,
     /// Frost depth in open ground at the far edge, end of day, m.
     pub frost_open_m: f64,
-    /// Top of the frozen layer there, m (NaN: no frost, or not computed).
+    /// Top of the frozen layer there, m (NaN: no frost, or a file written before tops were
+    /// recorded).
     #[serde(default = "nan")]
     pub frost_top_open_m: f64,
     /// Top of the frozen layer just outside the footing's outer face, m (NaN: none).
