@@ -78,7 +78,7 @@ pub(super) fn bearing_line<'a, DB: DrawingBackend + 'a>(
     x1: f64,
     (base, bearing, unit): (f64, f64, &str),
 ) -> Result<()> {
-    if bearing <= base + 1e-9 {
+    if !crate::run::frost::bears_on_board(base, bearing) {
         return Ok(());
     }
     reference_line(
@@ -188,11 +188,13 @@ fn draw_frost<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, d: &PlotData) -
             ))
             .map_err(out_err)?;
         if r == 0 {
-            s.label(if d.bearing_depth_m > d.footing_base_depth_m + 1e-9 {
-                "under the footing (below the board)"
-            } else {
-                "under the footing (below its base)"
-            })
+            s.label(
+                if crate::run::frost::bears_on_board(d.footing_base_depth_m, d.bearing_depth_m) {
+                    "under the footing (below the board)"
+                } else {
+                    "under the footing (below its base)"
+                },
+            )
             .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], FOOT.stroke_width(3)));
         }
     }

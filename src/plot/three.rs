@@ -210,7 +210,7 @@ fn draw_plan<DB: DrawingBackend>(
     // The contour of the bearing level: the footing base, or the underside of the board the
     // footing bears on.
     let base = f.bearing_m();
-    let what = if base > f.footing_base_depth_m + 1e-9 {
+    let what = if crate::run::frost::bears_on_board(f.footing_base_depth_m, base) {
         "the bearing level, under the board"
     } else {
         "the footing base"

@@ -265,7 +265,7 @@ fn heat_rows(s: &Summary) -> Vec<Row> {
 
 fn frost_rows(s: &Summary) -> Vec<Row> {
     let cc = &s.cross_check;
-    let board = s.bearing_depth_m > s.footing_base_depth_m + 1e-9;
+    let board = crate::run::frost::bears_on_board(s.footing_base_depth_m, s.bearing_depth_m);
     vec![
         (
             "frost depth, open ground",

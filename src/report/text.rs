@@ -282,7 +282,7 @@ fn frost_rows(s: &Summary) -> String {
         2,
         &[s.frost_depth_at_footing_face_m],
     );
-    let board = s.bearing_depth_m > s.footing_base_depth_m + 1e-9;
+    let board = crate::run::frost::bears_on_board(s.footing_base_depth_m, s.bearing_depth_m);
     t += &row(
         if board {
             "below the footing's board"

@@ -43,6 +43,12 @@ pub struct ProtectedZone {
     pub board_m: f64,
 }
 
+/// Whether a footing whose base is at `base` (m) bears on a board whose underside is at
+/// `bearing` (m): the bearing level lies below the base.
+pub fn bears_on_board(base: f64, bearing: f64) -> bool {
+    bearing > base + 1e-9
+}
+
 impl ProtectedZone {
     /// The zone of the case's footing.
     pub fn of(case: &Case) -> Self {
