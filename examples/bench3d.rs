@@ -9,7 +9,8 @@
 //! of the incomplete factor (environment AMG_THETA, AMG_DOM, AMG_PASSES set its strength
 //! threshold, dominance and aggregation passes; PCG_TOL the incomplete-factor solver's relative
 //! tolerance; `omega X` and `omega_steady X` the incomplete factor's modification for steps and
-//! for steady solves). Run with
+//! for steady solves; `forcing X` the inexact Newton forcing term, 0 for full linear solves).
+//! Run with
 //! `cargo run --release --example bench3d -- days 20 coarse` and take medians of repeated runs
 //! (the machine is noisy).
 use frostline::case::{load_case, Fineness};
@@ -76,6 +77,7 @@ fn main() {
     };
     let params = SolverParams {
         linear,
+        newton_forcing: value("forcing", SolverParams::default().newton_forcing),
         ..Default::default()
     };
     match args.get(1).map(String::as_str) {
@@ -83,13 +85,14 @@ fn main() {
             let r = three::run3(&case, &RunOptions::default(), &mut |_| {}).expect("3D run");
             let s = &r.stats;
             println!(
-                "run: {:.1} s, {} steps, {:.2} Newton/step, {:.1} CG/solve (max {}), {} set-ups",
+                "run: {:.1} s, {} steps, {:.2} Newton/step, {:.1} CG/solve (max {}), {} set-ups, {} halvings",
                 r.wall_time_s,
                 r.time_steps,
                 s.newton_iterations as f64 / s.steps as f64,
                 s.cg_iterations as f64 / s.solves.max(1) as f64,
                 s.max_cg_iterations,
-                s.factorizations
+                s.factorizations,
+                s.halvings
             );
         }
         mode => {

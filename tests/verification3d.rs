@@ -198,8 +198,30 @@ fn bestest_gc10a_floor_heat_flow() {
 /// C 1.8/2.6 MJ/(m³·K), L = 125 MJ/m³, X(100 d) = 1.4596 m). Requirements as in 2D: within 2 %
 /// on the 1 cm / 3 h mesh, every column alike (the 3D faces carry no spurious lateral flow), and
 /// the heat drawn through the surface equals the loss of stored heat (latent heat included).
+///
+/// Run twice: with the default inexact Newton (each CG solve stopped once the correction's
+/// temperature-equivalent residual is below max(0.1 tol, 1e-3 × the Newton residual)) and with
+/// every CG solve to the relative tolerance (forcing 0). The converged states meet the same Newton
+/// test, so the fronts agree to far less than a cell (1e-4 m).
 #[test]
 fn neumann_front_in_3d() {
+    let (fronts, errors) = neumann_3d(pcg());
+    let exact = neumann_3d(SolverParams {
+        newton_forcing: 0.0,
+        ..pcg()
+    });
+    eprintln!("3D Neumann front relative errors at 25/50/100 d: {errors:?}");
+    for e in &errors {
+        assert!(e.abs() < 0.02, "{errors:?}");
+    }
+    for (a, b) in fronts.iter().zip(&exact.0) {
+        assert!((a - b).abs() < 1e-4, "{fronts:?} vs {:?}", exact.0);
+    }
+}
+
+/// The 3D Neumann column with `params`: the fronts at 25, 50, 100 days (m) and their relative
+/// errors; asserts the columns alike and the energy balance.
+fn neumann_3d(params: SolverParams) -> (Vec<f64>, Vec<f64>) {
     use frostline::mesh::EdgeBc;
     use frostline::methods::Neumann;
     let n = Neumann {
@@ -241,13 +263,13 @@ fn neumann_front_in_3d() {
         top: vec![EdgeBc::Zone { zone: 0, r: 0.0 }; cols],
     };
     let net = Network::new3(&mesh);
-    let mut s = Solver::new(&net, pcg()).unwrap();
+    let mut s = Solver::new(&net, params).unwrap();
     let mut h = net.enthalpies(&vec![n.t_initial; net.n]);
     let mut t = vec![0.0; net.n];
     let (dt, mut time) = (86400.0 / 8.0, 0.0);
     let (mut heat_in, mut stored) = (0.0, 0.0);
     let g = &mesh.grid;
-    let mut errors = Vec::new();
+    let (mut errors, mut fronts) = (Vec::new(), Vec::new());
     for d in [25.0, 50.0, 100.0] {
         while time < d * 86400.0 - 1e-6 {
             let e = s.step(&mut h, &[n.t_surface], dt, time).unwrap();
@@ -274,13 +296,24 @@ fn neumann_front_in_3d() {
             assert!((front(i, j) - x).abs() < 1e-6, "column ({i}, {j})");
         }
         errors.push(x / n.front_depth(d * 86400.0) - 1.0);
+        fronts.push(x);
     }
-    eprintln!("3D Neumann front relative errors at 25/50/100 d: {errors:?}; energy {heat_in:.6e} vs {stored:.6e}");
-    for e in &errors {
-        assert!(e.abs() < 0.02, "{errors:?}");
-    }
+    // The energy error of a step is Σ R_p Δt at the accepted Newton iterate. Solving every
+    // correction fully makes that iterate's residual far below the tolerance (measured
+    // relative here: 5e-15); the inexact corrections stop the iteration just under it (2.7e-8).
+    let allowed = if params.newton_forcing > 0.0 {
+        1e-7
+    } else {
+        1e-8
+    };
+    eprintln!(
+        "forcing {}: energy error {:.1e}",
+        params.newton_forcing,
+        (heat_in - stored) / heat_in
+    );
     assert!(
-        (heat_in - stored).abs() < 1e-8 * heat_in.abs(),
+        (heat_in - stored).abs() < allowed * heat_in.abs(),
         "{heat_in} vs {stored}"
     );
+    (fronts, errors)
 }

@@ -15,7 +15,10 @@
 //! Cholesky, row sums kept), which makes the iteration count grow far more slowly with the grid
 //! (Gustafsson 1978, BIT 18:142–156). Setting up M costs one pass over the matrix, so it is
 //! redone whenever the matrix or ω changes (steady solves use their own ω,
-//! [`PcgParams::omega_steady`]). CG stops when ‖r‖₂ ≤ `rel_tol` ‖b‖₂.
+//! [`PcgParams::omega_steady`]). CG stops when ‖r‖₂ ≤ `rel_tol` ‖b‖₂, or, for a Newton step's
+//! correction ([`PcgSolver::solve_step`]), as soon as max_k w_k |r_k| ≤ a given bound: with
+//! w_k = Δt/(V_k C_k) this is the temperature-equivalent residual the Newton iteration tests, so
+//! the correction is solved only as far as the next Newton iterate needs (inexact Newton).
 use crate::error::{Error, Result};
 
 /// Settings of the iterative solver.
@@ -236,15 +239,33 @@ impl PcgSolver {
 
     /// Solve A x = rhs in place (x starts from 0) for a transient step's matrix.
     pub fn solve(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
-        self.solve_with(vals, rhs, self.params.omega)
+        self.solve_with(vals, rhs, self.params.omega, None)
+    }
+
+    /// [`PcgSolver::solve`] that also stops once max_k w_k |r_k| ≤ `bound` (the residual in the
+    /// units the caller's own convergence test uses).
+    pub fn solve_step(
+        &mut self,
+        vals: &[f64],
+        rhs: &mut [f64],
+        w: &[f64],
+        bound: f64,
+    ) -> Result<()> {
+        self.solve_with(vals, rhs, self.params.omega, Some((w, bound)))
     }
 
     /// Solve A x = rhs in place (x starts from 0) for a steady matrix.
     pub fn solve_steady(&mut self, vals: &[f64], rhs: &mut [f64]) -> Result<()> {
-        self.solve_with(vals, rhs, self.params.omega_steady)
+        self.solve_with(vals, rhs, self.params.omega_steady, None)
     }
 
-    fn solve_with(&mut self, vals: &[f64], rhs: &mut [f64], omega: f64) -> Result<()> {
+    fn solve_with(
+        &mut self,
+        vals: &[f64],
+        rhs: &mut [f64],
+        omega: f64,
+        scaled: Option<(&[f64], f64)>,
+    ) -> Result<()> {
         if !self.valid || self.omega != omega || self.factored != vals {
             self.omega = omega;
             self.setup(vals)?;
@@ -266,15 +287,26 @@ impl PcgSolver {
             self.matvec(vals, &p, &mut q);
             let pq: f64 = p.iter().zip(&q).map(|(a, b)| a * b).sum();
             let alpha = rz / pq;
-            let mut r2 = 0.0;
-            for k in 0..self.n {
-                x[k] += alpha * p[k];
-                r[k] -= alpha * q[k];
-                r2 += r[k] * r[k];
+            let (mut r2, mut scaled_max) = (0.0, 0.0f64);
+            if let Some((w, _)) = scaled {
+                for k in 0..self.n {
+                    x[k] += alpha * p[k];
+                    r[k] -= alpha * q[k];
+                    r2 += r[k] * r[k];
+                    scaled_max = scaled_max.max((w[k] * r[k]).abs());
+                }
+            } else {
+                for k in 0..self.n {
+                    x[k] += alpha * p[k];
+                    r[k] -= alpha * q[k];
+                    r2 += r[k] * r[k];
+                }
             }
             it += 1;
             let r_norm = r2.sqrt();
-            if r_norm <= self.params.rel_tol * b_norm {
+            if r_norm <= self.params.rel_tol * b_norm
+                || scaled.is_some_and(|(_, bound)| scaled_max <= bound)
+            {
                 done = true;
                 break;
             }
