@@ -82,7 +82,11 @@ fn main() {
     };
     match args.get(1).map(String::as_str) {
         Some("run") => {
-            let r = three::run3(&case, &RunOptions::default(), &mut |_| {}).expect("3D run");
+            let opts = RunOptions {
+                solver: params,
+                ..RunOptions::default()
+            };
+            let r = three::run3(&case, &opts, &mut |_| {}).expect("3D run");
             let s = &r.stats;
             println!(
                 "run: {:.1} s, {} steps, {:.2} Newton/step, {:.1} CG/solve (max {}), {} set-ups, {} halvings",
@@ -121,10 +125,11 @@ fn main() {
                 let s = solver.stats();
                 let solves = (s.solves - before.solves).max(1);
                 println!(
-                    "days: {:.3} s/step, {:.2} Newton/step, {:.1} CG/solve",
+                    "days: {:.3} s/step, {:.2} Newton/step, {:.1} CG/solve, {} halvings",
                     t2.elapsed().as_secs_f64() / n as f64,
                     (s.newton_iterations - before.newton_iterations) as f64 / n as f64,
                     (s.cg_iterations - before.cg_iterations) as f64 / solves as f64,
+                    s.halvings - before.halvings,
                 );
             }
         }

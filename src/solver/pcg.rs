@@ -305,7 +305,7 @@ impl PcgSolver {
             it += 1;
             let r_norm = r2.sqrt();
             if r_norm <= self.params.rel_tol * b_norm
-                || scaled.is_some_and(|(_, bound)| scaled_max <= bound)
+                || (r_norm.is_finite() && scaled.is_some_and(|(_, bound)| scaled_max <= bound))
             {
                 done = true;
                 break;
@@ -336,17 +336,17 @@ impl PcgSolver {
 mod tests {
     use super::*;
 
-    /// A 2D Laplacian with a mass term on an 8 × 6 grid (lower CSC): the solution of A x = A 1 is
-    /// 1 to the tolerance, whatever ω.
-    #[test]
-    fn solves_a_grid_laplacian() {
-        let (nx, nz) = (8usize, 6usize);
-        let n = nx * nz;
+    /// The lower CSC of a 5-point nx × nz grid matrix: diagonal `diag(c)`, couplings −1.
+    fn laplacian_2d(
+        nx: usize,
+        nz: usize,
+        diag: impl Fn(usize) -> f64,
+    ) -> (Vec<usize>, Vec<usize>, Vec<f64>) {
         let (mut cp, mut ri, mut v) = (vec![0], Vec::new(), Vec::new());
-        for c in 0..n {
+        for c in 0..nx * nz {
             let (i, j) = (c % nx, c / nx);
             ri.push(c);
-            v.push(4.0 + 0.01 * (c as f64));
+            v.push(diag(c));
             if i + 1 < nx {
                 ri.push(c + 1);
                 v.push(-1.0);
@@ -357,6 +357,16 @@ mod tests {
             }
             cp.push(ri.len());
         }
+        (cp, ri, v)
+    }
+
+    /// A 2D Laplacian with a mass term on an 8 × 6 grid (lower CSC): the solution of A x = A 1 is
+    /// 1 to the tolerance, whatever ω.
+    #[test]
+    fn solves_a_grid_laplacian() {
+        let (nx, nz) = (8usize, 6usize);
+        let n = nx * nz;
+        let (cp, ri, v) = laplacian_2d(nx, nz, |c| 4.0 + 0.01 * (c as f64));
         for omega in [0.0, 0.95, 0.99] {
             let mut s = PcgSolver::new(
                 n,
@@ -387,6 +397,41 @@ mod tests {
             s.solve(&v, &mut b).unwrap();
             assert_eq!(s.setups, 3);
         }
+    }
+
+    /// A Newton correction solved only as far as asked: `solve_step` returns once the weighted
+    /// residual max_k w_k |r_k| of A x = b (recomputed here from x) is at most the bound, in
+    /// fewer iterations than the full solve, and its x is the full solution within that bound.
+    #[test]
+    fn solve_step_stops_at_the_weighted_bound() {
+        let (nx, nz) = (30usize, 20usize);
+        let n = nx * nz;
+        let (cp, ri, v) = laplacian_2d(nx, nz, |_| 4.01);
+        let mut s = PcgSolver::new(n, cp, ri, PcgParams::default());
+        let b: Vec<f64> = (0..n).map(|k| ((k * 7) % 13) as f64 - 6.0).collect();
+        let w: Vec<f64> = (0..n).map(|k| 0.5 + (k % 3) as f64).collect();
+        let max_w = |s: &PcgSolver, x: &[f64]| {
+            let mut ax = vec![0.0; n];
+            s.matvec(&v, x, &mut ax);
+            (0..n)
+                .map(|k| (w[k] * (b[k] - ax[k])).abs())
+                .fold(0.0, f64::max)
+        };
+        let start = (0..n).map(|k| (w[k] * b[k]).abs()).fold(0.0, f64::max);
+        let bound = 1e-3 * start;
+        let mut x = b.clone();
+        s.solve_step(&v, &mut x, &w, bound).unwrap();
+        let partial = s.iterations;
+        let reached = max_w(&s, &x);
+        assert!(reached <= bound * (1.0 + 1e-9), "{reached} > {bound}");
+        let mut full = b.clone();
+        s.solve(&v, &mut full).unwrap();
+        assert!(
+            partial < s.iterations - partial,
+            "{partial} vs {}",
+            s.iterations - partial
+        );
+        assert!(max_w(&s, &full) < 1e-3 * bound);
     }
 
     /// A steady matrix: the 3D 7-point Laplacian of a 10³ grid held only through its boundary
