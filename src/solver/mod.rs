@@ -518,11 +518,15 @@ impl<'a> Solver<'a> {
                 h[p] += self.dh_prev[p];
             }
         }
-        let mut last_res = f64::INFINITY;
         for iter in 0..=params.max_newton {
             // T, C from the enthalpy state; residual (local slices: no reloads through `self`).
             let res = {
-                let (t, cap, r) = (&mut self.t[..], &mut self.cap[..], &mut self.r[..]);
+                let (t, cap, r, w) = (
+                    &mut self.t[..],
+                    &mut self.cap[..],
+                    &mut self.r[..],
+                    &mut self.w[..],
+                );
                 let (hold, vol, gf, gb) = (&self.h_old[..], &net.volume[..], &self.gf, &self.gb);
                 // The cell-wise part in two halves side by side (as the factorisation).
                 let cells = |off: usize, t: &mut [f64], cap: &mut [f64], r: &mut [f64]| {
@@ -549,10 +553,14 @@ impl<'a> Solver<'a> {
                 for (bf, &g) in net.bfaces.iter().zip(gb) {
                     r[bf.p] += g * (t[bf.p] - zone_t[bf.zone]);
                 }
+                // Weights Δt/(V C) of the temperature-equivalent residual (kept for the
+                // inexact linear solve).
+                for ((wp, v), c) in w.iter_mut().zip(vol).zip(cap.iter()) {
+                    *wp = dt / (v * c);
+                }
                 r.iter()
-                    .zip(vol)
-                    .zip(cap.iter())
-                    .map(|((rp, v), c)| (rp * dt / (v * c)).abs())
+                    .zip(w.iter())
+                    .map(|(rp, wp)| (rp * wp).abs())
                     .fold(0.0, |m: f64, v| {
                         if v.is_nan() || m.is_nan() {
                             f64::NAN
@@ -561,7 +569,6 @@ impl<'a> Solver<'a> {
                         }
                     })
             };
-            last_res = res;
             if res < params.tol_k {
                 self.stats.max_residual_k = self.stats.max_residual_k.max(res);
                 break;
@@ -582,9 +589,6 @@ impl<'a> Solver<'a> {
                 Lin::Iterative(s)
                     if params.newton_forcing > 0.0 && 2 * iter < params.max_newton =>
                 {
-                    for (p, w) in self.w.iter_mut().enumerate() {
-                        *w = dt / (vol[p] * cap[p]);
-                    }
                     let bound = (0.1 * params.tol_k).max(params.newton_forcing * res);
                     s.solve_step(&self.vals, &mut rhs, &self.w, bound)
                 }
@@ -602,10 +606,6 @@ impl<'a> Solver<'a> {
             self.cap = cap;
             self.rhs = rhs;
             self.stats.newton_iterations += 1;
-        }
-        if !last_res.is_finite() {
-            h.copy_from_slice(&self.h_old);
-            return Err((0, last_res));
         }
         for (b, bf) in net.bfaces.iter().enumerate() {
             let q = self.gb[b] * (zone_t[bf.zone] - self.t[bf.p]) * dt;

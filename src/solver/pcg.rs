@@ -288,18 +288,12 @@ impl PcgSolver {
             let pq: f64 = p.iter().zip(&q).map(|(a, b)| a * b).sum();
             let alpha = rz / pq;
             let (mut r2, mut scaled_max) = (0.0, 0.0f64);
-            if let Some((w, _)) = scaled {
-                for k in 0..self.n {
-                    x[k] += alpha * p[k];
-                    r[k] -= alpha * q[k];
-                    r2 += r[k] * r[k];
+            for k in 0..self.n {
+                x[k] += alpha * p[k];
+                r[k] -= alpha * q[k];
+                r2 += r[k] * r[k];
+                if let Some((w, _)) = scaled {
                     scaled_max = scaled_max.max((w[k] * r[k]).abs());
-                }
-            } else {
-                for k in 0..self.n {
-                    x[k] += alpha * p[k];
-                    r[k] -= alpha * q[k];
-                    r2 += r[k] * r[k];
                 }
             }
             it += 1;
