@@ -20,7 +20,7 @@
 //! Newton's method in H, so latent heat is neither lost nor created: the energy error of a step is
 //! Σ R_p Δt at the converged state. Stopping test: max_p |R_p| Δt /(V_p C_p) < `tol_k` (a
 //! temperature-equivalent residual, K). A step that fails to converge, or whose residual is not
-//! finite, is halved (recursively). With the incomplete-factor CG solver the correction is solved
+//! finite, is halved (recursively). With the iterative (CG) solvers the correction is solved
 //! only as far as the next iterate needs (inexact Newton, [`SolverParams::newton_forcing`]); the
 //! stopping test is the same.
 //! References: Swaminathan & Voller (1992); Nedjar (2002); see DEVELOPERS.md.
@@ -45,8 +45,9 @@ pub struct SolverParams {
     pub max_newton: usize,
     /// Maximum recursive halvings of one step. Default 8.
     pub max_halvings: usize,
-    /// Forcing term η of the inexact Newton iteration with the incomplete-factor CG solver
-    /// ([`Linear::Pcg`]; the others ignore it): conjugate gradients solve each correction until
+    /// Forcing term η of the inexact Newton iteration with the iterative solvers
+    /// ([`Linear::Pcg`], [`Linear::Multigrid`]; the direct one ignores it): conjugate gradients
+    /// solve each correction until
     /// its temperature-equivalent residual is at most max(0.1 `tol_k`, η × the current Newton
     /// residual), since the next iterate is tested in that measure anyway (inexact Newton:
     /// Dembo, Eisenstat & Steihaug 1982, SIAM J. Numer. Anal. 19:400–408, from memory). From
@@ -103,6 +104,22 @@ impl Lin {
         match self {
             Lin::Iterative(s) => s.solve_steady(vals, rhs),
             other => other.solve(vals, rhs),
+        }
+    }
+    /// A Newton correction: the iterative solvers stop once max_k w_k |r_k| ≤ `bound`; the
+    /// direct one solves in full (as [`Lin::solve_near`]).
+    fn solve_step(
+        &mut self,
+        vals: &[f64],
+        rhs: &mut [f64],
+        w: &[f64],
+        bound: f64,
+        max_touched: usize,
+    ) -> Result<()> {
+        match self {
+            Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
+            Lin::Iterative(s) => s.solve_step(vals, rhs, w, bound),
+            Lin::Multigrid(s) => s.solve_step(vals, rhs, w, bound),
         }
     }
     fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
@@ -586,11 +603,15 @@ impl<'a> Solver<'a> {
                 *x = -v;
             }
             let solved = match &mut self.lin {
-                Lin::Iterative(s)
-                    if params.newton_forcing > 0.0 && 2 * iter < params.max_newton =>
-                {
+                lin if params.newton_forcing > 0.0 && 2 * iter < params.max_newton => {
                     let bound = (0.1 * params.tol_k).max(params.newton_forcing * res);
-                    s.solve_step(&self.vals, &mut rhs, &self.w, bound)
+                    lin.solve_step(
+                        &self.vals,
+                        &mut rhs,
+                        &self.w,
+                        bound,
+                        params.near_factor_cells,
+                    )
                 }
                 lin => lin.solve_near(&self.vals, &mut rhs, params.near_factor_cells),
             };
