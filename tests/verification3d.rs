@@ -202,7 +202,8 @@ fn bestest_gc10a_floor_heat_flow() {
 /// Run twice: with the default inexact Newton (each CG solve stopped once the correction's
 /// temperature-equivalent residual is below max(0.1 tol, 1e-3 × the Newton residual)) and with
 /// every CG solve to the relative tolerance (forcing 0). The converged states meet the same Newton
-/// test, so the fronts agree to far less than a cell (1e-4 m).
+/// test, so the fronts agree to far less than a cell (1e-4 m). A third run uses the
+/// multigrid-preconditioned solver (inexact stop too) and must meet the same bound and fronts.
 #[test]
 fn neumann_front_in_3d() {
     let (fronts, errors, cg) = neumann_3d(pcg());
@@ -219,6 +220,21 @@ fn neumann_front_in_3d() {
     }
     // The early stop takes effect.
     assert!(cg < exact_cg, "{cg} vs {exact_cg}");
+    // The multigrid-preconditioned solver, with the same inexact stop: same bound, same fronts.
+    let (mg, mg_errors, mg_cg) = neumann_3d(SolverParams {
+        linear: Linear::Multigrid(frostline::solver::amg::AmgParams {
+            rel_tol: 1e-12,
+            ..Default::default()
+        }),
+        ..pcg()
+    });
+    eprintln!("multigrid: relative errors {mg_errors:?}; CG iterations {mg_cg}");
+    for e in &mg_errors {
+        assert!(e.abs() < 0.02, "{mg_errors:?}");
+    }
+    for (a, b) in mg.iter().zip(&exact) {
+        assert!((a - b).abs() < 1e-4, "{mg:?} vs {exact:?}");
+    }
 }
 
 /// The 3D Neumann column with `params`: the fronts at 25, 50, 100 days (m), their relative

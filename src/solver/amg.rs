@@ -12,8 +12,13 @@
 //!   ((A_c)_IJ = Σ_{i∈I, j∈J} a_ij) and is recomputed in one pass whenever A changes. The
 //!   aggregates are chosen once, from the first matrix, and kept. The coarsest level (at most
 //!   `coarse_size` unknowns) is solved by a dense Cholesky factor.
-//! - **Cycle.** One forward Gauss–Seidel sweep, the coarse correction, one backward sweep. The
-//!   coarse correction on every level but the last is two steps of flexible CG preconditioned by
+//! - **Cycle.** One forward Gauss–Seidel sweep, the coarse correction, one backward sweep. On
+//!   levels of at least [`PAR_MIN`] unknowns the rows are split in two halves swept at once on
+//!   two threads, each reading the other half's unknowns as they were when the sweep began (block
+//!   Gauss–Seidel: the split depends on the matrix only, so results do not depend on the thread
+//!   count or timing); matrix products and long dot products are split the same way, their two
+//!   partial sums added in a fixed order. The cycle uses the values in single precision; the
+//!   outer iteration's products are in double precision. The coarse correction on every level but the last is two steps of flexible CG preconditioned by
 //!   the next cycle (the K-cycle), which keeps plain aggregation's convergence independent of the
 //!   number of levels (Notay & Vassilevski 2008, Numer. Linear Algebra Appl. 15:123–142;
 //!   Notay 2010, Electron. Trans. Numer. Anal. 37:123–146).
@@ -25,12 +30,14 @@
 //! Full solves: iterations per solve 12.5 / 13.2 / 14.1 on the coarse / normal / fine mesh
 //! (37,636 / 137,151 / 975,494 unknowns) against 11.6 / 15.0 / 28.0 for the incomplete factor.
 //! With the inexact Newton stop ([`AmgSolver::solve_step`]): 4.9 / 4.8 / 5.1 iterations per solve
-//! (incomplete factor 5.4 / 6.5 / 9.5): independent of the mesh, as intended. But one iteration
-//! costs about three of the incomplete factor's (two Gauss–Seidel sweeps, half a residual and the
+//! (incomplete factor 5.4 / 6.5 / 9.5): independent of the mesh, as intended, so the time per
+//! step grows nearly as the unknowns: 0.088 / 0.351 / 3.37 s (n^1.07 coarse → normal, n^1.15
+//! normal → fine, of which n^0.10 is the Newton iterations per step, 5.1 / 6.1 / 7.4). One
+//! iteration still costs more than the incomplete factor's (two sweeps, half a residual and the
 //! K-cycle's coarse levels, whose work adds up to about the finest level's, against two
-//! triangular solves in single precision), so a step takes longer on every mesh of the demo:
-//! 0.095 / 0.453 / 4.74 s against 0.051 / 0.266 / 3.01 s (medians of 3, fine 1 run). It is
-//! therefore not the 3D default; it stays as the measured alternative for larger grids.
+//! triangular solves), so on the demo's meshes a step takes 1.7 / 1.3 / 1.1 times as long as
+//! with the incomplete factor (0.051 / 0.274 / 3.01 s; medians of 3, fine 1 run each). It is
+//! therefore not the 3D default.
 use crate::error::{Error, Result};
 
 /// Settings of the multigrid-preconditioned solver.
@@ -64,11 +71,32 @@ impl Default for AmgParams {
     }
 }
 
+/// Unknowns from which a level's kernels share their rows between two threads.
+const PAR_MIN: usize = 4_096;
+
+/// The two row blocks of a level shared between two threads: rows 0..mid and mid..n. Each block's
+/// Gauss–Seidel sweep reads the other block's unknowns as they were when the sweep began (block
+/// Gauss–Seidel), so the result does not depend on the threads' timing, nor on how many threads
+/// the machine has: the split depends on the matrix only.
+#[derive(Debug, Clone, Copy)]
+struct Blocks {
+    mid: usize,
+    /// Columns the rows of the first block reach, beyond their own: up to `hi` (exclusive).
+    hi: usize,
+    /// Columns the rows of the second block reach, below their own: from `lo`.
+    lo: usize,
+    /// Rows of the second block below `cross` may have columns in the first.
+    cross: usize,
+}
+
 /// A symmetric matrix by full rows (compressed sparse rows, 32-bit pattern).
 struct Csr {
     ptr: Vec<u32>,
     col: Vec<u32>,
     val: Vec<f64>,
+    /// The values in single precision, which the cycle uses (it only has to be close to A; the
+    /// outer iteration uses `val`): less memory traffic in these memory-bound kernels.
+    val32: Vec<f32>,
     /// Slot of the diagonal in each row.
     diag: Vec<u32>,
     /// 1 / a_ii (kept off the sweeps' dependency chain, where a division's latency would
@@ -77,6 +105,8 @@ struct Csr {
     /// Whether each row holds its entries j < i before the diagonal and j > i after it (the
     /// finest level's layout).
     split: bool,
+    /// The two row blocks, when the matrix has at least [`PAR_MIN`] rows.
+    blocks: Option<Blocks>,
 }
 
 impl Csr {
@@ -88,57 +118,183 @@ impl Csr {
         self.ptr[i] as usize..self.ptr[i + 1] as usize
     }
 
-    /// y = A x.
+    /// Find the two row blocks (once the pattern is known).
+    fn find_blocks(&mut self) {
+        let n = self.n();
+        if n < PAR_MIN {
+            self.blocks = None;
+            return;
+        }
+        let mid = n / 2;
+        let (mut hi, mut lo, mut cross) = (mid, mid, mid);
+        for i in 0..n {
+            for &j in &self.col[self.row(i)] {
+                let j = j as usize;
+                if i < mid {
+                    hi = hi.max(j + 1);
+                } else if j < mid {
+                    lo = lo.min(j);
+                    cross = i + 1;
+                }
+            }
+        }
+        self.blocks = Some(Blocks { mid, hi, lo, cross });
+    }
+
+    /// y = A x in double precision (the outer iteration's).
     fn matvec(&self, x: &[f64], y: &mut [f64]) {
-        for (i, yi) in y.iter_mut().enumerate() {
-            let r = self.row(i);
+        self.matvec_with(&self.val, x, y);
+    }
+
+    /// y ≈ A x with the single-precision values (inside the cycle).
+    fn matvec32(&self, x: &[f64], y: &mut [f64]) {
+        self.matvec_with(&self.val32, x, y);
+    }
+
+    fn matvec_with<V: Copy + Into<f64> + Sync>(&self, val: &[V], x: &[f64], y: &mut [f64]) {
+        match self.blocks {
+            None => self.matvec_rows(val, 0, x, y),
+            Some(b) => {
+                let (y1, y2) = y.split_at_mut(b.mid);
+                rayon::join(
+                    || self.matvec_rows(val, 0, x, y1),
+                    || self.matvec_rows(val, b.mid, x, y2),
+                );
+            }
+        }
+    }
+
+    /// y = rows off.. of A x.
+    fn matvec_rows<V: Copy + Into<f64>>(&self, val: &[V], off: usize, x: &[f64], y: &mut [f64]) {
+        for (k, yi) in y.iter_mut().enumerate() {
+            let r = self.row(off + k);
             *yi = self.col[r.clone()]
                 .iter()
-                .zip(&self.val[r])
-                .map(|(&j, &a)| a * x[j as usize])
+                .zip(&val[r])
+                .map(|(&j, &a)| a.into() * x[j as usize])
                 .sum();
         }
     }
 
-    /// One Gauss–Seidel sweep on A z = b, forward or backward.
-    fn sweep(&self, b: &[f64], z: &mut [f64], forward: bool) {
-        let n = self.n();
-        for k in 0..n {
-            let i = if forward { k } else { n - 1 - k };
+    /// z = one forward Gauss–Seidel sweep on A z = b from z = 0 (by blocks on large levels:
+    /// each block then starts with the other block's unknowns at 0).
+    fn forward_from_zero(&self, b: &[f64], z: &mut [f64]) {
+        z.iter_mut().for_each(|v| *v = 0.0);
+        match self.blocks {
+            None => self.sweep_rows(b, z, 0, &[], 0, true),
+            Some(bl) => {
+                let (z1, z2) = z.split_at_mut(bl.mid);
+                rayon::join(
+                    || self.sweep_rows(b, z1, 0, &[], 0, true),
+                    || self.sweep_rows(b, z2, bl.mid, &[], 0, true),
+                );
+            }
+        }
+    }
+
+    /// One backward Gauss–Seidel sweep on A z = b (by blocks on large levels, each reading the
+    /// other's unknowns as they were before the sweep, kept in `halo`).
+    fn backward(&self, b: &[f64], z: &mut [f64], halo: &mut Vec<f64>) {
+        match self.blocks {
+            None => self.sweep_rows(b, z, 0, &[], 0, false),
+            Some(bl) => {
+                halo.clear();
+                halo.extend_from_slice(&z[bl.lo..bl.hi]);
+                let (z1, z2) = z.split_at_mut(bl.mid);
+                rayon::join(
+                    || self.sweep_rows(b, z1, 0, halo, bl.lo, false),
+                    || self.sweep_rows(b, z2, bl.mid, halo, bl.lo, false),
+                );
+            }
+        }
+    }
+
+    /// Gauss–Seidel over the rows off..off + z.len() (z holds them), forward or backward; other
+    /// unknowns are read from `halo` (unknowns from `halo_off` on) or are 0.
+    fn sweep_rows(
+        &self,
+        b: &[f64],
+        z: &mut [f64],
+        off: usize,
+        halo: &[f64],
+        halo_off: usize,
+        forward: bool,
+    ) {
+        let len = z.len();
+        for k in 0..len {
+            let li = if forward { k } else { len - 1 - k };
+            let i = off + li;
             let r = self.row(i);
             let mut s = b[i];
-            for (&j, &a) in self.col[r.clone()].iter().zip(&self.val[r]) {
-                s -= a * z[j as usize];
+            for (&j, &a) in self.col[r.clone()].iter().zip(&self.val32[r]) {
+                let j = j as usize;
+                let zj = if j.wrapping_sub(off) < len {
+                    z[j - off]
+                } else if j.wrapping_sub(halo_off) < halo.len() {
+                    halo[j - halo_off]
+                } else {
+                    0.0
+                };
+                s -= f64::from(a) * zj;
             }
-            z[i] += s * self.dinv[i];
+            z[li] += s * self.dinv[i];
         }
     }
 
-    /// Refresh 1 / a_ii after the values changed.
-    fn refresh_dinv(&mut self) {
+    /// Refresh the single-precision values and 1 / a_ii after the values changed.
+    fn refresh(&mut self) {
+        self.val32.clear();
+        self.val32.extend(self.val.iter().map(|&v| v as f32));
         for (d, &s) in self.dinv.iter_mut().zip(&self.diag) {
-            *d = 1.0 / self.val[s as usize];
+            *d = 1.0 / f64::from(self.val32[s as usize]);
         }
     }
 
-    /// res = b − A z after one forward sweep from z = 0: each row's equation then holds with the
-    /// later unknowns at 0, so res_i = −Σ_{j>i} a_ij z_j (half a pass over the matrix when the
-    /// rows are split at the diagonal; a full residual otherwise).
+    /// res = b − A z after [`Csr::forward_from_zero`]: each row's equation then holds with the
+    /// later unknowns (and, in the second block, the first block's) at 0, so
+    /// res_i = −Σ_{j>i} a_ij z_j (− Σ_{j<mid} a_ij z_j in the second block): about half a pass
+    /// over the matrix when the rows are split at the diagonal, a full residual otherwise.
     fn residual_after_forward(&self, b: &[f64], z: &[f64], res: &mut [f64]) {
         if !self.split {
-            self.matvec(z, res);
+            self.matvec32(z, res);
             for (ri, bi) in res.iter_mut().zip(b) {
                 *ri = bi - *ri;
             }
             return;
         }
-        for (i, ri) in res.iter_mut().enumerate() {
-            let r = self.diag[i] as usize + 1..self.ptr[i + 1] as usize;
-            *ri = -self.col[r.clone()]
+        match self.blocks {
+            None => self.upper_rows(0, 0, z, res),
+            Some(bl) => {
+                let (r1, r2) = res.split_at_mut(bl.mid);
+                rayon::join(
+                    || self.upper_rows(0, 0, z, r1),
+                    || self.upper_rows(bl.mid, bl.cross, z, r2),
+                );
+            }
+        }
+    }
+
+    /// res_i = −Σ_{j>i} a_ij z_j for the rows off.., and for rows below `cross` also
+    /// −Σ_{j<off} a_ij z_j.
+    fn upper_rows(&self, off: usize, cross: usize, z: &[f64], res: &mut [f64]) {
+        for (k, ri) in res.iter_mut().enumerate() {
+            let i = off + k;
+            let d = self.diag[i] as usize;
+            let up = d + 1..self.ptr[i + 1] as usize;
+            let mut s: f64 = self.col[up.clone()]
                 .iter()
-                .zip(&self.val[r])
-                .map(|(&j, &a)| a * z[j as usize])
-                .sum::<f64>();
+                .zip(&self.val32[up])
+                .map(|(&j, &a)| f64::from(a) * z[j as usize])
+                .sum();
+            if i < cross {
+                let lower = self.ptr[i] as usize..d;
+                for (&j, &a) in self.col[lower.clone()].iter().zip(&self.val32[lower]) {
+                    if (j as usize) < off {
+                        s += f64::from(a) * z[j as usize];
+                    }
+                }
+            }
+            *ri = -s;
         }
     }
 }
@@ -150,6 +306,8 @@ struct Level {
     agg: Vec<u32>,
     to_coarse: Vec<u32>,
     res: Vec<f64>,
+    /// The other block's unknowns during a backward sweep by blocks.
+    halo: Vec<f64>,
     rc: Vec<f64>,
     zc: Vec<f64>,
     /// K-cycle vectors of this level (used when it is solved by two flexible-CG steps).
@@ -313,9 +471,11 @@ fn coarse_pattern(a: &Csr, agg: &[u32], nc: usize) -> (Csr, Vec<u32>) {
             ptr,
             col,
             val,
+            val32: Vec::new(),
             dinv: vec![0.0; nc],
             diag,
             split: false,
+            blocks: None,
         },
         to_coarse,
     )
@@ -323,7 +483,6 @@ fn coarse_pattern(a: &Csr, agg: &[u32], nc: usize) -> (Csr, Vec<u32>) {
 
 /// The multigrid-preconditioned flexible-CG solver for one sparsity pattern.
 pub struct AmgSolver {
-    n: usize,
     /// For each slot of the finest level's full rows, the slot of the caller's lower CSC values.
     from_lower: Vec<u32>,
     levels: Vec<Level>,
@@ -391,12 +550,13 @@ impl AmgSolver {
             ptr: count,
             col,
             val: vec![0.0; nnz],
+            val32: Vec::new(),
             dinv: vec![0.0; n],
             diag,
             split: true,
+            blocks: None,
         };
         AmgSolver {
-            n,
             from_lower,
             levels: vec![level(a)],
             coarsest: None,
@@ -460,7 +620,7 @@ impl AmgSolver {
             }
         }
         for l in &mut self.levels {
-            l.a.refresh_dinv();
+            l.a.refresh();
         }
         self.coarsest = Some(Dense::factor(&self.levels.last().expect("a level").a)?);
         self.factored.copy_from_slice(vals);
@@ -528,15 +688,7 @@ impl AmgSolver {
             self.levels[0].a.matvec(&p, &mut q);
             pq = dot(&p, &q);
             let alpha = dot(&p, r) / pq;
-            let (mut r2, mut scaled_max) = (0.0, 0.0f64);
-            for k in 0..self.n {
-                x[k] += alpha * p[k];
-                r[k] -= alpha * q[k];
-                r2 += r[k] * r[k];
-                if let Some((w, _)) = scaled {
-                    scaled_max = scaled_max.max((w[k] * r[k]).abs());
-                }
-            }
+            let (r2, scaled_max) = update(alpha, &p, &q, &mut x, r, scaled.map(|(w, _)| w));
             zq.copy_from_slice(&q);
             it += 1;
             let r_norm = r2.sqrt();
@@ -570,12 +722,14 @@ fn sum_into(to_coarse: &[u32], fine: &[f64], coarse: &mut [f64]) {
     }
 }
 
-fn level(a: Csr) -> Level {
+fn level(mut a: Csr) -> Level {
+    a.find_blocks();
     let n = a.n();
     Level {
         agg: Vec::new(),
         to_coarse: Vec::new(),
         res: vec![0.0; n],
+        halo: Vec::new(),
         rc: Vec::new(),
         zc: Vec::new(),
         k: std::array::from_fn(|_| vec![0.0; n]),
@@ -583,8 +737,46 @@ fn level(a: Csr) -> Level {
     }
 }
 
+/// a · b (the two halves on two threads for long vectors, added in a fixed order).
 fn dot(a: &[f64], b: &[f64]) -> f64 {
-    a.iter().zip(b).map(|(x, y)| x * y).sum()
+    let part = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| x * y).sum::<f64>();
+    if a.len() < PAR_MIN {
+        return part(a, b);
+    }
+    let mid = a.len() / 2;
+    let (s1, s2) = rayon::join(|| part(&a[..mid], &b[..mid]), || part(&a[mid..], &b[mid..]));
+    s1 + s2
+}
+
+/// x += α p, r −= α q; returns ‖r‖₂² and max_k w_k |r_k| (0 without w), the halves on two
+/// threads for long vectors.
+fn update(
+    alpha: f64,
+    p: &[f64],
+    q: &[f64],
+    x: &mut [f64],
+    r: &mut [f64],
+    w: Option<&[f64]>,
+) -> (f64, f64) {
+    let part = |off: usize, x: &mut [f64], r: &mut [f64]| {
+        let (mut r2, mut scaled_max) = (0.0, 0.0f64);
+        for (k, (xk, rk)) in x.iter_mut().zip(r.iter_mut()).enumerate() {
+            *xk += alpha * p[off + k];
+            *rk -= alpha * q[off + k];
+            r2 += *rk * *rk;
+            if let Some(w) = w {
+                scaled_max = scaled_max.max((w[off + k] * *rk).abs());
+            }
+        }
+        (r2, scaled_max)
+    };
+    if x.len() < PAR_MIN {
+        return part(0, x, r);
+    }
+    let mid = x.len() / 2;
+    let ((x1, x2), (r1, r2)) = (x.split_at_mut(mid), r.split_at_mut(mid));
+    let (a, b) = rayon::join(|| part(0, x1, r1), || part(mid, x2, r2));
+    (a.0 + b.0, a.1.max(b.1))
 }
 
 /// z ≈ A⁻¹ r on the first of `levels` by one cycle (z overwritten).
@@ -594,8 +786,7 @@ fn cycle(levels: &mut [Level], coarsest: &Dense, r: &[f64], z: &mut [f64]) {
         coarsest.solve(r, z);
         return;
     }
-    z.iter_mut().for_each(|v| *v = 0.0);
-    cur.a.sweep(r, z, true);
+    cur.a.forward_from_zero(r, z);
     cur.a.residual_after_forward(r, z, &mut cur.res);
     cur.rc.iter_mut().for_each(|v| *v = 0.0);
     for (&res, &g) in cur.res.iter().zip(&cur.agg) {
@@ -613,7 +804,7 @@ fn cycle(levels: &mut [Level], coarsest: &Dense, r: &[f64], z: &mut [f64]) {
             *zi += cur.zc[g as usize];
         }
     }
-    cur.a.sweep(r, z, false);
+    cur.a.backward(r, z, &mut cur.halo);
 }
 
 /// x ≈ A⁻¹ r on the first of `levels` by two flexible-CG steps preconditioned by [`cycle`]
@@ -621,7 +812,7 @@ fn cycle(levels: &mut [Level], coarsest: &Dense, r: &[f64], z: &mut [f64]) {
 fn k_cycle(levels: &mut [Level], coarsest: &Dense, r: &[f64], x: &mut [f64]) {
     let [mut c1, mut v1, mut c2, mut v2, mut rt] = std::mem::take(&mut levels[0].k);
     cycle(levels, coarsest, r, &mut c1);
-    levels[0].a.matvec(&c1, &mut v1);
+    levels[0].a.matvec32(&c1, &mut v1);
     let rho1 = dot(&c1, &v1);
     let a1 = dot(&c1, r);
     if rho1 <= 0.0 {
@@ -638,7 +829,7 @@ fn k_cycle(levels: &mut [Level], coarsest: &Dense, r: &[f64], x: &mut [f64]) {
         }
     } else {
         cycle(levels, coarsest, &rt, &mut c2);
-        levels[0].a.matvec(&c2, &mut v2);
+        levels[0].a.matvec32(&c2, &mut v2);
         let gamma = dot(&c2, &v1);
         let beta = dot(&c2, &v2);
         let a2 = dot(&c2, &rt);
@@ -717,21 +908,57 @@ mod tests {
     /// level (−Σ_{j>i} a_ij z_j) equals b − A z computed in full.
     #[test]
     fn half_pass_residual_equals_the_full_one() {
-        let m = 6;
+        // One block (6³ rows) and two blocks (20³ rows, at least PAR_MIN).
+        for m in [6, 20] {
+            let n = m * m * m;
+            let (cp, ri, v) = laplacian_3d(m);
+            let mut s = AmgSolver::new(n, &cp, &ri, AmgParams::default());
+            s.setup(&v).unwrap();
+            let a = &s.levels[0].a;
+            assert!(a.split);
+            assert_eq!(a.blocks.is_some(), n >= PAR_MIN);
+            let b: Vec<f64> = (0..n).map(|k| ((k * 5) % 11) as f64 - 5.0).collect();
+            let mut z = vec![0.0; n];
+            a.forward_from_zero(&b, &mut z);
+            let mut half = vec![0.0; n];
+            a.residual_after_forward(&b, &z, &mut half);
+            // The residual with the single-precision values the cycle uses.
+            let v32: Vec<f64> = v.iter().map(|&x| f64::from(x as f32)).collect();
+            let az = lower_matvec(&cp, &ri, &v32, &z);
+            for k in 0..n {
+                assert!((half[k] - (b[k] - az[k])).abs() < 1e-9, "m {m}, row {k}");
+            }
+        }
+    }
+
+    /// The backward sweep by blocks reads the other block's unknowns as they were before the
+    /// sweep: it equals two independent sweeps on copies of z.
+    #[test]
+    fn block_sweep_reads_the_other_block_from_before() {
+        let m = 20;
         let n = m * m * m;
         let (cp, ri, v) = laplacian_3d(m);
         let mut s = AmgSolver::new(n, &cp, &ri, AmgParams::default());
         s.setup(&v).unwrap();
         let a = &s.levels[0].a;
-        assert!(a.split);
-        let b: Vec<f64> = (0..n).map(|k| ((k * 5) % 11) as f64 - 5.0).collect();
-        let mut z = vec![0.0; n];
-        a.sweep(&b, &mut z, true);
-        let mut half = vec![0.0; n];
-        a.residual_after_forward(&b, &z, &mut half);
-        let az = lower_matvec(&cp, &ri, &v, &z);
-        for k in 0..n {
-            assert!((half[k] - (b[k] - az[k])).abs() < 1e-12, "row {k}");
+        let bl = a.blocks.expect("two blocks");
+        let b: Vec<f64> = (0..n).map(|k| ((k * 3) % 7) as f64 - 3.0).collect();
+        let z0: Vec<f64> = (0..n).map(|k| ((k * 11) % 5) as f64 * 0.1).collect();
+        let mut z = z0.clone();
+        a.backward(&b, &mut z, &mut Vec::new());
+        // Reference: each block on its own full copy, the other block frozen.
+        for (lo, hi) in [(0, bl.mid), (bl.mid, n)] {
+            let mut r = z0.clone();
+            for i in (lo..hi).rev() {
+                let mut t = b[i];
+                for slot in a.row(i) {
+                    t -= f64::from(a.val32[slot]) * r[a.col[slot] as usize];
+                }
+                r[i] += t * a.dinv[i];
+            }
+            for i in lo..hi {
+                assert!((z[i] - r[i]).abs() < 1e-12, "row {i}");
+            }
         }
     }
 
