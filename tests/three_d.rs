@@ -246,3 +246,76 @@ fn oversized_3d_grid_is_refused_first() {
     }
     assert!(t0.elapsed().as_secs_f64() < 5.0, "refused before solving");
 }
+
+/// `simulation.solver_3d = "multigrid"` gives the default solver's results: both iterate each
+/// step's Newton system until the temperature-equivalent residual is below the same 1e-6 K
+/// (and both stop their corrections by the same inexact-Newton rule), so the two converged
+/// states differ by about that residual, far below the printed digits. Required: annual loss
+/// within 1e-6 relative (a 1e-6 K difference over the ~20 K between floor and ground is 5e-8),
+/// frost depths and margins at the corner and mid-wall within 1e-5 m (a thousandth of the fine
+/// mesh's smallest cell). The Alder Bend demo on sizes coarser than the coarse mesh (20 cm at
+/// the edges, growth 1.5, at most 4 m; over 4,096 unknowns, so the multigrid's two-thread
+/// path runs) with one spin-up year, shortened for the test suite.
+#[test]
+fn multigrid_solver_gives_the_default_results() {
+    use frostline::case::Solver3d;
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/alder-bend-house-3d.toml");
+    let text = std::fs::read_to_string(&path).unwrap();
+    let mut c = parse_case("case.toml", &text).unwrap();
+    assert_eq!(c.simulation.solver_3d, Solver3d::IncompleteCholesky);
+    c.simulation.mesh_sizes = Some((0.2, 1.5, 4.0));
+    c.simulation.max_spin_up_years = 1;
+    let opts = RunOptions::default();
+    let a = run3(&c, &opts, &mut |_| {}).unwrap();
+    let mg = parse_case(
+        "case.toml",
+        &text.replace(
+            "model = \"3d\"",
+            "model = \"3d\"\nsolver_3d = \"multigrid\"",
+        ),
+    )
+    .unwrap();
+    assert_eq!(mg.simulation.solver_3d, Solver3d::Multigrid);
+    c.simulation.solver_3d = mg.simulation.solver_3d;
+    let b = run3(&c, &opts, &mut |_| {}).unwrap();
+    assert_eq!(a.linear_solver, Solver3d::IncompleteCholesky);
+    assert_eq!(b.linear_solver, Solver3d::Multigrid);
+    let (ka, kb) = (
+        a.headline(&c).annual_heat_loss_kwh,
+        b.headline(&c).annual_heat_loss_kwh,
+    );
+    let (ya, yb) = (a.year(), b.year());
+    let depths = |y: &frostline::run::quarter::QuarterYear| {
+        let mid = y.north[0].1;
+        [
+            y.corner.face_m,
+            y.corner.under_footing_m,
+            y.corner.margin_m,
+            mid.face_m,
+            mid.margin_m,
+        ]
+    };
+    let (da, db) = (depths(ya), depths(yb));
+    eprintln!(
+        "annual loss {ka} vs {kb} kWh ({:.1e} relative); corner and mid-wall depths {da:?} vs {db:?}; CG per solve {:.1} vs {:.1}",
+        (kb - ka) / ka,
+        a.stats.cg_iterations as f64 / a.stats.solves as f64,
+        b.stats.cg_iterations as f64 / b.stats.solves as f64
+    );
+    assert!(b.unknowns >= 4096, "{} unknowns", b.unknowns);
+    assert!(((kb - ka) / ka).abs() < 1e-6, "{ka} vs {kb}");
+    for (x, y) in da.iter().zip(&db) {
+        assert!((x - y).abs() < 1e-5, "{da:?} vs {db:?}");
+    }
+    // An unknown solver name is refused, naming the key.
+    match parse_case(
+        "case.toml",
+        &text.replace("model = \"3d\"", "model = \"3d\"\nsolver_3d = \"amg\""),
+    ) {
+        Err(frostline::error::Error::Input { key, kind, .. }) => {
+            assert_eq!(key, "simulation.solver_3d");
+            assert_eq!(kind, frostline::error::InputKind::UnknownName);
+        }
+        other => panic!("expected an input error, got {:?}", other.map(|_| ())),
+    }
+}

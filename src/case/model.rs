@@ -108,6 +108,32 @@ pub enum ModelKind {
     ThreeD,
 }
 
+/// The linear solver of the 3D model's Newton corrections (the 2D section always uses a direct
+/// sparse Cholesky factor).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum Solver3d {
+    /// Conjugate gradients preconditioned by a modified incomplete Cholesky factor, the
+    /// default: the fastest on the bundled meshes (up to about a million unknowns), its
+    /// iterations growing slowly with the grid.
+    #[serde(rename = "incomplete-cholesky")]
+    IncompleteCholesky,
+    /// Flexible conjugate gradients preconditioned by an aggregation multigrid cycle on two
+    /// threads: iterations independent of the grid, so the time grows nearly in proportion to
+    /// the cells, but slower than the default on the bundled meshes.
+    #[serde(rename = "multigrid")]
+    Multigrid,
+}
+
+impl Solver3d {
+    /// The case-file name.
+    pub fn name(self) -> &'static str {
+        match self {
+            Solver3d::IncompleteCholesky => "incomplete-cholesky",
+            Solver3d::Multigrid => "multigrid",
+        }
+    }
+}
+
 /// Slab, wall, footing: the concrete parts.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Slab {
@@ -338,6 +364,8 @@ pub struct Simulation {
     pub wall_extension_m: f64,
     /// The model. Default 2D.
     pub model: ModelKind,
+    /// The 3D model's linear solver. Default incomplete Cholesky.
+    pub solver_3d: Solver3d,
     /// Explicit mesh sizes (edge size, growth, largest size; m) for both the 2D and the 3D model,
     /// overriding `mesh`: for studies and tests that compare the two models on one set of sizes.
     /// Not a case-file key; None from validation.

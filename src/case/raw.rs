@@ -326,6 +326,7 @@ pub struct RawSimulation {
     pub domain_depth_m: Option<S<f64>>,
     pub bottom_temperature_c: Option<S<f64>>,
     pub model: Option<S<String>>,
+    pub solver_3d: Option<S<String>>,
 }
 
 #[derive(Debug, Deserialize)]

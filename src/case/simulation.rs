@@ -1,6 +1,6 @@
 //! Validation of `[simulation]` (time step, spin-up, mesh, domain) and the `[[probe]]` points.
 use super::ctx::Ctx;
-use super::model::{Building, Case, Fineness, ModelKind, Probe, Simulation, Wall};
+use super::model::{Building, Case, Fineness, ModelKind, Probe, Simulation, Solver3d, Wall};
 use super::raw::{RawProbe, RawSimulation, S};
 use crate::error::{InputKind, Result};
 
@@ -49,18 +49,21 @@ pub fn simulation(
             )
         })?,
     };
-    let model = match s.model.as_ref().map(|v| (v, v.get_ref().as_str())) {
-        None | Some((_, "2d")) => ModelKind::TwoD,
-        Some((_, "3d")) => ModelKind::ThreeD,
-        Some((v, other)) => {
-            return Err(c.err(
-                v.span(),
-                "simulation.model",
-                InputKind::UnknownName,
-                format!("\"{other}\" is not a model; allowed: 2d, 3d"),
-            ))
-        }
-    };
+    let model = choice(
+        c,
+        &s.model,
+        ("simulation.model", "a model"),
+        &[("2d", ModelKind::TwoD), ("3d", ModelKind::ThreeD)],
+    )?;
+    let solver_3d = choice(
+        c,
+        &s.solver_3d,
+        ("simulation.solver_3d", "a 3D solver"),
+        &[
+            ("incomplete-cholesky", Solver3d::IncompleteCholesky),
+            ("multigrid", Solver3d::Multigrid),
+        ],
+    )?;
     let dom_default = (2.5 * b_prime_m).max(20.0);
     let domain =
         |v: &Option<S<f64>>, key: &str, default: f64| c.opt(v, key, (2.0, 500.0), "m", default);
@@ -97,7 +100,38 @@ pub fn simulation(
             .transpose()?,
         wall_extension_m: WALL_EXTENSION_M,
         model,
+        solver_3d,
     })
+}
+
+/// The value of a key naming one of `choices` (the first when the key is absent); (key, what
+/// it names) for the error.
+fn choice<T: Copy>(
+    c: &Ctx,
+    v: &Option<S<String>>,
+    (key, what): (&str, &str),
+    choices: &[(&str, T)],
+) -> Result<T> {
+    let Some(v) = v else {
+        return Ok(choices[0].1);
+    };
+    let name = v.get_ref().as_str();
+    match choices.iter().find(|(n, _)| *n == name) {
+        Some(&(_, value)) => Ok(value),
+        None => Err(c.err(
+            v.span(),
+            key,
+            InputKind::UnknownName,
+            format!(
+                "\"{name}\" is not {what}; allowed: {}",
+                choices
+                    .iter()
+                    .map(|(n, _)| *n)
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ),
+        )),
+    }
 }
 
 /// The 3D model needs a `[plan]`.

@@ -5,7 +5,7 @@ use super::section::{part_outlines, PartOutline};
 use super::tables::{self, csv_bytes, fmt, Csv};
 use super::{write_csv, write_json, CsvNotes};
 use crate::analysis::frost_scalar;
-use crate::case::{Case, InsulationKind};
+use crate::case::{Case, InsulationKind, Solver3d};
 use crate::error::Result;
 use crate::mesh::Cell;
 use crate::mesh3::Grid3;
@@ -56,6 +56,8 @@ pub struct Summary3 {
     pub grid: [usize; 3],
     /// Unknowns (solid cells).
     pub unknowns: usize,
+    /// The linear solver of the Newton corrections (`simulation.solver_3d`).
+    pub linear_solver: Solver3d,
     /// Time steps of the 3D run.
     pub time_steps: usize,
     /// Newton iterations per step.
@@ -112,6 +114,7 @@ impl Summary3 {
             frost_margin_definition: MARGIN_3D.into(),
             grid: [g.nx(), g.ny(), g.nz()],
             unknowns: r.unknowns,
+            linear_solver: r.linear_solver,
             time_steps: r.time_steps,
             newton_iterations_per_step: st.newton_iterations as f64 / r.time_steps.max(1) as f64,
             cg_iterations_per_solve: st.cg_iterations as f64 / st.solves.max(1) as f64,

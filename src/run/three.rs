@@ -19,11 +19,12 @@ use super::{
     forcing, Headline, Progress, Records, RunOptions, RunResult, GROUP_FLOOR, GROUP_WALL_ABOVE,
     GROUP_WALL_BELOW,
 };
-use crate::case::Case;
+use crate::case::{Case, Solver3d};
 use crate::error::Result;
 use crate::geometry::INDOOR;
 use crate::geometry3d::Quarter;
 use crate::mesh3::{Grid3, Mesh3};
+use crate::solver::amg::AmgParams;
 use crate::solver::network::Side;
 use crate::solver::pcg::PcgParams;
 use crate::solver::{Linear, Network, Solver, SolverParams, SolverStats};
@@ -64,6 +65,8 @@ pub struct Run3Result {
     pub coupling: Coupling3,
     /// Solver work.
     pub stats: SolverStats,
+    /// The linear solver used (a `simulation.solver_3d` name).
+    pub linear_solver: Solver3d,
     /// Time steps.
     pub time_steps: usize,
     /// Wall-clock time, s.
@@ -97,12 +100,15 @@ impl Run3Result {
     }
 }
 
-/// The solver settings of a 3D run: `opts`' with conjugate gradients unless it already asks for
-/// them.
-fn params3(opts: &RunOptions) -> SolverParams {
+/// The solver settings of a 3D run: `opts`' if they already ask for an iterative solver (the
+/// library's callers, benchmarks), else the case's `simulation.solver_3d` with its defaults.
+fn params3(case: &Case, opts: &RunOptions) -> SolverParams {
     let mut p = opts.solver;
     if !matches!(p.linear, Linear::Pcg(_) | Linear::Multigrid(_)) {
-        p.linear = Linear::Pcg(PcgParams::default());
+        p.linear = match case.simulation.solver_3d {
+            Solver3d::IncompleteCholesky => Linear::Pcg(PcgParams::default()),
+            Solver3d::Multigrid => Linear::Multigrid(AmgParams::default()),
+        };
     }
     p
 }
@@ -275,7 +281,7 @@ pub fn run3(
     let two = super::run_with(case, opts, &mut |_| {})?;
     let (q, mesh, net) = model3(case);
     let split = two.split.clone();
-    let params = params3(opts);
+    let params = params3(case, opts);
     let seed = seed_from_2d(case, (&q, &mesh, &net), params, &two)?;
     let quarter_len = 0.25 * case.building.exposed_perimeter_m;
     let mut drv = Driver {
@@ -310,6 +316,10 @@ pub fn run3(
         split,
         coupling,
         stats,
+        linear_solver: match params.linear {
+            Linear::Multigrid(_) => Solver3d::Multigrid,
+            _ => Solver3d::IncompleteCholesky,
+        },
         time_steps,
         wall_time_s: start.elapsed().as_secs_f64(),
     })
