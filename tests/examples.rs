@@ -486,15 +486,24 @@ fn alder_bend_house_3d_coarse() {
     }
     assert!(thawed_from_above > 10, "{thawed_from_above}");
 
+    // The linear solver is recorded and reported; a summary.json written before the record
+    // existed reads as the only solver then (incomplete Cholesky) and still re-renders.
+    assert_eq!(t["solver_3d"], "incomplete_cholesky");
+    assert!(report.contains("linear solver incomplete_cholesky"));
+    let old = crate::cli::scratch("alder-3d-old-summary");
+    copy_files(&out, &old);
+    let mut sv: Value =
+        serde_json::from_str(&std::fs::read_to_string(old.join("summary.json")).unwrap()).unwrap();
+    sv["three_d"].as_object_mut().unwrap().remove("solver_3d");
+    std::fs::write(old.join("summary.json"), sv.to_string()).unwrap();
+    crate::common::run_ok(&["plot".as_ref(), old.as_os_str()]);
+    let report_old = std::fs::read_to_string(old.join("report.html")).unwrap();
+    assert!(report_old.contains("linear solver incomplete_cholesky"));
+
     // The same results as a US-units run would show them: `plot` re-renders from the saved
     // files in the units summary.json records (1 ft = 0.3048 m, °F = 1.8 °C + 32).
     let us = crate::cli::scratch("alder-3d-us");
-    for e in std::fs::read_dir(&out).unwrap() {
-        let p = e.unwrap().path();
-        if p.is_file() {
-            std::fs::copy(&p, us.join(p.file_name().unwrap())).unwrap();
-        }
-    }
+    copy_files(&out, &us);
     let summary = std::fs::read_to_string(us.join("summary.json")).unwrap();
     let summary = summary.replacen("\"units\": \"si\"", "\"units\": \"us\"", 1);
     assert!(summary.contains("\"units\": \"us\""));
@@ -554,4 +563,14 @@ fn alder_bend_house_3d_coarse() {
     assert!(plan.contains(&format!("frost as deep as the footing base ({base:.2} m)")));
     let per = std::fs::read_to_string(board.join("perimeter_frost.svg")).unwrap();
     assert!(!per.contains("bearing level"));
+}
+
+/// Copy the files (not the folders) of `from` into `to`.
+fn copy_files(from: &Path, to: &Path) {
+    for e in std::fs::read_dir(from).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_file() {
+            std::fs::copy(&p, to.join(p.file_name().unwrap())).unwrap();
+        }
+    }
 }

@@ -278,8 +278,8 @@ fn multigrid_solver_gives_the_default_results() {
     assert_eq!(mg.simulation.solver_3d, Solver3d::Multigrid);
     c.simulation.solver_3d = mg.simulation.solver_3d;
     let b = run3(&c, &opts, &mut |_| {}).unwrap();
-    assert_eq!(a.linear_solver, Solver3d::IncompleteCholesky);
-    assert_eq!(b.linear_solver, Solver3d::Multigrid);
+    assert_eq!(a.solver_3d, Solver3d::IncompleteCholesky);
+    assert_eq!(b.solver_3d, Solver3d::Multigrid);
     let (ka, kb) = (
         a.headline(&c).annual_heat_loss_kwh,
         b.headline(&c).annual_heat_loss_kwh,

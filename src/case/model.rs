@@ -110,27 +110,33 @@ pub enum ModelKind {
 
 /// The linear solver of the 3D model's Newton corrections (the 2D section always uses a direct
 /// sparse Cholesky factor).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum Solver3d {
     /// Conjugate gradients preconditioned by a modified incomplete Cholesky factor, the
     /// default: the fastest on the bundled meshes (up to about a million unknowns), its
     /// iterations growing slowly with the grid.
-    #[serde(rename = "incomplete-cholesky")]
+    #[default]
     IncompleteCholesky,
     /// Flexible conjugate gradients preconditioned by an aggregation multigrid cycle on two
     /// threads: iterations independent of the grid, so the time grows nearly in proportion to
     /// the cells, but slower than the default on the bundled meshes.
-    #[serde(rename = "multigrid")]
     Multigrid,
 }
 
 impl Solver3d {
+    /// Every solver with its case-file name (the serialised name too), the default first.
+    pub const ALL: [(&'static str, Solver3d); 2] = [
+        ("incomplete_cholesky", Solver3d::IncompleteCholesky),
+        ("multigrid", Solver3d::Multigrid),
+    ];
+
     /// The case-file name.
     pub fn name(self) -> &'static str {
-        match self {
-            Solver3d::IncompleteCholesky => "incomplete-cholesky",
-            Solver3d::Multigrid => "multigrid",
-        }
+        Self::ALL
+            .iter()
+            .find(|(_, s)| *s == self)
+            .map_or("", |(n, _)| n)
     }
 }
 

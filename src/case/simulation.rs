@@ -59,10 +59,7 @@ pub fn simulation(
         c,
         &s.solver_3d,
         ("simulation.solver_3d", "a 3D solver"),
-        &[
-            ("incomplete-cholesky", Solver3d::IncompleteCholesky),
-            ("multigrid", Solver3d::Multigrid),
-        ],
+        &Solver3d::ALL,
     )?;
     let dom_default = (2.5 * b_prime_m).max(20.0);
     let domain =

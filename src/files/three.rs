@@ -56,8 +56,10 @@ pub struct Summary3 {
     pub grid: [usize; 3],
     /// Unknowns (solid cells).
     pub unknowns: usize,
-    /// The linear solver of the Newton corrections (`simulation.solver_3d`).
-    pub linear_solver: Solver3d,
+    /// The linear solver of the Newton corrections (`simulation.solver_3d`; files written
+    /// before the key existed read as the only solver then, incomplete Cholesky).
+    #[serde(default)]
+    pub solver_3d: Solver3d,
     /// Time steps of the 3D run.
     pub time_steps: usize,
     /// Newton iterations per step.
@@ -114,7 +116,7 @@ impl Summary3 {
             frost_margin_definition: MARGIN_3D.into(),
             grid: [g.nx(), g.ny(), g.nz()],
             unknowns: r.unknowns,
-            linear_solver: r.linear_solver,
+            solver_3d: r.solver_3d,
             time_steps: r.time_steps,
             newton_iterations_per_step: st.newton_iterations as f64 / r.time_steps.max(1) as f64,
             cg_iterations_per_solve: st.cg_iterations as f64 / st.solves.max(1) as f64,

@@ -183,10 +183,10 @@ fn three_rows(s: &Summary3, peak: &str) -> String {
         );
     }
     t += &format!(
-        "\n  3D numerics: {} × {} × {} grid, {} unknowns, {} steps, spin-up {} year(s) from the 2D periodic state ({}), {:.2} Newton iterations/step, {:.1} CG iterations/solve ({} solver, max {}), energy balance {:.1e}, {:.1} s\n",
+        "\n  3D numerics: {} × {} × {} grid, {} unknowns, {} steps, spin-up {} year(s) from the 2D periodic state ({}), {:.2} Newton iterations/step, {:.1} CG iterations/solve (max {}; linear solver {}), energy balance {:.1e}, {:.1} s\n",
         s.grid[0], s.grid[1], s.grid[2], s.unknowns, s.time_steps, s.spin_up_years,
         if s.spin_up_converged { "periodic" } else { "NOT periodic: raise simulation.max_spin_up_years" },
-        s.newton_iterations_per_step, s.cg_iterations_per_solve, s.linear_solver.name(), s.max_cg_iterations,
+        s.newton_iterations_per_step, s.cg_iterations_per_solve, s.max_cg_iterations, s.solver_3d.name(),
         s.energy_balance_error, s.wall_time_s
     );
     t

@@ -133,10 +133,10 @@ pub fn html(s: &Summary3, dir: &Path, peak: &str) -> crate::error::Result<String
         escape(&s.frost_margin_definition)
     );
     t += &format!(
-        "<p>3D numerics: {} × {} × {} grid, {} unknowns, {} steps, spin-up {} year(s) from the 2D periodic state ({}), {:.2} Newton iterations per step, {:.1} CG iterations per solve ({} solver, largest {}), {} step halvings, energy balance {:.1e}, {:.1} s.</p>\n",
+        "<p>3D numerics: {} × {} × {} grid, {} unknowns, {} steps, spin-up {} year(s) from the 2D periodic state ({}), {:.2} Newton iterations per step, {:.1} CG iterations per solve (largest {}; linear solver {}), {} step halvings, energy balance {:.1e}, {:.1} s.</p>\n",
         s.grid[0], s.grid[1], s.grid[2], s.unknowns, s.time_steps, s.spin_up_years,
         if s.spin_up_converged { "periodic" } else { "NOT periodic" },
-        s.newton_iterations_per_step, s.cg_iterations_per_solve, s.linear_solver.name(), s.max_cg_iterations,
+        s.newton_iterations_per_step, s.cg_iterations_per_solve, s.max_cg_iterations, s.solver_3d.name(),
         s.step_halvings, s.energy_balance_error, s.wall_time_s
     );
     t += &figures(dir, FIGURES_3D, ("figures-3d", "3D figures"))?;

@@ -65,8 +65,8 @@ pub struct Run3Result {
     pub coupling: Coupling3,
     /// Solver work.
     pub stats: SolverStats,
-    /// The linear solver used (a `simulation.solver_3d` name).
-    pub linear_solver: Solver3d,
+    /// The linear solver used (`simulation.solver_3d`, unless the options asked for one).
+    pub solver_3d: Solver3d,
     /// Time steps.
     pub time_steps: usize,
     /// Wall-clock time, s.
@@ -316,9 +316,9 @@ pub fn run3(
         split,
         coupling,
         stats,
-        linear_solver: match params.linear {
+        solver_3d: match params.linear {
             Linear::Multigrid(_) => Solver3d::Multigrid,
-            _ => Solver3d::IncompleteCholesky,
+            Linear::Pcg(_) | Linear::Cholesky => Solver3d::IncompleteCholesky,
         },
         time_steps,
         wall_time_s: start.elapsed().as_secs_f64(),

@@ -47,14 +47,13 @@ pub struct SolverParams {
     pub max_halvings: usize,
     /// Forcing term η of the inexact Newton iteration with the iterative solvers
     /// ([`Linear::Pcg`], [`Linear::Multigrid`]; the direct one ignores it): conjugate gradients
-    /// solve each correction until
-    /// its temperature-equivalent residual is at most max(0.1 `tol_k`, η × the current Newton
-    /// residual), since the next iterate is tested in that measure anyway (inexact Newton:
+    /// solve each correction until its temperature-equivalent residual is at most
+    /// max(0.1 `tol_k`, η × the current Newton residual), since the next iterate is tested in that measure anyway (inexact Newton:
     /// Dembo, Eisenstat & Steihaug 1982, SIAM J. Numer. Anal. 19:400–408, from memory). From
     /// half of `max_newton` on, corrections are solved fully again. The converged state meets
-    /// `tol_k` as before. Default 1e-3 (the 3D demo's cold-spell steps, `examples/bench3d.rs`:
-    /// normal 0.273 → 0.173 s, fine 4.75 → 2.59 s per step; Newton iterations rise, CG
-    /// iterations per step fall more); 0 solves every correction to the relative tolerance.
+    /// `tol_k` as before. Default 1e-3 (the 3D demo's cold-spell steps, `examples/bench3d.rs`,
+    /// incomplete-factor solver: normal 0.273 → 0.173 s, fine 4.75 → 2.59 s per step; multigrid,
+    /// normal: 0.79 → 0.48 s; Newton iterations rise, CG iterations per step fall more); 0 solves every correction to the relative tolerance.
     pub newton_forcing: f64,
     /// Picard iterations for the steady state. Default 100.
     pub max_picard: usize,
@@ -106,27 +105,24 @@ impl Lin {
             other => other.solve(vals, rhs),
         }
     }
-    /// A Newton correction: the iterative solvers stop once max_k w_k |r_k| ≤ `bound`; the
-    /// direct one solves in full (as [`Lin::solve_near`]).
-    fn solve_step(
+    /// A Newton correction. With a `bound` the iterative solvers stop once
+    /// max_k w_k |r_k| ≤ bound (inexact Newton); without one they solve to their relative
+    /// tolerance. The direct solver always solves in full (by CG on a nearby factor when at most
+    /// `max_touched` cells changed).
+    fn solve_correction(
         &mut self,
         vals: &[f64],
         rhs: &mut [f64],
         w: &[f64],
-        bound: f64,
+        bound: Option<f64>,
         max_touched: usize,
     ) -> Result<()> {
-        match self {
-            Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
-            Lin::Iterative(s) => s.solve_step(vals, rhs, w, bound),
-            Lin::Multigrid(s) => s.solve_step(vals, rhs, w, bound),
-        }
-    }
-    fn solve_near(&mut self, vals: &[f64], rhs: &mut [f64], max_touched: usize) -> Result<()> {
-        match self {
-            Lin::Direct(s) => s.solve_near(vals, rhs, max_touched),
-            Lin::Iterative(s) => s.solve(vals, rhs),
-            Lin::Multigrid(s) => s.solve(vals, rhs),
+        match (self, bound) {
+            (Lin::Direct(s), _) => s.solve_near(vals, rhs, max_touched),
+            (Lin::Iterative(s), Some(b)) => s.solve_step(vals, rhs, w, b),
+            (Lin::Iterative(s), None) => s.solve(vals, rhs),
+            (Lin::Multigrid(s), Some(b)) => s.solve_step(vals, rhs, w, b),
+            (Lin::Multigrid(s), None) => s.solve(vals, rhs),
         }
     }
 }
@@ -602,19 +598,15 @@ impl<'a> Solver<'a> {
             for (x, v) in rhs.iter_mut().zip(&self.r) {
                 *x = -v;
             }
-            let solved = match &mut self.lin {
-                lin if params.newton_forcing > 0.0 && 2 * iter < params.max_newton => {
-                    let bound = (0.1 * params.tol_k).max(params.newton_forcing * res);
-                    lin.solve_step(
-                        &self.vals,
-                        &mut rhs,
-                        &self.w,
-                        bound,
-                        params.near_factor_cells,
-                    )
-                }
-                lin => lin.solve_near(&self.vals, &mut rhs, params.near_factor_cells),
-            };
+            let bound = (params.newton_forcing > 0.0 && 2 * iter < params.max_newton)
+                .then(|| (0.1 * params.tol_k).max(params.newton_forcing * res));
+            let solved = self.lin.solve_correction(
+                &self.vals,
+                &mut rhs,
+                &self.w,
+                bound,
+                params.near_factor_cells,
+            );
             if solved.is_err() {
                 h.copy_from_slice(&self.h_old);
                 self.cap = cap;
