@@ -18,26 +18,36 @@
 //!   Gauss–Seidel: the split depends on the matrix only, so results do not depend on the thread
 //!   count or timing); matrix products and long dot products are split the same way, their two
 //!   partial sums added in a fixed order. The cycle uses the values in single precision; the
-//!   outer iteration's products are in double precision. The coarse correction on every level but the last is two steps of flexible CG preconditioned by
-//!   the next cycle (the K-cycle), which keeps plain aggregation's convergence independent of the
-//!   number of levels (Notay & Vassilevski 2008, Numer. Linear Algebra Appl. 15:123–142;
+//!   outer iteration's products are in double precision. On the finest level, whose rows hold
+//!   their entries left of the diagonal first, the forward sweep from zero reads only those
+//!   (the others multiply zeros) and the residual after it only the entries right of the
+//!   diagonal. The coarse correction on every level but the last is two steps of flexible CG
+//!   preconditioned by the next cycle (the K-cycle), which keeps plain aggregation's
+//!   convergence independent of the number of levels (Notay & Vassilevski 2008, Numer. Linear Algebra Appl. 15:123–142;
 //!   Notay 2010, Electron. Trans. Numer. Anal. 37:123–146).
 //! - **Outer iteration.** The cycle is not a fixed linear operator, so the outer iteration is
 //!   flexible CG (each new direction A-orthogonalised against the previous one). It stops when
 //!   ‖r‖₂ ≤ `rel_tol` ‖b‖₂, as the incomplete-factor solver does.
 //!
-//! # Measured (examples/bench3d.rs `days 10 … amg`, Alder Bend 3D demo, cold-spell steps)
-//! Full solves: iterations per solve 12.5 / 13.2 / 14.1 on the coarse / normal / fine mesh
-//! (37,636 / 137,151 / 975,494 unknowns) against 11.6 / 15.0 / 28.0 for the incomplete factor.
-//! With the inexact Newton stop ([`AmgSolver::solve_step`]): 4.9 / 4.8 / 5.1 iterations per solve
-//! (incomplete factor 5.4 / 6.5 / 9.5): independent of the mesh, as intended, so the time per
-//! step grows nearly as the unknowns: 0.088 / 0.351 / 3.37 s (n^1.07 coarse → normal, n^1.15
-//! normal → fine, of which n^0.10 is the Newton iterations per step, 5.1 / 6.1 / 7.4). One
-//! iteration still costs more than the incomplete factor's (two sweeps, half a residual and the
-//! K-cycle's coarse levels, whose work adds up to about the finest level's, against two
-//! triangular solves), so on the demo's meshes a step takes 1.7 / 1.3 / 1.1 times as long as
-//! with the incomplete factor (0.051 / 0.274 / 3.01 s; medians of 3, fine 1 run each). It is
-//! therefore not the 3D default.
+//! # Measured (examples/bench3d.rs `days 10 … [amg]`, Alder Bend 3D demo, cold-spell steps)
+//! Both solvers measured together (twelfth session; medians of 3, fine 1 run; wall time, the
+//! multigrid on two threads, the incomplete factor on one), coarse / normal / fine mesh
+//! (37,636 / 137,151 / 975,494 unknowns):
+//! - iterations per solve with the inexact Newton stop ([`AmgSolver::solve_step`]): 4.9 / 4.8 /
+//!   5.1, independent of the mesh (incomplete factor 5.4 / 6.5 / 9.5); solved fully
+//!   (forcing 0): 12.5 / 13.2 / 14.3;
+//! - time per step 0.089 / 0.404 / 3.96 s against 0.057 / 0.296 / 3.20 s: 1.56 / 1.36 / 1.24
+//!   times as long, since one iteration costs more (two sweeps, half a residual and the
+//!   K-cycle's coarse levels, whose work adds up to about the finest level's, against two
+//!   triangular solves);
+//! - time per Newton iteration grows as n^1.03 (coarse → normal) and n^1.06 (normal → fine),
+//!   the incomplete factor's as n^1.16 and n^1.13; per step n^1.17 and n^1.16 (incomplete
+//!   factor n^1.27 and n^1.21), the Newton iterations per step (5.1 / 6.1 / 7.4, more cells
+//!   crossing the freezing interval per daily step on a finer grid) adding n^0.10–0.14.
+//!
+//! So the work grows in proportion to the cells, but the incomplete factor is faster on every
+//! mesh the tool offers: it stays the default, and this solver is `simulation.solver_3d =
+//! "multigrid"`.
 use crate::error::{Error, Result};
 
 /// Settings of the multigrid-preconditioned solver.

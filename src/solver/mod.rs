@@ -48,12 +48,14 @@ pub struct SolverParams {
     /// Forcing term η of the inexact Newton iteration with the iterative solvers
     /// ([`Linear::Pcg`], [`Linear::Multigrid`]; the direct one ignores it): conjugate gradients
     /// solve each correction until its temperature-equivalent residual is at most
-    /// max(0.1 `tol_k`, η × the current Newton residual), since the next iterate is tested in that measure anyway (inexact Newton:
-    /// Dembo, Eisenstat & Steihaug 1982, SIAM J. Numer. Anal. 19:400–408, from memory). From
-    /// half of `max_newton` on, corrections are solved fully again. The converged state meets
-    /// `tol_k` as before. Default 1e-3 (the 3D demo's cold-spell steps, `examples/bench3d.rs`,
-    /// incomplete-factor solver: normal 0.273 → 0.173 s, fine 4.75 → 2.59 s per step; multigrid,
-    /// normal: 0.79 → 0.48 s; Newton iterations rise, CG iterations per step fall more); 0 solves every correction to the relative tolerance.
+    /// max(0.1 `tol_k`, η × the current Newton residual), since the next iterate is tested in
+    /// that measure anyway (inexact Newton: Dembo, Eisenstat & Steihaug 1982, SIAM J. Numer.
+    /// Anal. 19:400–408, from memory). From half of `max_newton` on, corrections are solved
+    /// fully again. The converged state meets
+    /// `tol_k` as before. Default 1e-3 (the 3D demo's cold-spell steps, `examples/bench3d.rs`:
+    /// incomplete factor, normal 0.273 → 0.173 s and fine 4.75 → 2.59 s per step; multigrid,
+    /// normal 0.578 → 0.404 s; Newton iterations rise, CG iterations per step fall more); 0
+    /// solves every correction to the relative tolerance.
     pub newton_forcing: f64,
     /// Picard iterations for the steady state. Default 100.
     pub max_picard: usize,
