@@ -13,8 +13,8 @@
 //!   aggregates are chosen once, from the first matrix, and kept. The coarsest level (at most
 //!   `coarse_size` unknowns) is solved by a dense Cholesky factor.
 //! - **Cycle.** One forward Gauss–Seidel sweep, the coarse correction, one backward sweep. On
-//!   levels of at least [`PAR_MIN`] unknowns the rows are split in two halves swept at once on
-//!   two threads, each reading the other half's unknowns as they were when the sweep began (block
+//!   levels of at least 4,096 unknowns (`PAR_MIN`) the rows are split in two halves swept at
+//!   once on two threads, each reading the other half's unknowns as they were when the sweep began (block
 //!   Gauss–Seidel: the split depends on the matrix only, so results do not depend on the thread
 //!   count or timing); matrix products and long dot products are split the same way, their two
 //!   partial sums added in a fixed order. The cycle uses the values in single precision; the
