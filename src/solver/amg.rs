@@ -734,9 +734,7 @@ impl AmgSolver {
             zq.copy_from_slice(&q);
             it += 1;
             let r_norm = r2.sqrt();
-            if r_norm <= self.params.rel_tol * b_norm
-                || (r_norm.is_finite() && scaled.is_some_and(|(_, bound)| scaled_max <= bound))
-            {
+            if super::cg_stops(r_norm, self.params.rel_tol * b_norm, scaled_max, scaled) {
                 done = true;
                 break;
             }

@@ -74,6 +74,14 @@ pub struct SolverParams {
     pub linear: Linear,
 }
 
+/// The stopping test both CG solvers share: ‖r‖₂ at most `r_bound` (their relative tolerance
+/// times ‖b‖₂), or, for a Newton correction (`scaled` = (w, bound)), the weighted residual
+/// max_k w_k |r_k| = `scaled_max` at most the bound while ‖r‖₂ is finite.
+fn cg_stops(r_norm: f64, r_bound: f64, scaled_max: f64, scaled: Option<(&[f64], f64)>) -> bool {
+    r_norm <= r_bound
+        || (r_norm.is_finite() && scaled.is_some_and(|(_, bound)| scaled_max <= bound))
+}
+
 /// Which linear solver a [`Solver`] uses.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Linear {
